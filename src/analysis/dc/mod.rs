@@ -1,0 +1,1 @@
+//! The DC engine: modified nodal analysis with Newton–Raphson for nonlinear devices.

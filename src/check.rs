@@ -1,0 +1,89 @@
+//! The pipeline for one file: netlist → circuit → analysis → rules, then severity overrides and
+//! suppressions. Renderers receive the result; nothing here prints.
+
+use crate::analysis;
+use crate::circuit::{parts, Circuit};
+use crate::config::{Config, ConfigError};
+use crate::diagnostic::Finding;
+use crate::netlist::{self, Limits, LoadError};
+use crate::rules::{self, RuleContext};
+use crate::source::SourceMap;
+use std::path::{Path, PathBuf};
+
+#[derive(Clone, Debug, Default)]
+pub struct CheckOptions {
+    pub limits: Limits,
+    /// `--config PATH`; otherwise `kickback.toml` is looked for beside each netlist.
+    pub config_path: Option<PathBuf>,
+}
+
+/// Why a file could not be checked at all (exit code 2).
+#[derive(Debug, thiserror::Error)]
+pub enum CheckError {
+    #[error(transparent)]
+    Load(#[from] LoadError),
+    #[error(transparent)]
+    Config(#[from] ConfigError),
+}
+
+/// The outcome for one file.
+#[derive(Debug)]
+pub struct FileReport {
+    pub path: PathBuf,
+    pub sources: SourceMap,
+    /// Findings after severity overrides and suppressions, sorted by file, line, column, rule.
+    pub findings: Vec<Finding>,
+    /// Findings silenced by a suppression comment or `off` in `[rules]`.
+    pub suppressed: usize,
+    /// Set when the file could not be checked; `findings` may then be empty.
+    pub failure: Option<CheckError>,
+}
+
+pub fn load_config(netlist: &Path, options: &CheckOptions) -> Result<Config, ConfigError> {
+    match &options.config_path {
+        Some(path) => Config::load(path),
+        None => Ok(Config::discover(netlist)?.unwrap_or_default()),
+    }
+}
+
+pub fn check_file(path: &Path, options: &CheckOptions) -> FileReport {
+    let mut report = FileReport {
+        path: path.to_path_buf(),
+        sources: SourceMap::new(),
+        findings: Vec::new(),
+        suppressed: 0,
+        failure: None,
+    };
+    let config = match load_config(path, options) {
+        Ok(c) => c,
+        Err(e) => {
+            report.failure = Some(e.into());
+            return report;
+        }
+    };
+    let keep = |name: &str| parts::keeps_whole(name, &config);
+    let (flat, mut findings) =
+        match netlist::load(path, &mut report.sources, &options.limits, &keep) {
+            Ok(x) => x,
+            Err(e) => {
+                report.failure = Some(e.into());
+                return report;
+            }
+        };
+    let (circuit, circuit_findings) = Circuit::build(&flat, &config);
+    findings.extend(circuit_findings);
+    let (facts, analysis_findings) = analysis::analyze(&flat, &circuit, &config);
+    findings.extend(analysis_findings);
+    let cx = RuleContext {
+        netlist: &flat,
+        circuit: &circuit,
+        analysis: &facts,
+        config: &config,
+    };
+    findings.extend(rules::run(&cx));
+    let sources = &report.sources;
+    findings.sort_by_cached_key(|f| (sources.locate(f.span), f.rule.clone(), f.message.clone()));
+    findings.dedup();
+    report.findings = findings;
+    report
+}

@@ -1,0 +1,80 @@
+//! The circuit graph: nets and devices, each device with its kind, pin roles and part data
+//! (ratings with provenance). Built from a [`FlatNetlist`] and the configuration; queried by the
+//! analyses and the rules.
+
+pub mod kind;
+
+pub use kind::{Kind, PinRole};
+
+use std::collections::BTreeMap;
+
+pub type NetId = usize;
+pub type DeviceId = usize;
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Net {
+    /// Name as first written (flattened: `XDRV.n1`).
+    pub name: String,
+    /// One of the reference nets (`[analysis] ground`, default `0` and `gnd`).
+    pub is_ground: bool,
+}
+
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Pin {
+    pub role: PinRole,
+    pub net: NetId,
+}
+
+/// A number of part data with where it came from, e.g. `from config`,
+/// `from .model DSW BV`, `built-in 1N4007 (JEDEC registration)`, `built-in default for timer-555`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Rated {
+    pub value: f64,
+    pub source: String,
+}
+
+/// Ratings and model numbers of one device, by rating name (`vrrm`, `vgs_th_max`, `kp`...).
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct PartData {
+    pub values: BTreeMap<String, Rated>,
+}
+
+impl PartData {
+    pub fn get(&self, name: &str) -> Option<&Rated> {
+        self.values.get(name)
+    }
+
+    pub fn value(&self, name: &str) -> Option<f64> {
+        self.values.get(name).map(|r| r.value)
+    }
+
+    /// Sets `name` unless a stronger source already did.
+    pub fn set_if_absent(&mut self, name: &str, value: f64, source: impl Into<String>) {
+        self.values.entry(name.to_string()).or_insert(Rated {
+            value,
+            source: source.into(),
+        });
+    }
+}
+
+#[derive(Clone, Debug, PartialEq)]
+pub struct Device {
+    /// Index into `FlatNetlist::elements`.
+    pub element: usize,
+    pub kind: Kind,
+    /// Terminals in the element's node order.
+    pub pins: Vec<Pin>,
+    pub data: PartData,
+}
+
+impl Device {
+    /// The net on the first pin with this role.
+    pub fn pin(&self, role: PinRole) -> Option<NetId> {
+        self.pins.iter().find(|p| p.role == role).map(|p| p.net)
+    }
+}
+
+pub mod graph;
+pub mod parts;
+
+pub use graph::Circuit;

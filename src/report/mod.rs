@@ -1,0 +1,1 @@
+//! Renderers: the only room that knows about terminals, colour, JSON and SARIF.
