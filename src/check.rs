@@ -81,9 +81,12 @@ pub fn check_file(path: &Path, options: &CheckOptions) -> FileReport {
         config: &config,
     };
     findings.extend(rules::run(&cx));
+    let outcome = rules::suppress::apply(findings, &flat, &report.sources, &config);
     let sources = &report.sources;
+    let mut findings = outcome.findings;
     findings.sort_by_cached_key(|f| (sources.locate(f.span), f.rule.clone(), f.message.clone()));
     findings.dedup();
     report.findings = findings;
+    report.suppressed = outcome.suppressed;
     report
 }

@@ -2,6 +2,9 @@
 //! and stress. Each analysis answers a local question on a small sub-network.
 
 pub mod dc;
+pub mod facts;
+
+pub use facts::*;
 
 use crate::circuit::Circuit;
 use crate::config::Config;
@@ -10,7 +13,14 @@ use crate::netlist::FlatNetlist;
 
 /// All facts about one circuit.
 #[derive(Clone, Debug, Default)]
-pub struct Analysis {}
+pub struct Analysis {
+    pub supplies: Vec<SupplyFacts>,
+    pub timers: Vec<TimerFacts>,
+    pub switches: Vec<SwitchFacts>,
+    pub loads: Vec<LoadFacts>,
+    pub resistors: Vec<ResistorFacts>,
+    pub capacitors: Vec<CapacitorFacts>,
+}
 
 /// Runs every analysis. Findings are analysis failures the user must see (non-convergence).
 pub fn analyze(

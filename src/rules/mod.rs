@@ -60,3 +60,5 @@ pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
     }
     out
 }
+
+pub mod suppress;

@@ -1,0 +1,141 @@
+//! Suppression comments and `[rules]` severity overrides, applied after every rule has run.
+//! Nothing disappears without a trace: each silenced finding is counted.
+
+use super::REGISTRY;
+use crate::config::{Config, RuleLevel};
+use crate::diagnostic::{Finding, Severity};
+use crate::netlist::{FlatNetlist, Suppression};
+use crate::source::SourceMap;
+
+/// Findings that remain, and how many were silenced.
+#[derive(Debug, Default)]
+pub struct Outcome {
+    pub findings: Vec<Finding>,
+    pub suppressed: usize,
+}
+
+/// Applies suppression comments, then the config's per-rule levels.
+pub fn apply(
+    findings: Vec<Finding>,
+    netlist: &FlatNetlist,
+    sources: &SourceMap,
+    config: &Config,
+) -> Outcome {
+    let mut outcome = Outcome::default();
+    let mut extra = Vec::new();
+    let valid: Vec<&Suppression> = netlist
+        .suppressions
+        .iter()
+        .filter(|s| is_valid(s, &mut extra))
+        .collect();
+    let mut used = vec![false; valid.len()];
+    for finding in findings {
+        let (line, end_line) = {
+            let loc = sources.locate(finding.span);
+            (loc.line, loc.end_line)
+        };
+        let hit = valid.iter().position(|s| {
+            s.file == finding.span.file
+                && (line..=end_line).contains(&s.target_line)
+                && s.rules.iter().any(|r| r.eq_ignore_ascii_case(&finding.rule))
+        });
+        match hit {
+            Some(i) => {
+                used[i] = true;
+                outcome.suppressed += 1;
+            }
+            None => outcome.findings.push(finding),
+        }
+    }
+    for (s, _) in valid.iter().zip(&used).filter(|(_, used)| !**used) {
+        extra.push(
+            Finding::new(
+                "suppression-unused",
+                Severity::Warning,
+                s.span,
+                format!(
+                    "this suppression of {} silenced nothing on line {}",
+                    s.rules.join(", "),
+                    s.target_line
+                ),
+            )
+            .with_help(
+                "remove the comment, or move it onto the element's line or the line above it",
+            ),
+        );
+    }
+    outcome.findings.extend(extra);
+    let mut kept = Vec::with_capacity(outcome.findings.len());
+    for mut finding in std::mem::take(&mut outcome.findings) {
+        match config.rules.get(&finding.rule) {
+            Some(RuleLevel::Off) => outcome.suppressed += 1,
+            Some(RuleLevel::Set(level)) => {
+                finding.severity = *level;
+                kept.push(finding);
+            }
+            None => kept.push(finding),
+        }
+    }
+    outcome.findings = kept;
+    outcome
+}
+
+/// A suppression must name known rules and give a reason; otherwise it is itself a finding.
+fn is_valid(s: &Suppression, out: &mut Vec<Finding>) -> bool {
+    let mut ok = true;
+    for rule in &s.rules {
+        if super::find(rule).is_none() {
+            let near = closest_rules(rule);
+            let mut f = Finding::new(
+                "suppression-invalid",
+                Severity::Warning,
+                s.span,
+                format!("`{rule}` is not a kickback rule, so this suppression does nothing"),
+            );
+            if !near.is_empty() {
+                f = f.with_help(format!("did you mean {}?", near.join(" or ")));
+            }
+            out.push(f);
+            ok = false;
+        }
+    }
+    if s.rules.is_empty() {
+        out.push(
+            Finding::new(
+                "suppression-invalid",
+                Severity::Warning,
+                s.span,
+                "this suppression names no rule",
+            )
+            .with_help("write `* kickback: allow <rule-id> -- <reason>`"),
+        );
+        ok = false;
+    }
+    if s.reason.as_deref().map_or(true, |r| r.trim().is_empty()) {
+        out.push(
+            Finding::new(
+                "suppression-invalid",
+                Severity::Warning,
+                s.span,
+                "a suppression needs a reason after `--`, so the next reviewer knows why",
+            )
+            .with_help(format!(
+                "write `* kickback: allow {} -- <why this is safe here>`",
+                s.rules.join(", ")
+            )),
+        );
+        ok = false;
+    }
+    ok
+}
+
+/// Rule IDs within a small edit distance of `id`, closest first.
+pub fn closest_rules(id: &str) -> Vec<&'static str> {
+    let mut scored: Vec<(usize, &'static str)> = REGISTRY
+        .iter()
+        .map(|r| (strsim::levenshtein(&id.to_ascii_lowercase(), r.id), r.id))
+        .filter(|(d, _)| *d <= 3.max(id.len() / 3))
+        .collect();
+    scored.sort();
+    scored.into_iter().take(3).map(|(_, id)| id).collect()
+}
