@@ -62,3 +62,5 @@ pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
 }
 
 pub mod suppress;
+pub mod eseries;
+pub mod units;
