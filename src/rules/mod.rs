@@ -61,6 +61,6 @@ pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
     out
 }
 
-pub mod suppress;
 pub mod eseries;
+pub mod suppress;
 pub mod units;

@@ -37,7 +37,9 @@ pub fn apply(
         let hit = valid.iter().position(|s| {
             s.file == finding.span.file
                 && (line..=end_line).contains(&s.target_line)
-                && s.rules.iter().any(|r| r.eq_ignore_ascii_case(&finding.rule))
+                && s.rules
+                    .iter()
+                    .any(|r| r.eq_ignore_ascii_case(&finding.rule))
         });
         match hit {
             Some(i) => {
