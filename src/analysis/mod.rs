@@ -1,5 +1,7 @@
 //! Electrical facts computed from the circuit: DC states, timers, switch topology, gate drive
-//! and stress. Each analysis answers a local question on a small sub-network.
+//! and stress. Each analysis answers a local question on a small sub-network
+//! ([`partition`]); [`states`] enumerates states and corners and solves them with the [`dc`]
+//! engine through the parts' behavioural stand-ins ([`stand_in`]).
 
 pub mod dc;
 pub mod facts;
