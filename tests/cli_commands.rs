@@ -564,6 +564,21 @@ fn commit(root: &Path, file: &str, content: &str) -> std::process::Output {
 }
 
 #[test]
+fn pre_commit_accepts_the_published_manifest() {
+    let Some(framework) = pre_commit() else {
+        println!("skipped: pre-commit is not installed (python3 -m pip install pre-commit)");
+        return;
+    };
+    let output = std::process::Command::new(&framework[0])
+        .args(&framework[1..])
+        .arg("validate-manifest")
+        .arg(Path::new(env!("CARGO_MANIFEST_DIR")).join(".pre-commit-hooks.yaml"))
+        .output()
+        .expect("pre-commit runs");
+    assert!(output.status.success(), "{output:?}");
+}
+
+#[test]
 fn pre_commit_hook_lets_a_clean_netlist_through() {
     let Some(framework) = pre_commit() else {
         println!("skipped: pre-commit is not installed (python3 -m pip install pre-commit)");
