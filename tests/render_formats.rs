@@ -39,12 +39,13 @@ R1 in 0 10MEG
 .end
 ";
 
-/// Span of the first occurrence of `needle` in `text`, or of the whole line it starts.
+/// Span of the first occurrence of `needle` in `text`.
 fn span_of(file: FileId, text: &str, needle: &str) -> Span {
     let start = text.find(needle).expect("needle in text");
     Span::new(file, start, start + needle.len())
 }
 
+/// Span of the whole line that the first occurrence of `needle` starts, without its break.
 fn line_of(file: FileId, text: &str, needle: &str) -> Span {
     let start = text.find(needle).expect("needle in text");
     let end = text[start..].find('\n').map_or(text.len(), |n| start + n);
