@@ -29,8 +29,10 @@ pub struct Circuit {
     pub(super) pin_offsets: Vec<usize>,
     pub(super) pins_on: Vec<(DeviceId, usize)>,
     pub(super) by_kind: BTreeMap<Kind, Vec<DeviceId>>,
-    /// Lower-case flattened path → device (the first, when a name repeats).
-    pub(super) by_path: HashMap<String, DeviceId>,
+    /// Lower-case flattened path → device (the first, when a name repeats). Built on first
+    /// use, from the element paths kept in `paths`.
+    pub(super) by_path: OnceLock<HashMap<String, DeviceId>>,
+    pub(super) paths: Vec<String>,
     /// Net `n` is node `n`; device `d` is node `nets.len() + d`. Built on first use: most
     /// checks never walk paths, and the indexes answer everything else.
     pub(super) graph: OnceLock<UnGraph<GraphNode, usize>>,
@@ -52,6 +54,9 @@ impl Circuit {
         let mut sources = PartSources::new(config);
         let mut key = String::new();
         circuit.devices.reserve(netlist.elements.len());
+        circuit.paths.reserve(netlist.elements.len());
+        // Most elements bring at most one new net; reserving avoids rehashing as the map grows.
+        circuit.net_names.reserve(netlist.elements.len() + 8);
         for (index, element) in netlist.elements.iter().enumerate() {
             let resolved = resolve(element, &netlist.models, &mut sources);
             if let Some(problem) = &resolved.pin_problem {
@@ -67,10 +72,7 @@ impl Circuit {
                 })
                 .collect();
             let id = circuit.devices.len();
-            circuit
-                .by_path
-                .entry(element.path.to_ascii_lowercase())
-                .or_insert(id);
+            circuit.paths.push(element.path.clone());
             circuit.by_kind.entry(resolved.kind).or_default().push(id);
             circuit.devices.push(Device {
                 element: index,
@@ -146,6 +148,16 @@ impl Circuit {
         }
         self.pin_offsets = counts;
         self.pins_on = pins_on;
+    }
+
+    pub(super) fn path_index(&self) -> &HashMap<String, DeviceId> {
+        self.by_path.get_or_init(|| {
+            let mut index = HashMap::with_capacity(self.paths.len());
+            for (id, path) in self.paths.iter().enumerate() {
+                index.entry(path.to_ascii_lowercase()).or_insert(id);
+            }
+            index
+        })
     }
 
     /// The bipartite petgraph graph: nets are nodes `0..nets.len()`, device `d` is node

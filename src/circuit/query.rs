@@ -244,6 +244,6 @@ impl Circuit {
 
     /// The device with this flattened path (`XDRV.M1`), case-insensitive.
     pub fn device_named(&self, path: &str) -> Option<DeviceId> {
-        self.by_path.get(&path.to_ascii_lowercase()).copied()
+        self.path_index().get(&path.to_ascii_lowercase()).copied()
     }
 }
