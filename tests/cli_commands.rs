@@ -391,7 +391,7 @@ fn init_writes_a_starter_once() {
         .stdout(predicate::str::contains("kickback.toml"));
     let target = dir.path().join("kickback.toml");
     let written = fs::read_to_string(&target).expect("written");
-    assert_eq!(written, kickback::app::init::STARTER);
+    assert_eq!(written, kickback::config::starter_toml());
     assert!(kickback::config::Config::load(&target).is_ok());
     // Only the file itself is left: no temporary file.
     let entries: Vec<_> = fs::read_dir(dir.path()).expect("dir").collect();

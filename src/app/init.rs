@@ -6,46 +6,8 @@ use std::fs::{self, OpenOptions};
 use std::io::{self, Write};
 use std::path::{Path, PathBuf};
 
-/// Every section a project is likely to need, commented out except the reference nets, so the
-/// file is valid as written and checks behave exactly as with no file at all.
-pub const STARTER: &str = r#"# kickback.toml: settings for checking the netlists in this folder and below.
-# kickback looks for this file beside each netlist and then in parent folders.
-# Values are in SI base units; a string takes SPICE suffixes ("2.2m", "10k", "1meg").
-
-[analysis]
-# Nets that are the reference (ground), compared case-insensitively.
-ground = ["0", "gnd"]
-
-[rules]
-# Severity per rule ID: "error", "warning", "note" or "off". `kickback rules` lists them.
-# pwm-audible = "off"
-# resistor-overpower = "error"
-
-# Supply corners of an independent source, by element name. A battery's end of life is a
-# corner worth checking.
-# [supply.VBAT]
-# min = 7.0
-# max = 9.6
-
-# What a model or subcircuit is, and its ratings. The name may be a glob ("IRF*"), matched
-# case-insensitively.
-# [parts.PUMP12]
-# kind = "dc-motor"            # timer-555, nmos, npn, diode, relay-coil, solenoid, ...
-# rated_voltage = 12
-# stall_current = "1.8"
-# inductance = "2.2m"
-
-# Pin roles in port order, where the port names and the usual order do not say.
-# [parts.QSW]
-# kind = "nmos"
-# pins = ["d", "g", "s"]
-# vgs_th_max = 4
-# rds_on = "0.05"
-
-# One placed part, by its instance path.
-# [elements."XCH2.XM"]
-# rated_voltage = 6
-"#;
+/// The starter text lives with the schema it must satisfy.
+pub use crate::config::starter_toml;
 
 #[derive(Debug, thiserror::Error)]
 pub enum InitError {
@@ -66,7 +28,8 @@ pub fn write_starter(dir: &Path) -> Result<PathBuf, InitError> {
         path: target.clone(),
         source,
     };
-    let placed = write_new(&temp, STARTER).and_then(|()| place_without_replacing(&temp, &target));
+    let placed =
+        write_new(&temp, starter_toml()).and_then(|()| place_without_replacing(&temp, &target));
     let _ = fs::remove_file(&temp);
     match placed {
         Ok(()) => Ok(target),
@@ -101,10 +64,9 @@ mod tests {
     use super::*;
 
     #[test]
-    fn starter_is_valid_toml_with_only_the_reference_nets_active() {
-        let table: toml::Table = toml::from_str(STARTER).expect("starter parses");
-        let keys: Vec<&String> = table.keys().collect();
-        assert_eq!(keys, ["analysis", "rules"]);
-        assert!(table["rules"].as_table().is_some_and(|t| t.is_empty()));
+    fn starter_passes_the_schema() {
+        let config = crate::config::Config::parse(starter_toml(), Path::new("kickback.toml"))
+            .expect("starter is a valid configuration");
+        assert!(config.rules.is_empty());
     }
 }
