@@ -166,3 +166,41 @@ fn diodes_in_series_and_antiparallel() {
         }
     }
 }
+
+#[test]
+fn fallbacks_rescue_a_starved_iteration_limit() {
+    // A diode hard-driven from 5 V through 0.1 Ω needs several plain Newton iterations from
+    // a zero start. With fewer allowed per attempt, gmin stepping and then source stepping must
+    // still reach the Lambert-W solution.
+    use kickback::analysis::dc::Fallback;
+    let build = || {
+        let mut net = Network::new();
+        let gnd = net.ground();
+        let (top, anode) = (net.add_node("top"), net.add_node("anode"));
+        net.add_voltage_source(top, gnd, 5.0);
+        let r = net.add_resistor(top, anode, 0.1);
+        net.add_diode(anode, gnd, DiodeParams::default());
+        (net, r)
+    };
+    let vt = SolveOptions::default().thermal_voltage();
+    let want = series_current(5.0, 0.1, 1e-14, vt);
+    for (per_attempt, fallback) in [
+        (100, Fallback::None),
+        (8, Fallback::GminStepping),
+        (5, Fallback::SourceStepping),
+    ] {
+        let (net, r) = build();
+        let options = SolveOptions {
+            max_iterations: per_attempt,
+            ..SolveOptions::default()
+        };
+        let op = solve(&net, &options).expect("solves");
+        assert_eq!(
+            op.fallback(),
+            fallback,
+            "{per_attempt} iterations per attempt"
+        );
+        assert!(rel_err(op.current(r).unwrap_or(0.0), want) < 1e-6);
+        assert!(op.iterations() <= options.max_total_iterations);
+    }
+}

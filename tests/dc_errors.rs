@@ -215,7 +215,7 @@ fn arbitrary_element() -> impl Strategy<Value = (u8, usize, usize, usize, f64, f
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 96, ..ProptestConfig::default() })]
+    #![proptest_config(ProptestConfig { cases: 96, failure_persistence: None, ..ProptestConfig::default() })]
 
     /// Any network of any values returns Ok or Err without panicking or hanging.
     #[test]

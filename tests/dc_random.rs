@@ -123,7 +123,7 @@ fn engine(nodes: usize, parts: &[Part]) -> Vec<f64> {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 128, ..ProptestConfig::default() })]
+    #![proptest_config(ProptestConfig { cases: 128, failure_persistence: None, ..ProptestConfig::default() })]
 
     #[test]
     fn random_resistor_networks_agree_with_faer((nodes, parts) in network()) {

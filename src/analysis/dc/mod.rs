@@ -25,6 +25,7 @@
 //! evaluated at the new point. When plain Newton fails, gmin stepping and then source
 //! stepping are tried; all of it is bounded by an iteration budget, so a solve always ends.
 
+mod balance;
 mod linear;
 mod mna;
 mod models;
