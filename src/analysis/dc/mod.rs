@@ -36,6 +36,9 @@ mod result;
 mod thevenin;
 mod topology;
 
+#[cfg(test)]
+mod tests;
+
 pub use models::MosRegion;
 pub use network::{
     BjtParams, BjtPolarity, DiodeParams, ElementId, MosParams, MosPolarity, Network, Node,
