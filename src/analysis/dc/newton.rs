@@ -87,16 +87,15 @@ impl<'a> Solver<'a> {
         }
     }
 
-    /// Plain Newton, then gmin stepping, then source stepping.
+    /// Plain Newton, then gmin stepping, then source stepping. A singular matrix on the way
+    /// does not end the attempt at once (devices may pass through states that isolate a
+    /// node); the first failure is what gets reported when every attempt fails.
     pub(crate) fn solve(mut self) -> Outcome {
         let zero = DVector::zeros(self.layout.size);
         let zero_lin = vec![[0.0, 0.0]; self.net.elements.len()];
         let plain = self.newton(&zero, &zero_lin, self.settings(1.0, 0.0));
         let first_failure = match plain {
             Ok(done) => return self.finish(Ok((done, Fallback::None))),
-            Err(Failure::Singular(unknowns)) => {
-                return self.finish(Err(Failure::Singular(unknowns)))
-            }
             Err(failure) => failure,
         };
         if let Some(done) = self.gmin_stepping(&zero, &zero_lin) {
