@@ -76,12 +76,15 @@ fn rule_fixtures() {
     for (rule, path) in fixture_files() {
         let (text, rules) = render(&path);
         let stem = path.file_stem().unwrap().to_string_lossy().to_string();
-        let fired = rules.iter().any(|r| *r == rule);
+        let fired = rules.contains(&rule);
         if stem.starts_with("fires") && !fired {
             problems.push(format!("{}: expected `{rule}` to fire", path.display()));
         }
         if stem.starts_with("quiet") && fired {
-            problems.push(format!("{}: expected `{rule}` to stay quiet", path.display()));
+            problems.push(format!(
+                "{}: expected `{rule}` to stay quiet",
+                path.display()
+            ));
         }
         insta::with_settings!({
             snapshot_path => "snapshots/rules",

@@ -5,6 +5,12 @@
 
 pub mod dc;
 pub mod facts;
+pub mod partition;
+pub mod stand_in;
+pub mod states;
+pub mod stress;
+pub mod switching;
+pub mod timer;
 
 pub use facts::*;
 
@@ -30,6 +36,34 @@ pub fn analyze(
     circuit: &Circuit,
     config: &Config,
 ) -> (Analysis, Vec<Finding>) {
-    let _ = (netlist, circuit, config);
-    (Analysis::default(), Vec::new())
+    let cx = states::Context::new(netlist, circuit, config);
+    let mut findings = Vec::new();
+    let supplies = cx
+        .supplies
+        .iter()
+        .map(|s| SupplyFacts {
+            device: s.device,
+            nominal: s.nominal,
+            min: s.min,
+            max: s.max,
+            source: s.source.clone(),
+        })
+        .collect();
+    let (timers, f) = timer::analyze(&cx);
+    findings.extend(f);
+    let (switches, loads, f) = switching::analyze(&cx, &timers);
+    findings.extend(f);
+    let (resistors, capacitors, f) = stress::analyze(&cx);
+    findings.extend(f);
+    (
+        Analysis {
+            supplies,
+            timers,
+            switches,
+            loads,
+            resistors,
+            capacitors,
+        },
+        findings,
+    )
 }

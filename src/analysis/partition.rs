@@ -15,7 +15,10 @@ pub enum Fixed {
     Ground,
     /// The device is an independent voltage source from this net to ground; `sign` is +1 when
     /// the net is its positive terminal, −1 when it is the negative one.
-    Source { device: DeviceId, sign: f64 },
+    Source {
+        device: DeviceId,
+        sign: f64,
+    },
 }
 
 /// One sub-network: the nets free to move and every device that touches them.

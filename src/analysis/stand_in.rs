@@ -56,7 +56,8 @@ pub fn stamp(
         return out;
     };
     let data = &device.data;
-    let mut pin = |role: PinRole, network: &mut Network| device.pin(role).map(|n| node_of(n, network));
+    let mut pin =
+        |role: PinRole, network: &mut Network| device.pin(role).map(|n| node_of(n, network));
     match device.kind {
         Kind::Resistor => {
             if let (Some(a), Some(b), Some(r)) = (
@@ -92,7 +93,8 @@ pub fn stamp(
             }
         }
         Kind::Diode | Kind::Schottky | Kind::Zener | Kind::Tvs => {
-            if let (Some(a), Some(k)) = (pin(PinRole::Anode, network), pin(PinRole::Cathode, network))
+            if let (Some(a), Some(k)) =
+                (pin(PinRole::Anode, network), pin(PinRole::Cathode, network))
             {
                 out.main = Some(network.add_diode(a, k, diode_params(device.kind, data)));
             }
@@ -140,9 +142,11 @@ pub fn stamp(
                 .get(device.element)
                 .and_then(|e| e.source.as_ref())
                 .and_then(|s| s.dc);
-            if let (Some(p), Some(n), Some(i)) =
-                (pin(PinRole::Pos, network), pin(PinRole::Neg, network), value)
-            {
+            if let (Some(p), Some(n), Some(i)) = (
+                pin(PinRole::Pos, network),
+                pin(PinRole::Neg, network),
+                value,
+            ) {
                 out.main = Some(network.add_current_source(p, n, i));
             }
         }

@@ -149,7 +149,10 @@ impl<'a> Context<'a> {
         if let Some(s) = self.supply(device) {
             return Some(s.at(state.corner));
         }
-        let element = self.netlist.elements.get(self.circuit.devices.get(device)?.element)?;
+        let element = self
+            .netlist
+            .elements
+            .get(self.circuit.devices.get(device)?.element)?;
         let spec = element.source.as_ref()?;
         match spec.levels() {
             Some((lo, hi)) if is_switching(&spec.wave) => {
@@ -170,7 +173,10 @@ impl<'a> Context<'a> {
         let mut inputs = Vec::new();
         for &device in &component.devices {
             let d = &self.circuit.devices[device];
-            if matches!(d.kind, Kind::Timer555 | Kind::Timer555Cmos | Kind::LogicOutput) {
+            if matches!(
+                d.kind,
+                Kind::Timer555 | Kind::Timer555Cmos | Kind::LogicOutput
+            ) {
                 inputs.push(device);
             }
             for pin in &d.pins {
@@ -381,7 +387,13 @@ impl Solved {
     }
 
     /// Voltage between two pins of a device.
-    pub fn pin_voltage(&self, circuit: &Circuit, device: DeviceId, a: PinRole, b: PinRole) -> Option<f64> {
+    pub fn pin_voltage(
+        &self,
+        circuit: &Circuit,
+        device: DeviceId,
+        a: PinRole,
+        b: PinRole,
+    ) -> Option<f64> {
         let d = circuit.devices.get(device)?;
         Some(self.voltage(d.pin(a)?)? - self.voltage(d.pin(b)?)?)
     }
@@ -401,7 +413,9 @@ fn supply_corners(netlist: &FlatNetlist, circuit: &Circuit, config: &Config) -> 
         let Some(element) = netlist.elements.get(device.element) else {
             continue;
         };
-        let Some(spec) = &element.source else { continue };
+        let Some(spec) = &element.source else {
+            continue;
+        };
         if is_switching(&spec.wave) {
             continue;
         }

@@ -113,7 +113,7 @@ fn is_valid(s: &Suppression, out: &mut Vec<Finding>) -> bool {
         );
         ok = false;
     }
-    if s.reason.as_deref().map_or(true, |r| r.trim().is_empty()) {
+    if s.reason.as_deref().is_none_or(|r| r.trim().is_empty()) {
         out.push(
             Finding::new(
                 "suppression-invalid",

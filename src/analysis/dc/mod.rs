@@ -1,1 +1,110 @@
 //! The DC engine: modified nodal analysis with Newton–Raphson for nonlinear devices.
+//!
+//! Callers build a small [`Network`] of primitive elements — resistors, independent and
+//! controlled sources, diodes, square-law MOSFETs, Ebers–Moll BJTs, current-limited resistors
+//! and fixed switches — and ask [`solve`] for its [`OperatingPoint`]. The engine knows nothing
+//! of netlists or the circuit graph.
+//!
+//! ```
+//! use kickback::analysis::dc::{solve, Network, SolveOptions};
+//!
+//! let mut net = Network::new();
+//! let (top, mid) = (net.add_node("vcc"), net.add_node("mid"));
+//! let gnd = net.ground();
+//! net.add_voltage_source(top, gnd, 12.0);
+//! net.add_resistor(top, mid, 10e3);
+//! net.add_resistor(mid, gnd, 20e3);
+//! let op = solve(&net, &SolveOptions::default()).expect("a divider solves");
+//! assert!((op.voltage(mid).unwrap_or(0.0) - 8.0).abs() < 1e-9);
+//! ```
+//!
+//! How it solves: the structure is checked first (element values, nodes without a DC path,
+//! loops of ideal voltage sources), then Newton–Raphson runs from a zero start with junction
+//! limiting and gmin across every junction and channel. Convergence needs both a small
+//! iterate step (`reltol`, `vntol`, `abstol`) and a small KCL residual with the devices
+//! evaluated at the new point. When plain Newton fails, gmin stepping and then source
+//! stepping are tried; all of it is bounded by an iteration budget, so a solve always ends.
+
+mod linear;
+mod mna;
+mod models;
+mod network;
+mod newton;
+mod options;
+mod result;
+mod thevenin;
+mod topology;
+
+pub use models::MosRegion;
+pub use network::{
+    BjtParams, BjtPolarity, DiodeParams, ElementId, MosParams, MosPolarity, Network, Node,
+};
+pub use newton::Fallback;
+pub use options::{DcError, SolveOptions};
+pub use result::{BjtRegion, OperatingPoint};
+pub use thevenin::{thevenin, Thevenin};
+
+use mna::Layout;
+use newton::{Converged, Failure, Solver};
+
+/// Finds the DC operating point of `network`.
+///
+/// # Errors
+/// [`DcError::InvalidElement`] for unusable values, [`DcError::Singular`] for floating nodes,
+/// voltage-source loops or a degenerate matrix, [`DcError::NoConvergence`] when Newton and its
+/// fallbacks all fail within the iteration budget.
+pub fn solve(network: &Network, options: &SolveOptions) -> Result<OperatingPoint, DcError> {
+    let (layout, converged, iterations, fallback) = solve_raw(network, options)?;
+    Ok(OperatingPoint::build(
+        network,
+        &layout,
+        &converged.x,
+        options.thermal_voltage(),
+        options.gmin,
+        iterations,
+        fallback,
+    ))
+}
+
+/// The converged solution vector with the layout that gives it meaning.
+pub(crate) fn solve_raw(
+    network: &Network,
+    options: &SolveOptions,
+) -> Result<(Layout, Converged, usize, Fallback), DcError> {
+    topology::validate(network)?;
+    topology::check_structure(network)?;
+    let layout = Layout::new(network);
+    let outcome = Solver::new(network, &layout, options).solve();
+    match outcome.result {
+        Ok((converged, fallback)) => Ok((layout, converged, outcome.iterations, fallback)),
+        Err(Failure::Singular(unknowns)) => Err(topology::singular(names(&layout, &unknowns))),
+        Err(Failure::Diverged(unknowns)) => Err(DcError::NoConvergence {
+            nodes: names_in_order(&layout, &unknowns),
+            iterations: outcome.iterations,
+        }),
+    }
+}
+
+/// Net names for a set of unknowns.
+fn names(layout: &Layout, unknowns: &[usize]) -> Vec<String> {
+    unknowns
+        .iter()
+        .filter_map(|&k| layout.labels.get(k))
+        .flatten()
+        .cloned()
+        .collect()
+}
+
+/// Net names for unknowns in the given order (first occurrence kept), at most ten.
+fn names_in_order(layout: &Layout, unknowns: &[usize]) -> Vec<String> {
+    let mut out: Vec<String> = Vec::new();
+    for name in names(layout, unknowns) {
+        if !out.contains(&name) {
+            out.push(name);
+        }
+        if out.len() == 10 {
+            break;
+        }
+    }
+    out
+}

@@ -1,0 +1,296 @@
+//! Newton–Raphson on the MNA system, with junction limiting, a two-sided convergence test
+//! (iterate step and KCL residual), and the fallbacks that rescue hard starts: gmin stepping,
+//! then source stepping. Every loop is bounded by the iteration budget.
+
+use nalgebra::DVector;
+
+use super::linear::{solve_linear, LinearFailure};
+use super::mna::{assemble, device_voltages, DeviceVoltages, Layout, StepSettings};
+use super::models;
+use super::network::{Element, Network};
+use super::options::SolveOptions;
+
+/// How the accepted solution was reached.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash)]
+pub enum Fallback {
+    /// Plain Newton–Raphson from a zero start converged.
+    None,
+    /// A shunt conductance on every node was stepped down to zero.
+    GminStepping,
+    /// The independent sources were ramped up from zero.
+    SourceStepping,
+}
+
+/// A converged iterate and the device voltages its last linearisation used.
+#[derive(Clone, Debug)]
+pub(crate) struct Converged {
+    pub x: DVector<f64>,
+    pub lin: DeviceVoltages,
+}
+
+/// Why one Newton run stopped without converging.
+#[derive(Clone, Debug)]
+pub(crate) enum Failure {
+    /// The linear system had degenerate unknowns (indices into the layout).
+    Singular(Vec<usize>),
+    /// Iterations ran out or the iterate blew up; the unknowns still moving, largest first.
+    Diverged(Vec<usize>),
+}
+
+/// Outcome of a full solve with fallbacks.
+pub(crate) struct Outcome {
+    pub result: Result<(Converged, Fallback), Failure>,
+    pub iterations: usize,
+}
+
+pub(crate) struct Solver<'a> {
+    pub net: &'a Network,
+    pub layout: &'a Layout,
+    pub options: &'a SolveOptions,
+    pub vt: f64,
+    /// Newton iterations left over all attempts.
+    budget: usize,
+    used: usize,
+}
+
+/// Smallest shunt tried first in gmin stepping, in siemens, and the most it may grow to when
+/// even that start fails.
+const GMIN_START: f64 = 1e-3;
+const GMIN_CEILING: f64 = 1.0;
+/// Bounds on the number of stepping stages, beyond the iteration budget.
+const MAX_STAGES: usize = 200;
+
+impl<'a> Solver<'a> {
+    pub(crate) fn new(net: &'a Network, layout: &'a Layout, options: &'a SolveOptions) -> Self {
+        Self {
+            net,
+            layout,
+            options,
+            vt: options.thermal_voltage(),
+            budget: options.max_total_iterations,
+            used: 0,
+        }
+    }
+
+    fn settings(&self, source_scale: f64, shunt: f64) -> StepSettings {
+        StepSettings {
+            source_scale,
+            shunt,
+            gmin: self.options.gmin,
+            vt: self.vt,
+        }
+    }
+
+    /// Plain Newton, then gmin stepping, then source stepping.
+    pub(crate) fn solve(mut self) -> Outcome {
+        let zero = DVector::zeros(self.layout.size);
+        let zero_lin = vec![[0.0, 0.0]; self.net.elements.len()];
+        let plain = self.newton(&zero, &zero_lin, self.settings(1.0, 0.0));
+        let first_failure = match plain {
+            Ok(done) => return self.finish(Ok((done, Fallback::None))),
+            Err(Failure::Singular(unknowns)) => {
+                return self.finish(Err(Failure::Singular(unknowns)))
+            }
+            Err(failure) => failure,
+        };
+        if let Some(done) = self.gmin_stepping(&zero, &zero_lin) {
+            return self.finish(Ok((done, Fallback::GminStepping)));
+        }
+        if let Some(done) = self.source_stepping(&zero, &zero_lin) {
+            return self.finish(Ok((done, Fallback::SourceStepping)));
+        }
+        self.finish(Err(first_failure))
+    }
+
+    fn finish(&self, result: Result<(Converged, Fallback), Failure>) -> Outcome {
+        Outcome {
+            result,
+            iterations: self.used,
+        }
+    }
+
+    /// Shunts every node with a conductance that starts large (making the system nearly
+    /// linear) and shrinks it a decade at a time, halving the step in log space on failure.
+    fn gmin_stepping(&mut self, x0: &DVector<f64>, lin0: &DeviceVoltages) -> Option<Converged> {
+        let mut shunt = GMIN_START;
+        let mut good: Option<(Converged, f64)> = None;
+        let mut factor: f64 = 10.0;
+        for _ in 0..MAX_STAGES {
+            if self.budget == 0 {
+                return None;
+            }
+            let (x, lin) = good.as_ref().map_or((x0, lin0), |(c, _)| (&c.x, &c.lin));
+            match self.newton(x, lin, self.settings(1.0, shunt)) {
+                Ok(done) => {
+                    if shunt == 0.0 {
+                        return Some(done);
+                    }
+                    let next = shunt / factor;
+                    good = Some((done, shunt));
+                    shunt = if next < self.options.gmin { 0.0 } else { next };
+                }
+                Err(_) => match &good {
+                    None if shunt < GMIN_CEILING => shunt *= 10.0,
+                    None => return None,
+                    Some((_, last)) => {
+                        factor = factor.sqrt();
+                        if factor < 1.001 {
+                            return None;
+                        }
+                        shunt = last / factor;
+                    }
+                },
+            }
+        }
+        None
+    }
+
+    /// Ramps every independent source from 0 to its value, growing the step after each
+    /// success and cutting it after each failure.
+    fn source_stepping(&mut self, x0: &DVector<f64>, lin0: &DeviceVoltages) -> Option<Converged> {
+        let mut good = self.newton(x0, lin0, self.settings(0.0, 0.0)).ok()?;
+        let mut scale: f64 = 0.0;
+        let mut step: f64 = 0.1;
+        for _ in 0..MAX_STAGES {
+            if self.budget == 0 {
+                return None;
+            }
+            let target = (scale + step).min(1.0);
+            match self.newton(&good.x, &good.lin, self.settings(target, 0.0)) {
+                Ok(done) => {
+                    if target >= 1.0 {
+                        return Some(done);
+                    }
+                    good = done;
+                    scale = target;
+                    step = (step * 2.0).min(0.5);
+                }
+                Err(_) => {
+                    step /= 4.0;
+                    if step < 1e-6 {
+                        return None;
+                    }
+                }
+            }
+        }
+        None
+    }
+
+    /// One Newton–Raphson run from `x0`, linearised first around `lin0`.
+    pub(crate) fn newton(
+        &mut self,
+        x0: &DVector<f64>,
+        lin0: &DeviceVoltages,
+        step: StepSettings,
+    ) -> Result<Converged, Failure> {
+        let mut x = x0.clone();
+        let mut lin = lin0.clone();
+        let mut moving = Vec::new();
+        for _ in 0..self.options.max_iterations {
+            if self.budget == 0 {
+                break;
+            }
+            self.budget -= 1;
+            self.used += 1;
+            let raw = device_voltages(self.net, self.layout, &x);
+            let limited = self.limit(&raw, &mut lin);
+            let sys = assemble(self.net, self.layout, &lin, step);
+            let next = match solve_linear(&sys.a, &sys.b) {
+                Ok(next) => next,
+                Err(LinearFailure::Degenerate(unknowns)) => {
+                    return Err(Failure::Singular(unknowns))
+                }
+                Err(LinearFailure::NotFinite) => return Err(Failure::Diverged(moving)),
+            };
+            moving = self.moving_unknowns(&x, &next);
+            x = next;
+            if !limited && moving.is_empty() && self.residual_small(&x, step) {
+                let lin = device_voltages(self.net, self.layout, &x);
+                return Ok(Converged { x, lin });
+            }
+        }
+        Err(Failure::Diverged(moving))
+    }
+
+    /// Replaces `lin` by the limited device voltages for the new iterate; true when any
+    /// limit acted (the step is then not trusted for convergence).
+    fn limit(&self, raw: &DeviceVoltages, lin: &mut DeviceVoltages) -> bool {
+        let mut any = false;
+        for ((element, new), old) in self.net.elements.iter().zip(raw).zip(lin.iter_mut()) {
+            let (limited, hit) = match element {
+                Element::Diode { params, .. } => {
+                    let (v, hit) = models::limit_diode(new[0], old[0], params, self.vt);
+                    ([v, 0.0], hit)
+                }
+                Element::Bjt { params, .. } => {
+                    let sign = models::bjt_sign(params);
+                    let nvt = params.n * self.vt;
+                    let crit = models::critical_voltage(params.is, nvt);
+                    let (be, hit_be) =
+                        models::limit_junction(sign * new[0], sign * old[0], nvt, crit);
+                    let (bc, hit_bc) =
+                        models::limit_junction(sign * new[1], sign * old[1], nvt, crit);
+                    ([sign * be, sign * bc], hit_be || hit_bc)
+                }
+                Element::Mosfet { params, .. } => {
+                    let ((gs, ds), hit) =
+                        models::limit_mosfet((new[0], new[1]), (old[0], old[1]), params);
+                    ([gs, ds], hit)
+                }
+                _ => (*new, false),
+            };
+            *old = limited;
+            any |= hit;
+        }
+        any
+    }
+
+    /// Unknowns whose change exceeds `reltol·max(|old|, |new|)` plus the absolute tolerance
+    /// (volts for nodes, amperes for branch currents), largest change first.
+    fn moving_unknowns(&self, old: &DVector<f64>, new: &DVector<f64>) -> Vec<usize> {
+        let o = self.options;
+        let mut moving: Vec<(usize, f64)> = old
+            .iter()
+            .zip(new.iter())
+            .enumerate()
+            .filter_map(|(k, (&a, &b))| {
+                let absolute = if k < self.layout.voltage_unknowns {
+                    o.vntol
+                } else {
+                    o.abstol
+                };
+                let delta = (b - a).abs();
+                (delta > o.reltol * a.abs().max(b.abs()) + absolute).then_some((k, delta))
+            })
+            .collect();
+        moving.sort_by(|a, b| b.1.total_cmp(&a.1));
+        moving.into_iter().map(|(k, _)| k).collect()
+    }
+
+    /// KCL holds at `x` with the devices evaluated exactly there: each node's residual
+    /// current is within `reltol` of the currents meeting at it plus `abstol` (and each
+    /// branch equation within `vntol`).
+    fn residual_small(&self, x: &DVector<f64>, step: StepSettings) -> bool {
+        let exact = device_voltages(self.net, self.layout, x);
+        let sys = assemble(self.net, self.layout, &exact, step);
+        let o = self.options;
+        sys.a
+            .row_iter()
+            .zip(sys.b.iter())
+            .enumerate()
+            .all(|(k, (row, &rhs))| {
+                let (sum, scale) = row
+                    .iter()
+                    .zip(x.iter())
+                    .fold((0.0, rhs.abs()), |(s, m), (a, v)| {
+                        (s + a * v, m + (a * v).abs())
+                    });
+                let absolute = if k < self.layout.voltage_unknowns {
+                    o.abstol
+                } else {
+                    o.vntol
+                };
+                (sum - rhs).abs() <= o.reltol * scale + absolute
+            })
+    }
+}
