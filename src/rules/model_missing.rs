@@ -155,7 +155,7 @@ fn similar_names(cx: &RuleContext<'_>, name: &str) -> Vec<String> {
         .chain(cx.config.parts.iter().map(|(p, _)| p.clone()))
         .filter(|candidate| !candidate.contains(['*', '?', '[']))
         .map(|candidate| {
-            let distance = strsim::levenshtein(&lower, &candidate.to_ascii_lowercase());
+            let distance = strsim::osa_distance(&lower, &candidate.to_ascii_lowercase());
             (distance, candidate)
         })
         .filter(|(d, _)| *d > 0 && *d <= limit)

@@ -171,7 +171,7 @@ fn closest(
         if other.chars().count().abs_diff(length) > limit {
             continue;
         }
-        let distance = strsim::levenshtein(&lower, &other);
+        let distance = strsim::osa_distance(&lower, &other);
         if distance == 0 || distance > limit {
             continue;
         }

@@ -37,6 +37,69 @@ fn joins(kind: Kind, letter: char, role: PinRole) -> bool {
     }
 }
 
+/// Nets joined by DC-conducting pins. With `without_gate_networks`, passive parts on a gate or
+/// base net do not join: a pull-down from the gate to a switch's source is not a shared ground.
+fn sections(cx: &RuleContext<'_>, without_gate_networks: bool) -> UnionFind<usize> {
+    let mut sets = UnionFind::<usize>::new(cx.circuit.nets.len());
+    let mut gate_net = vec![
+        false;
+        if without_gate_networks {
+            cx.circuit.nets.len()
+        } else {
+            0
+        }
+    ];
+    for device in cx
+        .circuit
+        .devices
+        .iter()
+        .filter(|d| d.kind.is_switch_transistor())
+    {
+        for pin in device
+            .pins
+            .iter()
+            .filter(|p| matches!(p.role, PinRole::Gate | PinRole::Base))
+        {
+            if let Some(flag) = gate_net.get_mut(pin.net) {
+                *flag = true;
+            }
+        }
+    }
+    for device in &cx.circuit.devices {
+        let passive = matches!(
+            device.kind,
+            Kind::Resistor | Kind::Potentiometer | Kind::Inductor
+        ) || device.kind.is_diode_like();
+        if passive
+            && device
+                .pins
+                .iter()
+                .any(|p| gate_net.get(p.net).copied().unwrap_or(false))
+        {
+            continue;
+        }
+        let letter = cx
+            .netlist
+            .elements
+            .get(device.element)
+            .map_or('?', |e| e.letter);
+        let mut first = None;
+        for pin in device
+            .pins
+            .iter()
+            .filter(|p| joins(device.kind, letter, p.role))
+        {
+            match first {
+                None => first = Some(pin.net),
+                Some(f) => {
+                    sets.union(f, pin.net);
+                }
+            }
+        }
+    }
+    sets
+}
+
 #[derive(Default)]
 struct Section {
     nets: Vec<NetId>,
@@ -58,27 +121,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         no_reference(cx, out);
         return;
     };
-    let mut sets = UnionFind::<usize>::new(count);
-    for device in &cx.circuit.devices {
-        let letter = cx
-            .netlist
-            .elements
-            .get(device.element)
-            .map_or('?', |e| e.letter);
-        let mut first = None;
-        for pin in device
-            .pins
-            .iter()
-            .filter(|p| joins(device.kind, letter, p.role))
-        {
-            match first {
-                None => first = Some(pin.net),
-                Some(f) => {
-                    sets.union(f, pin.net);
-                }
-            }
-        }
-    }
+    let sets = sections(cx, false);
     let referenced: HashSet<usize> = cx
         .circuit
         .nets
@@ -193,11 +236,17 @@ fn floating(cx: &RuleContext<'_>, section: &Section, ground: &str) -> Option<Fin
     let nets = net_list(cx, section);
     let blockers: Vec<String> = section.blockers.iter().map(|&b| shown(cx, b)).collect();
     let through = if blockers.is_empty() {
-        "nothing connects them to the rest of the circuit".to_string()
+        "nothing else connects to it".to_string()
     } else {
         format!(
-            "they reach the rest only through {}, which pass no DC",
-            blockers.join(", ")
+            "{} the rest only through {}, which pass{} no DC",
+            if section.net_count == 1 {
+                "it reaches"
+            } else {
+                "they reach"
+            },
+            blockers.join(", "),
+            if blockers.len() == 1 { "es" } else { "" }
         )
     };
     let anchor = section
@@ -342,6 +391,7 @@ fn mismatched_references(
         return;
     }
     let tracer = Tracer::new(cx);
+    let apart = sections(cx, true);
     for (id, device) in cx.circuit.devices.iter().enumerate() {
         if !device.kind.is_switch_transistor() {
             continue;
@@ -355,12 +405,11 @@ fn mismatched_references(
         let Some(reference) = driver_reference(cx, driver, driven) else {
             continue;
         };
-        let (a, b) = (sets.find(source), sets.find(reference));
-        if a == b {
+        if apart.find(source) == apart.find(reference) {
             continue;
         }
-        explained.insert(a);
-        explained.insert(b);
+        explained.insert(sets.find(source));
+        explained.insert(sets.find(reference));
         let (Some((_, element)), Some((_, driver_element))) =
             (device_element(cx, id), device_element(cx, driver))
         else {
@@ -380,9 +429,9 @@ fn mismatched_references(
                 element,
                 format!(
                     "{}'s {terminal} is on `{s_name}`, but its {drive} driver {} is referenced \
-                     to `{r_name}`, and no DC path joins the two: the supplies' negatives were \
-                     never connected, so the {drive} voltage is undefined and the switch may \
-                     never turn on, or turn on at random",
+                     to `{r_name}`, and nothing outside the {drive} network joins the two: the \
+                     supplies' negatives were never connected, so the drive has no return path \
+                     and the switch may never turn on, or turn on at random",
                     element.path, driver_element.path
                 ),
             )
