@@ -364,5 +364,6 @@ pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
 }
 
 pub mod eseries;
+pub mod hygiene_util;
 pub mod suppress;
 pub mod units;

@@ -25,6 +25,7 @@
 //! evaluated at the new point. When plain Newton fails, gmin stepping and then source
 //! stepping are tried; all of it is bounded by an iteration budget, so a solve always ends.
 
+mod balance;
 mod linear;
 mod mna;
 mod models;
@@ -34,6 +35,9 @@ mod options;
 mod result;
 mod thevenin;
 mod topology;
+
+#[cfg(test)]
+mod tests;
 
 pub use models::MosRegion;
 pub use network::{
@@ -95,10 +99,21 @@ fn names(layout: &Layout, unknowns: &[usize]) -> Vec<String> {
         .collect()
 }
 
-/// Net names for unknowns in the given order (first occurrence kept), at most ten.
+/// Net names for unknowns in the given order (first occurrence kept), at most ten. Node
+/// voltages are named in preference to branch currents, which only point at their nodes.
 fn names_in_order(layout: &Layout, unknowns: &[usize]) -> Vec<String> {
+    let voltages: Vec<usize> = unknowns
+        .iter()
+        .copied()
+        .filter(|&k| k < layout.voltage_unknowns)
+        .collect();
+    let chosen = if voltages.is_empty() {
+        unknowns
+    } else {
+        &voltages
+    };
     let mut out: Vec<String> = Vec::new();
-    for name in names(layout, unknowns) {
+    for name in names(layout, chosen) {
         if !out.contains(&name) {
             out.push(name);
         }
