@@ -148,7 +148,11 @@ fn duty_and_frequency_come_from_the_driving_timer() {
     );
     b.diode("D1", Kind::Diode, "d", "v12");
     let (a, _) = b.analyze();
-    let timer = a.timers.iter().find(|t| t.device == u).expect("timer facts");
+    let timer = a
+        .timers
+        .iter()
+        .find(|t| t.device == u)
+        .expect("timer facts");
     let sw = &a.switches[0];
     assert_eq!(sw.driver.as_ref().map(|d| d.device), Some(u));
     // The switch conducts while the output is high: its duty is the timer's.
@@ -162,8 +166,18 @@ fn duty_and_frequency_come_from_the_driving_timer() {
     assert!(!load.effective_is_average);
     let peak = load.peak_v.as_ref().expect("peak");
     let eff = load.effective_v.as_ref().expect("eff");
-    assert_close(eff.min, peak.min * duty.min.sqrt(), 1e-9, "RMS at the lowest duty");
-    assert_close(eff.max, peak.max * duty.max.sqrt(), 1e-9, "RMS at the highest duty");
+    assert_close(
+        eff.min,
+        peak.min * duty.min.sqrt(),
+        1e-9,
+        "RMS at the lowest duty",
+    );
+    assert_close(
+        eff.max,
+        peak.max * duty.max.sqrt(),
+        1e-9,
+        "RMS at the highest duty",
+    );
     // The 555's output high, 12 − 1.7 V, on the gate (no gate current at DC).
     assert_close(sw.vgs_on_v.as_ref().expect("vgs").min, 10.3, 1e-6, "gate");
 }
