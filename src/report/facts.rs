@@ -86,8 +86,18 @@ pub struct LoadJson {
     pub freewheel: Option<String>,
 }
 
+/// Significant digits kept in JSON numbers: far beyond what any part is known to, and few
+/// enough that solver noise in the last bits does not show.
+const JSON_DIGITS: i32 = 9;
+
 fn finite(v: f64) -> Option<f64> {
-    v.is_finite().then_some(v)
+    if !v.is_finite() {
+        return None;
+    }
+    // Through decimal text, so the number prints as its shortest form (1.10807356e-23).
+    let text = format!("{:.*e}", (JSON_DIGITS - 1) as usize, v);
+    let rounded = text.parse::<f64>().unwrap_or(v);
+    Some(if rounded == 0.0 { 0.0 } else { rounded })
 }
 
 fn range_json(r: &Option<Range>) -> Option<RangeJson> {
@@ -108,12 +118,12 @@ fn name(netlist: &FlatNetlist, circuit: &Circuit, device: DeviceId) -> String {
         .map_or_else(|| format!("#{device}"), |e| e.path.clone())
 }
 
-fn supply_range(s: &SupplyFacts) -> Range {
+fn supply_range(s: &SupplyFacts, name: &str) -> Range {
     Range {
         min: s.min,
         max: s.max,
-        min_state: "min".into(),
-        max_state: "max".into(),
+        min_state: format!("{name} at min"),
+        max_state: format!("{name} at max"),
     }
 }
 
@@ -133,7 +143,7 @@ pub fn output(analysis: &Analysis, netlist: &FlatNetlist, circuit: &Circuit) -> 
             .map(|s| SupplyJson {
                 element: n(s.device),
                 nominal_v: finite(s.nominal),
-                voltage_v: range_json(&Some(supply_range(s))).unwrap_or(RangeJson {
+                voltage_v: range_json(&Some(supply_range(s, &n(s.device)))).unwrap_or(RangeJson {
                     min: None,
                     max: None,
                     min_state: String::new(),
@@ -248,6 +258,13 @@ impl Table<'_> {
         if unit == "%" {
             return format!("{} %", format_quantity(value * 100.0, "", self.ascii));
         }
+        // Below these a solved number is the solver's leakage, not a fact.
+        let floor = match unit {
+            "V" => 1e-6,
+            "A" | "W" | "J" => 1e-9,
+            _ => 0.0,
+        };
+        let value = if value.abs() < floor { 0.0 } else { value };
         format_quantity(value, unit, self.ascii)
     }
 
@@ -265,8 +282,10 @@ impl Table<'_> {
             self.row(out, label, "unknown", extra);
             return;
         };
-        let value = format!("{} … {}", self.q(r.min, unit), self.q(r.max, unit));
-        let states = if r.min_state == r.max_state {
+        let (lo, hi) = (self.q(r.min, unit), self.q(r.max, unit));
+        let same = lo == hi;
+        let value = format!("{lo} … {hi}");
+        let states = if r.min_state == r.max_state || same {
             r.min_state.clone()
         } else {
             format!("min: {}; max: {}", r.min_state, r.max_state)
@@ -434,13 +453,12 @@ impl Table<'_> {
         self.range(out, channel, &s.vds_on_v, "V", "");
         self.range(out, "current", &s.current_a, "A", "");
         if s.kind.is_mos() {
-            self.range(
-                out,
-                "rds_on",
-                &s.rds_on_ohm,
-                "Ω",
-                "square law at the on-state V_GS",
-            );
+            match &s.rds_on_ohm {
+                None if s.vgs_on_v.is_some() => {
+                    self.row(out, "rds_on", "n/a", "not in its triode region when on")
+                }
+                r => self.range(out, "rds_on", r, "Ω", "square law at the on-state V_GS"),
+            }
         }
         self.range(out, "dissipation", &s.dissipation_w, "W", "");
         self.range(out, "duty", &s.duty, "%", "");
