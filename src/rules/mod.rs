@@ -366,3 +366,4 @@ pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
 pub mod eseries;
 pub mod suppress;
 pub mod units;
+pub mod timer_util;

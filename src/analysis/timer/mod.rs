@@ -416,4 +416,4 @@ fn solve_failed(cx: &Context<'_>, setup: &Setup, e: &DcError) -> Finding {
 }
 
 #[cfg(test)]
-mod tests;
+pub(crate) mod tests;

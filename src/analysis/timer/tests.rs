@@ -181,6 +181,21 @@ impl Deck {
         self.add(e, Kind::Timer555, &roles, &data)
     }
 
+    /// Runs the analyses and every rule; the findings' rendering for review.
+    pub fn findings(&self) -> Vec<crate::diagnostic::Finding> {
+        let config = Config::default();
+        let (analysis, mut findings) =
+            crate::analysis::analyze(&self.netlist, &self.circuit, &config);
+        let cx = crate::rules::RuleContext {
+            netlist: &self.netlist,
+            circuit: &self.circuit,
+            analysis: &analysis,
+            config: &config,
+        };
+        findings.extend(crate::rules::run(&cx));
+        findings
+    }
+
     pub fn analyze(&self) -> Vec<TimerFacts> {
         let config = Config::default();
         let cx = Context::new(&self.netlist, &self.circuit, &config);
@@ -353,6 +368,51 @@ fn timer_driving_a_one_shot_hands_over_its_low_time() {
     assert!(rel(trig.low_s.max, low.max) < 1e-9);
     // The astable's low time (about 0.69·10 kΩ·10 nF) outlasts the one-shot (1.1·10 kΩ·2.2 nF).
     assert!(trig.low_s.max > u2.high_s.as_ref().expect("w").min);
+}
+
+fn show(d: &Deck) {
+    for f in d.findings() {
+        eprintln!("{}[{}] {}: {}", f.severity, f.rule, f.element.clone().unwrap_or_default(), f.message);
+        for l in &f.labels {
+            eprintln!("    label: {}", l.message);
+        }
+        if let Some(h) = &f.help {
+            eprintln!("    help: {h}");
+        }
+        for v in &f.values {
+            eprintln!("    value {} = {} {} ({})", v.name, v.value, v.unit, v.source);
+        }
+    }
+}
+
+#[test]
+fn print_findings() {
+    eprintln!("--- bare rheostat");
+    show(&rheostat_monostable(None));
+    eprintln!("--- 100R");
+    show(&rheostat_monostable(Some(100.0)));
+    eprintln!("--- 1k");
+    show(&rheostat_monostable(Some(1e3)));
+    eprintln!("--- stuck");
+    show(&astable(1e3, 22e6, 1e-9, 9.0));
+    eprintln!("--- diode astable");
+    let mut d = astable(47e3, 4.7e3, 10e-9, 12.0);
+    d.d("D1", "tc", "dis");
+    show(&d);
+    eprintln!("--- overlap");
+    let mut d = astable(1e3, 10e3, 10e-9, 9.0);
+    d.timer("XU2", ["0", "out", "out2", "vcc", "ctl2", "tc2", "tc2", "vcc"]);
+    d.r("R2", "vcc", "tc2", 10e3);
+    d.c("C2", "tc2", "0", 2.2e-9);
+    show(&d);
+    eprintln!("--- overrun");
+    let mut d = Deck::default();
+    d.v("V1", "vcc", "0", 9.0);
+    d.pulse("VT", "trig", 9.0, 0.0, 1e-7, 1e-7, 10e-6, 1e-3);
+    d.timer("XU1", ["0", "trig", "out", "vcc", "ctl", "tc", "tc", "vcc"]);
+    d.r("R1", "vcc", "tc", 100e3);
+    d.c("C1", "tc", "0", 15e-9);
+    show(&d);
 }
 
 #[test]

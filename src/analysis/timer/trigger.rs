@@ -229,10 +229,10 @@ fn trigger_facts(
             } else {
                 (low.min, low.max, &low.min_state, &low.max_state)
             };
-            lows.push((lo_v, format!("{name} at {lo_s}")));
-            lows.push((hi_v, format!("{name} at {hi_s}")));
-            periods.push((period.min, format!("{name} at {}", period.min_state)));
-            periods.push((period.max, format!("{name} at {}", period.max_state)));
+            lows.push((lo_v, driver_state(&name, lo_s)));
+            lows.push((hi_v, driver_state(&name, hi_s)));
+            periods.push((period.min, driver_state(&name, &period.min_state)));
+            periods.push((period.max, driver_state(&name, &period.max_state)));
         } else {
             let element = cx
                 .circuit
@@ -254,6 +254,15 @@ fn trigger_facts(
         period_s: from(&periods)?,
         threshold_v: from(&thresholds)?,
     })
+}
+
+/// A driver timer's state, named after it (`U1: RV1 wiper at 0 %`).
+fn driver_state(name: &str, state: &str) -> String {
+    if state == "the steady state" {
+        state.to_string()
+    } else {
+        format!("{name}: {state}")
+    }
 }
 
 /// A one-shot's output timing from its pulse width and its trigger.
