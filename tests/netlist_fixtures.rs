@@ -65,6 +65,7 @@ const CLEAN: &[&str] = &[
     "odd_node_names.cir",
     "odd_suffixes.cir",
     "params_forms.cir",
+    "source_forms.cir",
     "suppressions.cir",
     "text_after_end.cir",
     "title_looks_like_element.cir",
@@ -536,6 +537,43 @@ fn suppression_comments() {
             ),
         ]
     );
+}
+
+#[test]
+fn independent_sources_in_every_form() {
+    let (flat, _, _) = fixture("source_forms.cir");
+    let spec = |p: &str| element(&flat, p).source.clone().unwrap();
+    assert_eq!(spec("Vbat").dc, Some(12.0));
+    assert_eq!(
+        spec("Vac").dc,
+        Some(0.0),
+        "SPICE's DC value of an AC-only source is 0"
+    );
+    let p1 = spec("Vp1");
+    assert_eq!(p1.dc, Some(0.0));
+    assert_eq!(p1.levels(), Some((0.0, 5.0)));
+    assert_eq!(p1.frequency(), Some(10e3));
+    assert!(close(p1.duty().unwrap(), (40e-6 + 10e-9) / 100e-6));
+    let p2 = spec("Vp2");
+    assert_eq!(p2.levels(), Some((0.0, 3.3)));
+    assert!(close(p2.frequency().unwrap(), 1e3));
+    let p3 = spec("Vp3");
+    assert_eq!(p3.levels(), Some((0.0, 10.0)));
+    assert!(close(p3.frequency().unwrap(), 50.0));
+    assert_eq!(spec("Vs").levels(), Some((0.0, 5.0)));
+    assert_eq!(spec("Vs").dc, Some(2.5));
+    assert_eq!(spec("Vs2").frequency(), Some(1e3));
+    assert_eq!(element(&flat, "Vs2").param("rser"), Some(Num::Known(1.0)));
+    match spec("Vpwl").wave {
+        Waveform::Pwl(points) => assert_eq!(points.len(), 4),
+        other => panic!("{other:?}"),
+    }
+    assert_eq!(spec("Vpwl").levels(), Some((0.0, 5.0)));
+    assert_eq!(spec("Vexp").wave, Waveform::Other("EXP".into()));
+    assert_eq!(spec("Vexp").dc, Some(0.0));
+    assert_eq!(spec("Ibias").dc, Some(2e-3));
+    assert_eq!(spec("Vplain").dc, Some(5.0));
+    assert_eq!(value(&flat, "Vneg"), -12.0);
 }
 
 #[test]

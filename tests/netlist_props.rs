@@ -149,7 +149,12 @@ fn deck(lines: &[String]) -> String {
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig::with_cases(256))]
+    #![proptest_config(ProptestConfig {
+        // `PROPTEST_CASES` runs more cases (e.g. 5000 before a release).
+        cases: std::env::var("PROPTEST_CASES").ok().and_then(|v| v.parse().ok()).unwrap_or(256),
+        failure_persistence: None,
+        ..ProptestConfig::default()
+    })]
 
     #[test]
     fn never_panics_on_bytes(bytes in proptest::collection::vec(any::<u8>(), 0..1500)) {

@@ -14,6 +14,9 @@ use crate::diagnostic::Finding;
 use crate::source::{SourceMap, Span};
 use std::borrow::Cow;
 
+/// Enclosing definitions searched at most for a name.
+pub const MAX_SCOPE_WALK: usize = 1024;
+
 /// `name = value` with the value's text ready for evaluation.
 #[derive(Clone, Debug)]
 pub struct Assign<'a> {
@@ -69,30 +72,28 @@ impl<'a> Deck<'a> {
         StmtView::new(lexed, text, at.1 as usize)
     }
 
+    /// `def` and the definitions around it, innermost first. Definitions nested absurdly deep
+    /// (already a finding) are not searched past [`MAX_SCOPE_WALK`] levels, which keeps every
+    /// name lookup bounded.
+    pub fn lexical(&self, def: usize) -> impl Iterator<Item = &Def<'a>> + '_ {
+        let mut at = Some(def);
+        std::iter::from_fn(move || {
+            let entry = self.defs.get(at?)?;
+            at = entry.parent;
+            Some(entry)
+        })
+        .take(MAX_SCOPE_WALK)
+    }
+
     /// A subcircuit visible from `def`: its own children first, then its parents'.
     pub fn find_subckt(&self, def: usize, name: &str) -> Option<usize> {
-        let mut at = Some(def);
-        while let Some(d) = at {
-            let entry = self.defs.get(d)?;
-            if let Some(&id) = entry.children.get(name) {
-                return Some(id);
-            }
-            at = entry.parent;
-        }
-        None
+        self.lexical(def)
+            .find_map(|d| d.children.get(name).copied())
     }
 
     /// A `.model` visible from `def`: subcircuit-local first, then enclosing, then global.
     pub fn find_model(&self, def: usize, name: &str) -> Option<usize> {
-        let mut at = Some(def);
-        while let Some(d) = at {
-            let entry = self.defs.get(d)?;
-            if let Some(&id) = entry.models.get(name) {
-                return Some(id);
-            }
-            at = entry.parent;
-        }
-        None
+        self.lexical(def).find_map(|d| d.models.get(name).copied())
     }
 
     /// Nets that keep their name inside instances: `0`, `gnd` and `.global` names.
@@ -102,17 +103,8 @@ impl<'a> Deck<'a> {
 
     /// True when `name` is a parameter visible in `def` (for bare-name values).
     pub fn is_param(&self, def: usize, name: &str) -> bool {
-        let mut at = Some(def);
-        while let Some(d) = at {
-            let Some(entry) = self.defs.get(d) else {
-                return false;
-            };
-            if entry.locals.contains(name) || entry.default_index.contains(name) {
-                return true;
-            }
-            at = entry.parent;
-        }
-        false
+        self.lexical(def)
+            .any(|d| d.locals.contains(name) || d.default_index.contains(name))
     }
 }
 
@@ -329,13 +321,15 @@ fn models<'a>(deck: &mut Deck<'a>, loaded: &'a Loaded) {
             &scope_here
         };
         let mut params: Vec<(String, Num)> = Vec::new();
-        let mut stack: Vec<Item> = items.iter().skip(2).rev().copied().collect();
-        while let Some(item) = stack.pop() {
+        // Items with their parenthesis depth; cards use one level, deeper ones are not read.
+        let mut stack: Vec<(Item, u8)> = items.iter().skip(2).rev().map(|i| (*i, 0)).collect();
+        while let Some((item, level)) = stack.pop() {
             match item {
-                Item::Group(open, close) => {
+                Item::Group(open, close) if level < 2 => {
                     let inner = view.items(open + 1, close, false);
-                    stack.extend(inner.into_iter().rev());
+                    stack.extend(inner.into_iter().rev().map(|i| (i, level + 1)));
                 }
+                Item::Group(..) => {}
                 Item::Assign { .. } => {
                     let Some(a) = assign(view, item) else {
                         continue;

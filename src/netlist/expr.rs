@@ -47,13 +47,29 @@ pub enum Mode {
     Behavioural,
 }
 
+/// User-function calls one evaluation may make (functions calling each other twice per
+/// level would otherwise take exponential time).
+pub const MAX_CALLS: u32 = 100_000;
+
 /// Evaluates `text` in `env`. `depth` is the nesting already used by the caller.
 pub fn eval(text: &str, env: &dyn Env, mode: Mode, depth: usize) -> Result<Num, ExprError> {
+    let calls = std::cell::Cell::new(0);
+    eval_counted(text, env, mode, depth, &calls)
+}
+
+fn eval_counted(
+    text: &str,
+    env: &dyn Env,
+    mode: Mode,
+    depth: usize,
+    calls: &std::cell::Cell<u32>,
+) -> Result<Num, ExprError> {
     let mut p = Parser {
         rest: text,
         env,
         mode,
         depth,
+        calls,
     };
     p.skip_ws();
     if p.rest.is_empty() {
@@ -163,11 +179,11 @@ fn identifier(input: &str) -> IResult<&str, &str, ()> {
     ))(input)
 }
 
-fn truth(v: f64) -> bool {
+pub(super) fn truth(v: f64) -> bool {
     v != 0.0
 }
 
-fn flag(b: bool) -> f64 {
+pub(super) fn flag(b: bool) -> f64 {
     if b {
         1.0
     } else {
@@ -175,7 +191,7 @@ fn flag(b: bool) -> f64 {
     }
 }
 
-fn finite(v: f64, what: &str) -> Result<Num, ExprError> {
+pub(super) fn finite(v: f64, what: &str) -> Result<Num, ExprError> {
     if v.is_finite() {
         Ok(Num::Known(v))
     } else {
@@ -206,6 +222,7 @@ struct Parser<'t, 'e> {
     env: &'e dyn Env,
     mode: Mode,
     depth: usize,
+    calls: &'e std::cell::Cell<u32>,
 }
 
 impl<'t> Parser<'t, '_> {
@@ -448,9 +465,15 @@ impl<'t> Parser<'t, '_> {
                 values: &args,
                 outer: self.env,
             };
-            return eval(f.body, &local, self.mode, self.depth + 1);
+            self.calls.set(self.calls.get() + 1);
+            if self.calls.get() > MAX_CALLS {
+                return Err(ExprError::Invalid(format!(
+                    "evaluating this expression calls user functions more than {MAX_CALLS} times"
+                )));
+            }
+            return eval_counted(f.body, &local, self.mode, self.depth + 1, self.calls);
         }
-        builtin(name, &args, self.mode)
+        super::functions::builtin(name, &args, self.mode)
     }
 
     /// `V(node)`, `V(a,b)`, `I(V1)`: the argument is a node or element name, possibly with
@@ -511,113 +534,6 @@ fn apply(op: Op, a: Num, b: Num) -> Result<Num, ExprError> {
         Op::Rem => x % y,
     };
     finite(v, "the arithmetic")
-}
-
-fn builtin(name: &str, args: &[Num], mode: Mode) -> Result<Num, ExprError> {
-    let lname = name.to_ascii_lowercase();
-    let arity = match lname.as_str() {
-        "abs" | "sqrt" | "exp" | "log" | "ln" | "log10" | "sin" | "cos" | "tan" | "asin"
-        | "acos" | "atan" | "sinh" | "cosh" | "tanh" | "floor" | "ceil" | "int" | "round"
-        | "sgn" | "sign" | "u" | "uramp" => Some(1),
-        "pow" | "pwr" | "atan2" | "hypot" => Some(2),
-        "limit" | "if" => Some(3),
-        "min" | "max" => None,
-        _ => {
-            return match mode {
-                Mode::Behavioural => Ok(Num::Varies),
-                Mode::Param => Err(ExprError::Invalid(format!(
-                    "`{name}` is not a known function"
-                ))),
-            }
-        }
-    };
-    match arity {
-        Some(n) if n != args.len() => {
-            return Err(ExprError::Syntax(format!(
-                "`{name}` takes {n} argument{}, found {}",
-                if n == 1 { "" } else { "s" },
-                args.len()
-            )))
-        }
-        None if args.is_empty() => {
-            return Err(ExprError::Syntax(format!(
-                "`{name}` takes at least one argument"
-            )))
-        }
-        _ => {}
-    }
-    let mut known = Vec::with_capacity(args.len());
-    for a in args {
-        match a {
-            Num::Known(v) => known.push(*v),
-            Num::Varies if lname == "if" => known.push(f64::NAN),
-            Num::Varies => return Ok(Num::Varies),
-        }
-    }
-    let arg = |i: usize| known.get(i).copied().unwrap_or(0.0);
-    let x = arg(0);
-    let v = match lname.as_str() {
-        "if" => {
-            if x.is_nan() {
-                return Ok(Num::Varies);
-            }
-            let pick = if truth(x) { arg(1) } else { arg(2) };
-            if pick.is_nan() {
-                return Ok(Num::Varies);
-            }
-            pick
-        }
-        "abs" => x.abs(),
-        "sqrt" if x < 0.0 => {
-            return Err(ExprError::Invalid(format!(
-                "sqrt of a negative number ({x})"
-            )))
-        }
-        "sqrt" => x.sqrt(),
-        "exp" => x.exp(),
-        "log" | "ln" | "log10" if x <= 0.0 => {
-            return Err(ExprError::Invalid(format!(
-                "{lname} of zero or a negative number ({x})"
-            )))
-        }
-        "log" | "ln" => x.ln(),
-        "log10" => x.log10(),
-        "sin" => x.sin(),
-        "cos" => x.cos(),
-        "tan" => x.tan(),
-        "asin" => x.asin(),
-        "acos" => x.acos(),
-        "atan" => x.atan(),
-        "sinh" => x.sinh(),
-        "cosh" => x.cosh(),
-        "tanh" => x.tanh(),
-        "floor" => x.floor(),
-        "ceil" => x.ceil(),
-        "int" => x.trunc(),
-        "round" => x.round(),
-        "sgn" | "sign" => {
-            if x > 0.0 {
-                1.0
-            } else if x < 0.0 {
-                -1.0
-            } else {
-                0.0
-            }
-        }
-        "u" => flag(x > 0.0),
-        "uramp" => x.max(0.0),
-        "pow" => x.powf(arg(1)),
-        "pwr" => x.signum() * x.abs().powf(arg(1)),
-        "atan2" => x.atan2(arg(1)),
-        "hypot" => x.hypot(arg(1)),
-        "limit" => {
-            let (lo, hi) = (arg(1).min(arg(2)), arg(1).max(arg(2)));
-            x.clamp(lo, hi)
-        }
-        "min" => known.iter().copied().fold(f64::INFINITY, f64::min),
-        _ => known.iter().copied().fold(f64::NEG_INFINITY, f64::max),
-    };
-    finite(v, &format!("`{name}`"))
 }
 
 #[cfg(test)]
@@ -699,6 +615,30 @@ mod tests {
             eval("ddt(V(a))", &NoParams, Mode::Behavioural, 0),
             Ok(Num::Varies)
         );
+    }
+
+    struct Doubling;
+    impl Env for Doubling {
+        fn param(&self, _: &str, _: usize) -> Option<Result<Num, ExprError>> {
+            None
+        }
+        fn function(&self, name: &str) -> Option<UserFunc<'_>> {
+            const ARGS: &[&str] = &["x"];
+            // f0(x) = f1(x)+f1(x), f1 = f2+f2, ... 60 levels: 2^60 calls if not cut off.
+            let level: u32 = name.strip_prefix('f')?.parse().ok()?;
+            let body: &'static str = if level >= 60 {
+                "x"
+            } else {
+                Box::leak(format!("f{n}(x)+f{n}(x)", n = level + 1).into_boxed_str())
+            };
+            Some(UserFunc { args: ARGS, body })
+        }
+    }
+
+    #[test]
+    fn exponential_user_functions_are_cut_off() {
+        let r = eval("f0(1)", &Doubling, Mode::Param, 0);
+        assert!(matches!(r, Err(ExprError::Invalid(m)) if m.contains("user functions")));
     }
 
     #[test]

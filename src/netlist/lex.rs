@@ -4,6 +4,9 @@
 //! the file text, so nothing is copied.
 
 use super::flat::Suppression;
+use super::suppress::parse_allow;
+use super::text::is_ws;
+use super::text::{first_word, space_len, word_len};
 use crate::diagnostic::{Finding, Severity};
 use crate::source::{FileId, Span};
 use std::collections::HashMap;
@@ -100,47 +103,6 @@ impl Lexed {
     pub fn span(&self, start: u32, end: u32) -> Span {
         Span::new(self.file, start as usize, end as usize)
     }
-}
-
-pub fn is_ws(c: char) -> bool {
-    matches!(c, ' ' | '\t' | '\r' | '\x0b' | '\x0c' | '\u{a0}')
-}
-
-/// Byte length of the word at the start of `rest`: up to whitespace or a character that is a
-/// token of its own. Scanned over bytes (every byte of a large deck passes here); it stops only
-/// at ASCII bytes or at a no-break space, so the length is always a character boundary.
-/// Also says whether the word holds a `/` (a `//` comment may start inside it).
-fn word_len(rest: &str) -> (usize, bool) {
-    let bytes = rest.as_bytes();
-    let mut i = 0;
-    let mut slash = false;
-    while let Some(&b) = bytes.get(i) {
-        match b {
-            b' ' | b'\t' | b'\r' | 0x0b | 0x0c | b'=' | b'(' | b')' | b',' | b'{' | b'}'
-            | b'\'' | b'"' | b';' => break,
-            0xC2 if bytes.get(i + 1) == Some(&0xA0) => break,
-            b'/' => {
-                slash = true;
-                i += 1;
-            }
-            _ => i += 1,
-        }
-    }
-    (i, slash)
-}
-
-/// Byte length of the whitespace at the start of `rest`.
-fn space_len(rest: &str) -> usize {
-    let bytes = rest.as_bytes();
-    let mut i = 0;
-    while let Some(&b) = bytes.get(i) {
-        match b {
-            b' ' | b'\t' | b'\r' | 0x0b | 0x0c => i += 1,
-            0xC2 if bytes.get(i + 1) == Some(&0xA0) => i += 2,
-            _ => break,
-        }
-    }
-    i
 }
 
 fn dot_kind(word: &str) -> Dot {
@@ -311,21 +273,6 @@ pub fn lex(file: FileId, text: &str, is_top: bool) -> Lexed {
     lx.out
 }
 
-/// The first whitespace-delimited word (for block and end detection).
-fn first_word(content: &str) -> &str {
-    let bytes = content.as_bytes();
-    let mut end = 0;
-    while let Some(&b) = bytes.get(end) {
-        if matches!(b, b' ' | b'\t' | b'\r' | 0x0b | 0x0c | b';' | b'(')
-            || (b == 0xC2 && bytes.get(end + 1) == Some(&0xA0))
-        {
-            break;
-        }
-        end += 1;
-    }
-    &content[..end]
-}
-
 impl Lexer<'_> {
     fn title_line(&mut self, start: usize, line: &str) {
         let indent = line.len() - line.trim_start_matches(is_ws).len();
@@ -478,35 +425,13 @@ impl Lexer<'_> {
 
     /// Records a `kickback: allow ...` comment; `own_line` is set for trailing comments.
     fn suppression(&mut self, at: usize, comment: &str, own_line: Option<u32>) {
-        let body = comment
-            .trim_start_matches(['*', ';', '$', '/'])
-            .trim_start_matches(is_ws);
-        const KEY: &str = "kickback:";
-        if body.len() < KEY.len()
-            || !body.is_char_boundary(KEY.len())
-            || !body[..KEY.len()].eq_ignore_ascii_case(KEY)
-        {
+        let Some((rules, reason)) = parse_allow(comment) else {
             return;
-        }
-        let body = body[KEY.len()..].trim_start_matches(is_ws);
-        let verb = first_word(body);
-        if !verb.eq_ignore_ascii_case("allow") {
-            return;
-        }
-        let body = &body[verb.len()..];
-        let (list, reason) = match body.find("--") {
-            Some(i) => (&body[..i], Some(body[i + 2..].trim_matches(is_ws))),
-            None => (body, None),
         };
-        let rules: Vec<String> = list
-            .split(|c: char| c == ',' || is_ws(c))
-            .filter(|r| !r.is_empty())
-            .map(|r| r.to_ascii_lowercase())
-            .collect();
         let len = comment.trim_end_matches(is_ws).len();
         let suppression = Suppression {
             rules,
-            reason: reason.filter(|r| !r.is_empty()).map(str::to_string),
+            reason,
             span: Span::new(self.out.file, at, at + len),
             target_line: own_line.unwrap_or(0) as usize,
             file: self.out.file,

@@ -3,9 +3,11 @@
 //! which subcircuits to keep whole.
 //!
 //! Stages, each in its own module: [`text`] (decoding), `lex` (lines, comments, continuation,
-//! tokens), `load` (files, includes, definitions), `deck` (names, headers, models), `scope`
-//! and `expr` (parameters and expressions), `element*` (per-letter grammar), `flatten`
-//! (hierarchy), `write` (flat deck back to text).
+//! tokens) with `suppress` (allow comments) and `dialect` (other netlist families), `load`
+//! (files, includes, definitions), `deck` (names, headers, models), `scope`, `expr` and
+//! `functions` (parameters and expressions), [`value`] (numbers), `stmt` and `element*`
+//! (per-letter grammar into `parsed` parts), `flatten` and `source_spec` (hierarchy to
+//! [`FlatElement`]s), `write` (flat deck back to text).
 
 mod deck;
 mod dialect;
@@ -15,11 +17,14 @@ mod element_sources;
 mod expr;
 pub mod flat;
 mod flatten;
+mod functions;
 mod lex;
 mod load;
+mod parsed;
 mod scope;
 mod source_spec;
 mod stmt;
+mod suppress;
 pub mod text;
 pub mod value;
 mod write;

@@ -2,7 +2,7 @@
 //! its `X` line passed, the definition's defaults and local `.param`s (evaluated lazily, once,
 //! in this scope), then the scope of the instance that placed it, up to the global `.param`s.
 
-use super::deck::{Assign, Def};
+use super::deck::{Assign, Def, MAX_SCOPE_WALK};
 use super::expr::{self, Env, ExprError, Mode, UserFunc};
 use super::flat::Num;
 use super::text::Caseless;
@@ -201,8 +201,8 @@ impl Env for Scope<'_, '_> {
 
     fn function(&self, name: &str) -> Option<UserFunc<'_>> {
         let mut def = Some(self.def);
-        while let Some(d) = def {
-            let entry = self.defs.get(d)?;
+        for _ in 0..MAX_SCOPE_WALK {
+            let entry = self.defs.get(def?)?;
             if let Some(f) = entry.funcs.get(name) {
                 return Some(UserFunc {
                     args: &f.args,

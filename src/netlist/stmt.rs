@@ -81,7 +81,12 @@ impl<'a> StmtView<'a> {
             return Cow::Borrowed(raw);
         }
         let mut out = String::new();
-        for &(s, e) in self.lexed.segs_of(&self.stmt) {
+        let segs = self.lexed.segs_of(&self.stmt);
+        let first_seg = segs.partition_point(|&(_, e)| (e as usize) <= start);
+        for &(s, e) in segs.iter().skip(first_seg) {
+            if s as usize >= end {
+                break;
+            }
             let (s, e) = ((s as usize).max(start), (e as usize).min(end));
             if s < e {
                 if !out.is_empty() {

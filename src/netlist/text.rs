@@ -147,6 +147,63 @@ pub fn lower(text: &str) -> Cow<'_, str> {
     }
 }
 
+/// Whitespace inside a line (the no-break space of 8-bit exports included).
+pub fn is_ws(c: char) -> bool {
+    matches!(c, ' ' | '\t' | '\r' | '\x0b' | '\x0c' | '\u{a0}')
+}
+
+/// Byte length of the word at the start of `rest`: up to whitespace or a character that is a
+/// token of its own. Scanned over bytes (every byte of a large deck passes here); it stops only
+/// at ASCII bytes or at a no-break space, so the length is always a character boundary.
+/// Also says whether the word holds a `/` (a `//` comment may start inside it).
+pub fn word_len(rest: &str) -> (usize, bool) {
+    let bytes = rest.as_bytes();
+    let mut i = 0;
+    let mut slash = false;
+    while let Some(&b) = bytes.get(i) {
+        match b {
+            b' ' | b'\t' | b'\r' | 0x0b | 0x0c | b'=' | b'(' | b')' | b',' | b'{' | b'}'
+            | b'\'' | b'"' | b';' => break,
+            0xC2 if bytes.get(i + 1) == Some(&0xA0) => break,
+            b'/' => {
+                slash = true;
+                i += 1;
+            }
+            _ => i += 1,
+        }
+    }
+    (i, slash)
+}
+
+/// Byte length of the whitespace at the start of `rest`.
+pub fn space_len(rest: &str) -> usize {
+    let bytes = rest.as_bytes();
+    let mut i = 0;
+    while let Some(&b) = bytes.get(i) {
+        match b {
+            b' ' | b'\t' | b'\r' | 0x0b | 0x0c => i += 1,
+            0xC2 if bytes.get(i + 1) == Some(&0xA0) => i += 2,
+            _ => break,
+        }
+    }
+    i
+}
+
+/// The first whitespace-delimited word (for block and end detection).
+pub fn first_word(content: &str) -> &str {
+    let bytes = content.as_bytes();
+    let mut end = 0;
+    while let Some(&b) = bytes.get(end) {
+        if matches!(b, b' ' | b'\t' | b'\r' | 0x0b | 0x0c | b';' | b'(')
+            || (b == 0xC2 && bytes.get(end + 1) == Some(&0xA0))
+        {
+            break;
+        }
+        end += 1;
+    }
+    &content[..end]
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
