@@ -1,7 +1,7 @@
 //! Properties: the front end never panics, whatever it is given, and a flattened deck printed
 //! back to SPICE reads back to the same connectivity.
 
-use kickback::netlist::{load, parse_str, text::decode, write_flat, FlatNetlist, Limits};
+use kickback::netlist::{decode, load, parse_str, write_flat, FlatNetlist, Limits};
 use kickback::source::SourceMap;
 use proptest::prelude::*;
 use std::path::Path;

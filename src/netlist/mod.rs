@@ -2,7 +2,7 @@
 //! flattened elements ([`FlatNetlist`]). Nothing here knows what a part *is*; the caller says
 //! which subcircuits to keep whole.
 //!
-//! Stages, each in its own module: [`text`] (decoding), `lex` (lines, comments, continuation,
+//! Stages, each in its own module: `text` (decoding, caseless names), `lex` (lines, comments, continuation,
 //! tokens) with `suppress` (allow comments) and `dialect` (other netlist families), `load`
 //! (files, includes, definitions), `deck` (names, headers, models), `scope`, `expr` and
 //! `functions` (parameters and expressions), [`value`] (numbers), `stmt` and `element*`
@@ -25,11 +25,12 @@ mod scope;
 mod source_spec;
 mod stmt;
 mod suppress;
-pub mod text;
+mod text;
 pub mod value;
 mod write;
 
 pub use flat::*;
+pub use text::decode;
 pub use write::write_flat;
 
 use crate::diagnostic::Finding;

@@ -42,14 +42,6 @@ fn scale_of(suffix: &str) -> Scale {
     }
 }
 
-/// The multiplier a suffix stands for; letters that are no scale factor are units (factor 1).
-pub fn scale_factor(suffix: &str) -> f64 {
-    match scale_of(suffix) {
-        Scale::Pow10(e) => 10f64.powi(e),
-        Scale::Mil => 25.4e-6,
-    }
-}
-
 /// Applies a power-of-ten scale in decimal, so `5u` is exactly the double nearest 5e-6.
 fn scaled(digits: &str, exp10: i32) -> Option<f64> {
     if exp10 == 0 {
