@@ -364,6 +364,7 @@ pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
 }
 
 pub mod eseries;
+pub mod hygiene_util;
 pub mod suppress;
 pub mod units;
 pub mod timer_util;

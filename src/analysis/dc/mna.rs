@@ -33,9 +33,9 @@ impl Layout {
         for (slot, element) in internal.iter_mut().zip(&net.elements) {
             if let Element::Diode { anode, params, .. } = element {
                 if params.rs > 0.0 {
+                    // The junction node is blamed on the anode's net, the name callers know.
                     *slot = Some(labels.len());
-                    let name = format!("{} (diode junction behind RS)", net.node_name(*anode));
-                    labels.push(vec![name]);
+                    labels.push(vec![net.node_name(*anode).to_string()]);
                 }
             }
         }
