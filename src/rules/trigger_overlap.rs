@@ -92,20 +92,32 @@ fn overlap(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
         "couple {timer}'s trigger through a 1 nF capacitor with a 10 kΩ pull-up to its VCC so it sees only the falling edge"
     ));
     if let Some(c) = t.timing_capacitor.and_then(|c| farads_of(cx, c)) {
-        // 555 datasheet: width ≈ 1.1·R·C; the shortest pulse should outlast the trigger
-        // twice over.
-        if let Some(r) = eseries::round_up(2.0 * low.max / (1.1 * c), &eseries::E12) {
-            let pot = t.charge_path.iter().copied().find(|&p| is_pot(cx, p));
-            match pot {
-                Some(p) => help.push(format!(
-                    "or keep at least {} in series with {} so the shortest pulse outlasts the trigger twice over",
-                    ohms(r),
-                    name(cx, p)
-                )),
-                None => help.push(format!(
-                    "or make the timing resistance at least {} so the pulse outlasts the trigger twice over",
-                    ohms(r)
-                )),
+        // 555 datasheet: width ≈ 1.1·R·C. The pulse must outlast the trigger and still end
+        // before 0.9 of the trigger period (see `duty-overrun`).
+        let lo = eseries::round_up(low.max / (1.1 * c), &eseries::E12);
+        let hi = eseries::round_down(
+            super::duty_overrun::MAX_SHARE * trigger.period_s.min / (1.1 * c),
+            &eseries::E12,
+        );
+        if let (Some(lo), Some(hi)) = (lo, hi) {
+            if lo <= hi {
+                let span = if lo == hi {
+                    ohms(lo)
+                } else {
+                    format!("between {} and {}", ohms(lo), ohms(hi))
+                };
+                let pot = t.charge_path.iter().copied().find(|&p| is_pot(cx, p));
+                help.push(match pot {
+                    Some(p) => format!(
+                        "or keep {timer}'s timing resistance {span} over {}'s travel (1.1·R·C with {})",
+                        name(cx, p),
+                        format_si(c, "F")
+                    ),
+                    None => format!(
+                        "or make {timer}'s timing resistance {span} (1.1·R·C with {})",
+                        format_si(c, "F")
+                    ),
+                });
             }
         }
     }
