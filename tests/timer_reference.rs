@@ -87,7 +87,12 @@ fn monostable_width_is_1_1_rc() {
     // 555 datasheet: monostable width ≈ 1.1·R·C (ln 3 = 1.0986). Tolerance 3 %: the threshold
     // bias current through R and the discharge pin's residual voltage at the start (at 1 MΩ
     // and 12 V the bias current alone lengthens the pulse by about 4 %).
-    for (r, c) in [(10e3, 10e-9), (100e3, 100e-9), (470e3, 2.2e-9), (4.7e3, 1e-6)] {
+    for (r, c) in [
+        (10e3, 10e-9),
+        (100e3, 100e-9),
+        (470e3, 2.2e-9),
+        (4.7e3, 1e-6),
+    ] {
         let deck = format!(
             "one-shot
 V1 vcc 0 DC 12

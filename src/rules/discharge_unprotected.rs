@@ -76,13 +76,12 @@ fn overcurrent(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
     let (target, target_fixed) = match (dead_short, pot, smallest_fixed) {
         (true, Some(p), _) | (false, Some(p), None) => (p, None),
         (_, _, Some((r, value))) => (r, Some(value)),
-        (_, None, None) => (
-            t.discharge_chain.first().copied().unwrap_or(t.device),
-            None,
-        ),
+        (_, None, None) => (t.discharge_chain.first().copied().unwrap_or(t.device), None),
     };
     let supply = supply_of(cx, &t.discharge_chain);
-    let supply_v = open_v.map(|v| v.max).or_else(|| t.supply_v.as_ref().map(|s| s.max));
+    let supply_v = open_v
+        .map(|v| v.max)
+        .or_else(|| t.supply_v.as_ref().map(|s| s.max));
     let supply_text = match (supply, supply_v) {
         (Some(s), Some(v)) => format!("{} ({})", name(cx, s), format_si(v, "V")),
         (None, Some(v)) => format!("the {} supply", format_si(v, "V")),
@@ -90,8 +89,10 @@ fn overcurrent(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
     };
 
     let message = if dead_short {
-        let state = source_ohms.map(|r| r.min_state.as_str()).unwrap_or("");
-        let through = pot.map(|p| format!(" through {}", name(cx, p))).unwrap_or_default();
+        let state = current.max_state.as_str();
+        let through = pot
+            .map(|p| format!(" through {}", name(cx, p)))
+            .unwrap_or_default();
         format!(
             "{timer}'s discharge pin meets {supply_text}{through} with no resistance{}: a dead short every time the pin turns on, and it would sink {} or more, above its {} maximum",
             at_state(state),
@@ -148,7 +149,12 @@ fn overcurrent(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
     });
 
     let mut f = finding_at(RULE, severity, cx, target, message)?;
-    f = label(f, cx, t.device, &format!("{timer}: its discharge pin (DIS) sinks this current while its output is low"));
+    f = label(
+        f,
+        cx,
+        t.device,
+        &format!("{timer}: its discharge pin (DIS) sinks this current while its output is low"),
+    );
     for &d in &t.discharge_chain {
         f = label(f, cx, d, "between the discharge pin and the supply");
     }
@@ -162,20 +168,36 @@ fn overcurrent(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
         "discharge_current",
         current.max,
         "A",
-        format!("computed: DC solve with the pin on{}", at_state(&current.max_state)),
+        format!(
+            "computed: DC solve with the pin on{}",
+            at_state(&current.max_state)
+        ),
     );
     f = f.with_value("discharge_current_max", max.value, "A", max.source.clone());
-    f = f.with_value("discharge_current_rated", rated.value, "A", rated.source.clone());
+    f = f.with_value(
+        "discharge_current_rated",
+        rated.value,
+        "A",
+        rated.source.clone(),
+    );
     if let Some(r) = source_ohms {
         f = f.with_value(
             "series_resistance_min",
             r.min,
             "Ω",
-            format!("computed: Thevenin resistance at DIS with the pin off{}", at_state(&r.min_state)),
+            format!(
+                "computed: Thevenin resistance at DIS with the pin off{}",
+                at_state(&r.min_state)
+            ),
         );
     }
     if let Some(v) = supply_v {
-        f = f.with_value("supply_voltage", v, "V", "computed: open-circuit voltage at DIS");
+        f = f.with_value(
+            "supply_voltage",
+            v,
+            "V",
+            "computed: open-circuit voltage at DIS",
+        );
     }
     Some(f)
 }
@@ -187,14 +209,25 @@ fn dump(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
     let cap_name = cap.map_or_else(|| "the timing capacitor".to_string(), |c| name(cx, c));
     let upper = t.upper_threshold_v.as_ref().map(|r| r.max);
     let message = format!(
-        "{cap_name} is dumped straight into {timer}'s discharge pin through {} with no series resistor: the pin sees a peak of about {} at every discharge",
+        "{cap_name} is dumped straight into {timer}'s discharge pin through {} with no series resistor{}: the pin sees a peak of about {} at every discharge",
         name(cx, diode),
+        at_state(t.discharge_dump_state.as_deref().unwrap_or("")),
         format_si(peak, "A"),
     );
     let mut f = finding_at(RULE, Severity::Note, cx, diode, message)?;
-    f = label(f, cx, t.device, &format!("{timer}: its discharge pin takes the peak"));
+    f = label(
+        f,
+        cx,
+        t.device,
+        &format!("{timer}: its discharge pin takes the peak"),
+    );
     if let Some(c) = cap {
-        f = label(f, cx, c, "the timing capacitor, charged to the upper threshold");
+        f = label(
+            f,
+            cx,
+            c,
+            "the timing capacitor, charged to the upper threshold",
+        );
     }
     let limited = upper.map(|v| {
         let r = 150.0;
@@ -213,10 +246,15 @@ fn dump(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
         "peak_current",
         peak,
         "A",
-        "computed: diode current with the capacitor at the upper threshold and the pin on",
+        "computed: discharge pin current with the capacitor at the upper threshold, through the diode",
     );
     if let Some(v) = upper {
-        f = f.with_value("upper_threshold", v, "V", "computed: 2/3 VCC or the control voltage");
+        f = f.with_value(
+            "upper_threshold",
+            v,
+            "V",
+            "computed: 2/3 VCC or the control voltage",
+        );
     }
     let _ = element(cx, diode);
     Some(f)

@@ -94,11 +94,24 @@ fn overrun(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
         "trigger_period",
         period.min,
         "s",
-        format!("computed: shortest trigger period{}", at_state(&period.min_state)),
+        format!(
+            "computed: shortest trigger period{}",
+            at_state(&period.min_state)
+        ),
     );
-    f = f.with_value("max_share", MAX_SHARE, "", "kickback default (common practice)");
+    f = f.with_value(
+        "max_share",
+        MAX_SHARE,
+        "",
+        "kickback default (common practice)",
+    );
     if let (Some(fd), Some(d)) = (t.divided_frequency_hz, t.divided_duty) {
-        f = f.with_value("divided_frequency", fd, "Hz", "computed: output retriggers at the first trigger after the pulse");
+        f = f.with_value(
+            "divided_frequency",
+            fd,
+            "Hz",
+            "computed: output retriggers at the first trigger after the pulse",
+        );
         f = f.with_value("divided_duty", d, "", "computed");
     }
     Some(f)

@@ -29,7 +29,11 @@ fn stuck(cx: &RuleContext<'_>, t: &TimerFacts, s: &StuckPhase) -> Option<Finding
             "threshold",
             "once triggered, its output stays high for good",
         ),
-        (true, _) => ("high phase", "threshold", "its output sticks high and it never oscillates"),
+        (true, _) => (
+            "high phase",
+            "threshold",
+            "its output sticks high and it never oscillates",
+        ),
         (false, _) => (
             "low phase",
             "trigger threshold",
@@ -71,7 +75,12 @@ fn stuck(cx: &RuleContext<'_>, t: &TimerFacts, s: &StuckPhase) -> Option<Finding
         f = label(f, cx, d, "in the capacitor's path in that phase");
     }
     if let Some(c) = t.timing_capacitor {
-        f = label(f, cx, c, &format!("settles at {}", format_si(s.settles_v, "V")));
+        f = label(
+            f,
+            cx,
+            c,
+            &format!("settles at {}", format_si(s.settles_v, "V")),
+        );
     }
 
     let help = match (s.bias_a, s.bias_ohms) {
@@ -142,7 +151,12 @@ fn stuck(cx: &RuleContext<'_>, t: &TimerFacts, s: &StuckPhase) -> Option<Finding
         f = f.with_value("bias_current", i, "A", source);
     }
     if let Some(r) = s.bias_ohms {
-        f = f.with_value("timing_resistance", r, "Ω", "computed: Thevenin resistance at the capacitor");
+        f = f.with_value(
+            "timing_resistance",
+            r,
+            "Ω",
+            "computed: Thevenin resistance at the capacitor",
+        );
     }
     Some(f)
 }

@@ -127,7 +127,10 @@ fn overlap(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
         f,
         cx,
         t.device,
-        &format!("{timer}: the one-shot, shortest pulse {}", format_si(width.min, "s")),
+        &format!(
+            "{timer}: the one-shot, shortest pulse {}",
+            format_si(width.min, "s")
+        ),
     );
     f = label(
         f,
@@ -153,7 +156,10 @@ fn overlap(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
         "trigger_low",
         low.max,
         "s",
-        format!("computed: time below the trigger threshold{}", at_state(&low.max_state)),
+        format!(
+            "computed: time below the trigger threshold{}",
+            at_state(&low.max_state)
+        ),
     );
     f = f.with_value(
         "pulse_min",
