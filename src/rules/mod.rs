@@ -365,4 +365,5 @@ pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
 
 pub mod eseries;
 pub mod suppress;
+pub mod switch_util;
 pub mod units;
