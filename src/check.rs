@@ -40,10 +40,36 @@ pub struct FileReport {
 }
 
 pub fn load_config(netlist: &Path, options: &CheckOptions) -> Result<Config, ConfigError> {
-    match &options.config_path {
-        Some(path) => Config::load(path),
-        None => Ok(Config::discover(netlist)?.unwrap_or_default()),
+    let config = match &options.config_path {
+        Some(path) => Config::load(path)?,
+        None => Config::discover(netlist)?.unwrap_or_default(),
+    };
+    validate_rule_ids(&config)?;
+    Ok(config)
+}
+
+/// `[rules]` may only name rules that exist: a typo there would silently keep a rule on.
+pub fn validate_rule_ids(config: &Config) -> Result<(), ConfigError> {
+    for id in config.rules.keys() {
+        if rules::find(id).is_some() {
+            continue;
+        }
+        let (line, column) = config.rule_spans.get(id).copied().unwrap_or((1, 1));
+        let near = rules::suppress::closest_rules(id);
+        let hint = if near.is_empty() {
+            " (`kickback rules` lists them)".to_string()
+        } else {
+            format!("; did you mean {}?", near.join(" or "))
+        };
+        return Err(ConfigError {
+            path: config.path.clone().unwrap_or_default(),
+            line,
+            column,
+            key: Some(format!("rules.{id}")),
+            message: format!("rules.{id}: `{id}` is not a kickback rule{hint}"),
+        });
     }
+    Ok(())
 }
 
 pub fn check_file(path: &Path, options: &CheckOptions) -> FileReport {

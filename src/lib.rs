@@ -5,6 +5,7 @@
 //! [`report`] (rendering). [`check`] runs the pipeline for one file.
 
 pub mod analysis;
+pub mod app;
 pub mod check;
 pub mod circuit;
 pub mod config;

@@ -81,8 +81,19 @@ pub struct StuckPhase {
     /// `"high"` (charging) or `"low"` (discharging).
     pub phase: &'static str,
     pub reason: String,
-    /// Devices that make it so (the resistor too large, the missing path...).
+    /// Devices that make it so (the resistor too large, the missing path...), the one to change
+    /// first.
     pub devices: Vec<DeviceId>,
+    /// Where the capacitor voltage settles in that phase, and the threshold it would have to
+    /// reach.
+    pub settles_v: f64,
+    pub threshold_v: f64,
+    /// The comparator input's bias current when it is what stops the phase (the network alone
+    /// would reach the threshold), with the resistance it flows through.
+    pub bias_a: Option<f64>,
+    pub bias_ohms: Option<f64>,
+    /// The state in which it was found (`V1 at min, RV1 wiper at 100 %`).
+    pub state: String,
 }
 
 /// What triggers a monostable and how its pulse compares with the trigger.
@@ -90,9 +101,13 @@ pub struct StuckPhase {
 pub struct TriggerFacts {
     /// The PULSE source or the timer whose output drives TRIG.
     pub driver: DeviceId,
+    /// Resistors between the driver and TRIG (empty: wired straight).
+    pub via: Vec<DeviceId>,
     /// Time the trigger input spends below its threshold in each period.
     pub low_s: Range,
     pub period_s: Range,
+    /// The one-shot's trigger threshold (half its control voltage).
+    pub threshold_v: Range,
 }
 
 #[derive(Clone, Debug, PartialEq)]
@@ -120,8 +135,22 @@ pub struct TimerFacts {
     /// and duty.
     pub divided_frequency_hz: Option<f64>,
     pub divided_duty: Option<f64>,
-    /// Output pin current (source or sink) over states.
+    /// Output pin current over states: positive while the pin sources current, negative while
+    /// it sinks.
     pub output_current_a: Option<Range>,
+    /// Comparator thresholds on the capacitor: upper (threshold input, the control voltage) and
+    /// lower (trigger input, half of it), over corners.
+    pub upper_threshold_v: Option<Range>,
+    pub lower_threshold_v: Option<Range>,
+    /// What the discharge pin sees while it is off: the Thevenin resistance of the network at
+    /// the pin and the voltage behind it, over pot travel and corners. A resistance near zero
+    /// with a voltage behind it is a dead short once the pin turns on.
+    pub discharge_source_ohms: Option<Range>,
+    pub discharge_open_v: Option<Range>,
+    /// Devices that carry the capacitor's current while it charges (output high) and while it
+    /// discharges (output low): the parts that set each phase's time.
+    pub charge_path: Vec<DeviceId>,
+    pub discharge_path: Vec<DeviceId>,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]

@@ -163,7 +163,7 @@ pub fn stamp(
                 } else {
                     data.value("vol").unwrap_or(0.0)
                 };
-                let internal = network.add_node("logic output");
+                let internal = network.add_node(&format!("logic output #{id}"));
                 network.add_voltage_source(internal, gnd, v);
                 out.main = Some(network.add_resistor(internal, o, LOGIC_OUTPUT_OHMS));
             }
@@ -226,7 +226,9 @@ fn stamp_timer(
         } else {
             TIMER_OUTPUT_LOW_V
         };
-        let internal = network.add_node("timer output stage");
+        // One internal node per timer: nodes are found by name, and two timers in one
+        // sub-network must not share their output stages.
+        let internal = network.add_node(&format!("timer output stage #{id}"));
         network.add_voltage_source(internal, gnd, v);
         out.main = Some(network.add_resistor(internal, o, TIMER_OUTPUT_OHMS));
     }
@@ -241,15 +243,17 @@ fn stamp_timer(
             ));
         }
     }
-    if let Some(thr) = device.pin(PinRole::Thr) {
+    // Each comparator input draws its bias current only while its comparator is the one about
+    // to switch: the threshold input (current into the pin) while the output is high and the
+    // capacitor charges toward it, the trigger input (current out of the pin) while the output
+    // is low. Stamping both at once would let them cancel where THR and TRIG share a net.
+    if let (Some(thr), true) = (device.pin(PinRole::Thr), high) {
         let thr = node_of(thr, network);
-        let i = data.value("threshold_bias").unwrap_or(0.25e-6);
-        network.add_current_source(thr, gnd, i);
+        network.add_current_source(thr, gnd, threshold_bias(data));
     }
-    if let Some(trig) = device.pin(PinRole::Trig) {
+    if let (Some(trig), false) = (device.pin(PinRole::Trig), high) {
         let trig = node_of(trig, network);
-        let i = data.value("trigger_bias").unwrap_or(0.5e-6);
-        network.add_current_source(gnd, trig, i);
+        network.add_current_source(gnd, trig, trigger_bias(data));
     }
     if let (Some(ctrl), Some(vcc_net)) = (device.pin(PinRole::Ctrl), device.pin(PinRole::Vcc)) {
         let ctrl = node_of(ctrl, network);
@@ -258,6 +262,22 @@ fn stamp_timer(
         network.add_resistor(vcc_node, ctrl, r);
         network.add_resistor(ctrl, gnd, 2.0 * r);
     }
+}
+
+/// Current into a timer's threshold pin (bipolar about 0.25 µA, from memory).
+pub fn threshold_bias(data: &PartData) -> f64 {
+    data.value("threshold_bias_current")
+        .or_else(|| data.value("threshold_bias"))
+        .filter(|v| v.is_finite() && *v >= 0.0)
+        .unwrap_or(0.25e-6)
+}
+
+/// Current out of a timer's trigger pin (bipolar about 0.5 µA, from memory).
+pub fn trigger_bias(data: &PartData) -> f64 {
+    data.value("trigger_bias_current")
+        .or_else(|| data.value("trigger_bias"))
+        .filter(|v| v.is_finite() && *v >= 0.0)
+        .unwrap_or(0.5e-6)
 }
 
 /// The voltage on a timer's supply pin in a state: its fixed potential, or the highest supply.

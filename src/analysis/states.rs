@@ -274,6 +274,13 @@ impl<'a> Context<'a> {
 
     /// Solves one component in one state.
     pub fn solve(&self, component: &Component, state: &State) -> Result<Solved, DcError> {
+        self.build(component, state).solve(&self.options)
+    }
+
+    /// The network of one component in one state, before it is solved, so that a caller can
+    /// add elements of its own (a source holding a node, a probe) and solve it, or take a
+    /// Thevenin equivalent.
+    pub fn build(&self, component: &Component, state: &State) -> Built {
         let mut network = Network::new();
         let mut nodes: BTreeMap<NetId, Node> = BTreeMap::new();
         let ground = network.ground();
@@ -310,8 +317,11 @@ impl<'a> Context<'a> {
             let elements = stand_in::stamp(self, device, state, &mut network, &mut node_of);
             devices.insert(device, elements);
         }
-        let op = dc::solve(&network, &self.options)?;
-        Ok(Solved { op, nodes, devices })
+        Built {
+            network,
+            nodes,
+            devices,
+        }
     }
 
     /// Searches a pot's travel for the position that maximises `objective` (grid then golden
@@ -358,6 +368,29 @@ impl<'a> Context<'a> {
             }
         }
         best
+    }
+}
+
+/// One component's network in one state, with the map from nets and devices to its nodes and
+/// elements, not yet solved.
+pub struct Built {
+    pub network: Network,
+    pub nodes: BTreeMap<NetId, Node>,
+    pub devices: BTreeMap<DeviceId, DeviceElements>,
+}
+
+impl Built {
+    pub fn node(&self, net: NetId) -> Option<Node> {
+        self.nodes.get(&net).copied()
+    }
+
+    pub fn solve(self, options: &SolveOptions) -> Result<Solved, DcError> {
+        let op = dc::solve(&self.network, options)?;
+        Ok(Solved {
+            op,
+            nodes: self.nodes,
+            devices: self.devices,
+        })
     }
 }
 

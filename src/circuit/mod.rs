@@ -50,10 +50,28 @@ impl PartData {
 
     /// Sets `name` unless a stronger source already did.
     pub fn set_if_absent(&mut self, name: &str, value: f64, source: impl Into<String>) {
-        self.values.entry(name.to_string()).or_insert(Rated {
-            value,
-            source: source.into(),
-        });
+        if !self.values.contains_key(name) {
+            self.values.insert(
+                name.to_string(),
+                Rated {
+                    value,
+                    source: source.into(),
+                },
+            );
+        }
+    }
+
+    /// Like [`PartData::set_if_absent`], building the provenance text only when it is used.
+    pub fn set_if_absent_with(&mut self, name: &str, value: f64, source: impl FnOnce() -> String) {
+        if !self.values.contains_key(name) {
+            self.values.insert(
+                name.to_string(),
+                Rated {
+                    value,
+                    source: source(),
+                },
+            );
+        }
     }
 }
 
@@ -74,7 +92,16 @@ impl Device {
     }
 }
 
+mod data;
+mod defaults;
+pub mod glob;
 pub mod graph;
+mod layouts;
+mod library;
 pub mod parts;
+pub mod pins;
+mod query;
 
-pub use graph::Circuit;
+pub use defaults::LOGIC_LEVEL_VGS_TH_MAX;
+pub use graph::{Circuit, GraphNode};
+pub use query::SeriesChain;

@@ -1,4 +1,13 @@
 //! `kickback.toml`: discovery beside the netlist or in a parent folder, schema and validation.
+//!
+//! The schema: `[analysis] ground`, `[rules]` severities, `[supply.NAME]` corners,
+//! `[parts.NAME]` (a model or subcircuit name or a glob) and `[elements."PATH"]` (one flattened
+//! instance), the last two with `kind`, `pins` and rating names. Every problem is a
+//! [`ConfigError`] naming the file, the 1-based line and column, and the key.
+
+mod schema;
+mod tree;
+mod value;
 
 use crate::circuit::Kind;
 use crate::diagnostic::Severity;
@@ -16,7 +25,7 @@ pub enum RuleLevel {
 
 #[derive(Clone, Debug, PartialEq)]
 pub struct AnalysisConfig {
-    /// Reference nets, compared case-insensitively.
+    /// Reference nets, compared case-insensitively. SPICE node `0` is always a reference too.
     pub ground: Vec<String>,
 }
 
@@ -40,9 +49,10 @@ pub struct SupplyConfig {
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct PartConfig {
     pub kind: Option<Kind>,
-    /// Pin roles in port order (`["d", "g", "s"]`).
+    /// Pin roles in port order (`["d", "g", "s"]`), as written; each is a known role name.
     pub pins: Option<Vec<String>>,
-    /// Rating name → value in SI base units.
+    /// Rating name (lower-case) → value in SI base units; `polarized` and `logic_level` are
+    /// stored as 1.0 / 0.0.
     pub ratings: BTreeMap<String, f64>,
 }
 
@@ -51,10 +61,16 @@ pub struct Config {
     /// Where it was read from; `None` for the built-in defaults.
     pub path: Option<PathBuf>,
     pub analysis: AnalysisConfig,
+    /// Rule ID as written → level. IDs are not checked against the rule registry here.
     pub rules: BTreeMap<String, RuleLevel>,
+    /// Rule ID as written → 1-based (line, column) of its key, so that an unknown ID can be
+    /// reported at its line.
+    pub rule_spans: BTreeMap<String, (usize, usize)>,
+    /// Source element name as written → corners.
     pub supplies: BTreeMap<String, SupplyConfig>,
-    /// In file order: the pattern (name or glob) and its data.
+    /// In file order: the pattern (name or glob, as written) and its data.
     pub parts: Vec<(String, PartConfig)>,
+    /// Flattened instance path as written → data. Matched case-insensitively.
     pub elements: BTreeMap<String, PartConfig>,
 }
 
@@ -65,6 +81,7 @@ pub struct ConfigError {
     pub path: PathBuf,
     pub line: usize,
     pub column: usize,
+    /// Dotted key path (`parts.PUMP12.stall_current`), when the problem is at a key.
     pub key: Option<String>,
     pub message: String,
 }
@@ -72,15 +89,73 @@ pub struct ConfigError {
 impl Config {
     /// Reads and validates a config file.
     pub fn load(path: &Path) -> Result<Config, ConfigError> {
-        Ok(Config {
-            path: Some(path.to_path_buf()),
-            ..Config::default()
-        })
+        let text = std::fs::read_to_string(path).map_err(|e| ConfigError {
+            path: path.to_path_buf(),
+            line: 1,
+            column: 1,
+            key: None,
+            message: format!("cannot read the configuration: {e}"),
+        })?;
+        Config::parse(&text, path)
     }
 
-    /// Finds `kickback.toml` beside `netlist` or in a parent folder.
+    /// Validates config text; `path` is only used to name the file in errors and in `path`.
+    pub fn parse(text: &str, path: &Path) -> Result<Config, ConfigError> {
+        let mut config = schema::read(text, path)?;
+        config.path = Some(path.to_path_buf());
+        Ok(config)
+    }
+
+    /// Finds `kickback.toml` beside `netlist` or in a parent folder, up to the filesystem root,
+    /// and loads the first one found.
     pub fn discover(netlist: &Path) -> Result<Option<Config>, ConfigError> {
-        let _ = netlist;
+        let absolute = netlist
+            .canonicalize()
+            .or_else(|_| std::path::absolute(netlist))
+            .unwrap_or_else(|_| netlist.to_path_buf());
+        let start = if absolute.is_dir() {
+            absolute.as_path()
+        } else {
+            absolute.parent().unwrap_or(absolute.as_path())
+        };
+        for folder in start.ancestors() {
+            let candidate = folder.join(FILE_NAME);
+            if candidate.is_file() {
+                return Config::load(&candidate).map(Some);
+            }
+        }
         Ok(None)
     }
+
+    /// The `[supply.NAME]` entry for a source element name, case-insensitive.
+    pub fn supply(&self, element: &str) -> Option<&SupplyConfig> {
+        self.supplies
+            .iter()
+            .find(|(name, _)| name.eq_ignore_ascii_case(element))
+            .map(|(_, s)| s)
+    }
+
+    /// The `[rules]` level for a rule ID, case-insensitive.
+    pub fn rule_level(&self, rule: &str) -> Option<RuleLevel> {
+        self.rules
+            .iter()
+            .find(|(name, _)| name.eq_ignore_ascii_case(rule))
+            .map(|(_, level)| *level)
+    }
+
+    /// True when `net` is one of the reference nets (`0` always is).
+    pub fn is_ground_name(&self, net: &str) -> bool {
+        net == "0"
+            || self
+                .analysis
+                .ground
+                .iter()
+                .any(|g| g.eq_ignore_ascii_case(net))
+    }
+}
+
+/// A commented starter `kickback.toml`, as written by `kickback init`. It parses cleanly, and so
+/// does every example in it once uncommented.
+pub fn starter_toml() -> &'static str {
+    include_str!("starter.toml")
 }

@@ -364,6 +364,7 @@ pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
 }
 
 pub mod eseries;
+pub mod hygiene_util;
 pub mod suppress;
 pub mod switch_util;
 pub mod units;

@@ -1,8 +1,267 @@
-//! `model-missing`: an element names a model or subcircuit that is defined nowhere. See `rules/model-missing.md`.
+//! `model-missing`: an element names a model or subcircuit that is defined nowhere and that part
+//! knowledge does not know. See `rules/model-missing.md`.
+//!
+//! When an include could not be read, the names left undefined are blamed on it: one warning
+//! per missing file, listing what it would have defined, instead of an error per element.
 
+use super::hygiene_util::{finding_at, Once};
 use super::RuleContext;
-use crate::diagnostic::Finding;
+use crate::circuit::parts;
+use crate::diagnostic::{Finding, Severity};
+use crate::netlist::FlatElement;
+use globset::{GlobBuilder, GlobMatcher};
+use std::collections::{BTreeMap, HashSet};
+
+const RULE: &str = "model-missing";
+/// Uses labelled per missing include; the message lists every name.
+const MAX_LABELS: usize = 8;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
-    let _ = (cx, out);
+    let known = Known::new(cx);
+    // Lower-case name → (name as first written, elements that use it).
+    let mut undefined: BTreeMap<String, (String, Vec<&FlatElement>)> = BTreeMap::new();
+    for element in &cx.netlist.elements {
+        let Some(name) = element.model.as_deref() else {
+            continue;
+        };
+        if element.model_index.is_some() || element.subckt.is_some() || known.knows(element, name) {
+            continue;
+        }
+        undefined
+            .entry(name.to_ascii_lowercase())
+            .or_insert_with(|| (name.to_string(), Vec::new()))
+            .1
+            .push(element);
+    }
+    if !cx.netlist.missing_includes.is_empty() {
+        blame_missing_includes(cx, &undefined, out);
+        return;
+    }
+    let mut once = Once::default();
+    for (key, (name, users)) in &undefined {
+        for element in users {
+            if once.first(element.span, key.as_str()) {
+                out.push(missing(cx, element, name, users.len()));
+            }
+        }
+    }
+}
+
+/// Names part knowledge can describe without a `.model` or `.subckt` in the deck.
+struct Known<'a> {
+    cx: &'a RuleContext<'a>,
+    subckts: HashSet<String>,
+    exact_parts: HashSet<String>,
+    glob_parts: Vec<GlobMatcher>,
+    elements: HashSet<String>,
+}
+
+impl<'a> Known<'a> {
+    fn new(cx: &'a RuleContext<'a>) -> Self {
+        let mut exact_parts = HashSet::new();
+        let mut glob_parts = Vec::new();
+        for (pattern, _) in &cx.config.parts {
+            if pattern.contains(['*', '?', '[']) {
+                let glob = GlobBuilder::new(pattern).case_insensitive(true).build();
+                if let Ok(glob) = glob {
+                    glob_parts.push(glob.compile_matcher());
+                }
+            } else {
+                exact_parts.insert(pattern.to_ascii_lowercase());
+            }
+        }
+        Known {
+            cx,
+            subckts: lower_set(cx.netlist.subckt_names.iter()),
+            exact_parts,
+            glob_parts,
+            elements: lower_set(cx.config.elements.keys()),
+        }
+    }
+
+    fn knows(&self, element: &FlatElement, name: &str) -> bool {
+        let lower = name.to_ascii_lowercase();
+        self.subckts.contains(&lower)
+            || self.exact_parts.contains(&lower)
+            || self.glob_parts.iter().any(|g| g.is_match(name))
+            || self.elements.contains(&element.path.to_ascii_lowercase())
+            || parts::keeps_whole(name, self.cx.config)
+    }
+}
+
+fn lower_set<'s>(names: impl Iterator<Item = &'s String>) -> HashSet<String> {
+    names.map(|n| n.to_ascii_lowercase()).collect()
+}
+
+fn what_it_names(element: &FlatElement) -> &'static str {
+    match element.letter {
+        'X' => "subcircuit",
+        _ => "model",
+    }
+}
+
+fn missing(cx: &RuleContext<'_>, element: &FlatElement, name: &str, uses: usize) -> Finding {
+    let what = what_it_names(element);
+    let elsewhere = cx
+        .netlist
+        .models
+        .iter()
+        .find(|m| m.name.eq_ignore_ascii_case(name));
+    let mut message = match elsewhere {
+        Some(_) => format!(
+            "{} names {what} `{name}`, which is defined only inside another subcircuit and is \
+             not visible here",
+            element.path
+        ),
+        None => format!(
+            "{} names {what} `{name}`, which no `.model` card or `.subckt` in the deck defines \
+             and kickback does not know",
+            element.path
+        ),
+    };
+    if uses > 1 {
+        message.push_str(&format!(" ({uses} elements use it)"));
+    }
+    message.push_str(": a simulator stops here, and kickback cannot tell what the part is");
+    let mut finding = finding_at(RULE, Severity::Error, element, message);
+    if let Some(model) = elsewhere {
+        finding = finding.with_label(model.span, format!("`{}` is defined here", model.name));
+    }
+    let near = similar_names(cx, name);
+    let help = match (near.first(), element.letter) {
+        (Some(near), _) => format!("did you mean `{near}`? Otherwise define `{name}`"),
+        (None, 'X') => format!(
+            "add `.subckt {name} ...`, include the file that defines it, or describe it in \
+             kickback.toml as [parts.{name}] with its kind (e.g. kind = \"dc-motor\")"
+        ),
+        (None, _) => format!(
+            "add `.model {name} <type> (...)`, include the library that defines it, or describe \
+             it in kickback.toml as [parts.{name}] with its kind and ratings"
+        ),
+    };
+    finding.with_help(help)
+}
+
+/// Defined names (models, subcircuits, configured parts) within a small edit distance.
+fn similar_names(cx: &RuleContext<'_>, name: &str) -> Vec<String> {
+    let lower = name.to_ascii_lowercase();
+    let limit = if lower.len() <= 4 { 1 } else { 2 };
+    let mut scored: Vec<(usize, String)> = cx
+        .netlist
+        .models
+        .iter()
+        .map(|m| m.name.clone())
+        .chain(cx.netlist.subckt_names.iter().cloned())
+        .chain(cx.config.parts.iter().map(|(p, _)| p.clone()))
+        .filter(|candidate| !candidate.contains(['*', '?', '[']))
+        .map(|candidate| {
+            let distance = strsim::osa_distance(&lower, &candidate.to_ascii_lowercase());
+            (distance, candidate)
+        })
+        .filter(|(d, _)| *d > 0 && *d <= limit)
+        .collect();
+    scored.sort();
+    scored.dedup();
+    scored.into_iter().map(|(_, n)| n).take(2).collect()
+}
+
+fn blame_missing_includes(
+    cx: &RuleContext<'_>,
+    undefined: &BTreeMap<String, (String, Vec<&FlatElement>)>,
+    out: &mut Vec<Finding>,
+) {
+    let several = cx.netlist.missing_includes.len() > 1;
+    let names: Vec<&str> = undefined.values().map(|(n, _)| n.as_str()).collect();
+    for include in &cx.netlist.missing_includes {
+        let message = if names.is_empty() {
+            format!(
+                "`{}` could not be read; nothing this deck uses is left undefined by it, but \
+                 whatever it sets up is missing from the check",
+                include.path
+            )
+        } else if several {
+            format!(
+                "`{}` could not be read; it or another missing include would have defined {}",
+                include.path,
+                quoted_list(&names)
+            )
+        } else {
+            format!(
+                "`{}` could not be read; it would have defined {}",
+                include.path,
+                quoted_list(&names)
+            )
+        };
+        let mut finding = Finding::new(RULE, Severity::Warning, include.span, message).with_help(
+            "put the file where the path points (relative to this netlist) or correct the path; \
+             checks that need these parts are skipped until then",
+        );
+        for (name, users) in undefined.values().take(MAX_LABELS) {
+            if let Some(first) = users.first() {
+                finding = finding.with_label(first.span, format!("{} uses `{name}`", first.path));
+            }
+        }
+        out.push(finding);
+    }
+}
+
+fn quoted_list(names: &[&str]) -> String {
+    names
+        .iter()
+        .map(|n| format!("`{n}`"))
+        .collect::<Vec<_>>()
+        .join(", ")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::circuit::{Kind, PinRole};
+    use crate::netlist::MissingInclude;
+    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::source::{FileId, Span};
+
+    fn deck_with_unknown_diode() -> Deck {
+        let mut d = Deck::new();
+        d.v("V1", "a", "0", 5.0);
+        let e = d.add(
+            "D1",
+            Kind::Diode,
+            &[(PinRole::Anode, "a"), (PinRole::Cathode, "0")],
+        );
+        e.model = Some("DFAST".into());
+        d
+    }
+
+    #[test]
+    fn undefined_model_is_an_error() {
+        let d = deck_with_unknown_diode();
+        let found = d.run(check);
+        assert_eq!(found.len(), 1);
+        assert_eq!(found[0].severity, Severity::Error);
+        assert!(found[0].message.contains("`DFAST`"), "{}", found[0].message);
+    }
+
+    #[test]
+    fn configured_part_is_known() {
+        let mut d = deck_with_unknown_diode();
+        d.config
+            .parts
+            .push(("dfa*".into(), crate::config::PartConfig::default()));
+        assert!(d.run(check).is_empty());
+    }
+
+    #[test]
+    fn missing_include_takes_the_blame_once() {
+        let mut d = deck_with_unknown_diode();
+        d.netlist.missing_includes.push(MissingInclude {
+            path: "diodes.lib".into(),
+            span: Span::new(FileId(0), 0, 10),
+        });
+        let found = d.run(check);
+        assert_eq!(found.len(), 1);
+        assert_eq!(found[0].severity, Severity::Warning);
+        assert!(found[0].message.contains("diodes.lib") && found[0].message.contains("DFAST"));
+        assert_eq!(found[0].labels.len(), 1);
+    }
 }

@@ -33,9 +33,9 @@ impl Layout {
         for (slot, element) in internal.iter_mut().zip(&net.elements) {
             if let Element::Diode { anode, params, .. } = element {
                 if params.rs > 0.0 {
+                    // The junction node is blamed on the anode's net, the name callers know.
                     *slot = Some(labels.len());
-                    let name = format!("{} (diode junction behind RS)", net.node_name(*anode));
-                    labels.push(vec![name]);
+                    labels.push(vec![net.node_name(*anode).to_string()]);
                 }
             }
         }
@@ -122,13 +122,20 @@ pub(crate) struct StepSettings {
 pub(crate) struct System {
     pub a: DMatrix<f64>,
     pub b: DVector<f64>,
+    /// Per row, `Σ|term|` over every stamped term before cancellation, each matrix term
+    /// weighed by the iterate's value of its unknown. It bounds the rounding error of the
+    /// row, so the KCL test does not demand more precision than the arithmetic has.
+    pub row_weight: DVector<f64>,
+    weigh_against: Option<DVector<f64>>,
 }
 
 impl System {
-    fn new(size: usize) -> Self {
+    fn new(size: usize, weigh_against: Option<DVector<f64>>) -> Self {
         Self {
             a: DMatrix::zeros(size, size),
             b: DVector::zeros(size),
+            row_weight: DVector::zeros(size),
+            weigh_against,
         }
     }
 
@@ -137,12 +144,22 @@ impl System {
             if let Some(entry) = self.a.get_mut((r, c)) {
                 *entry += value;
             }
+            if let Some(x) = self.weigh_against.as_ref().and_then(|x| x.get(c)) {
+                if let Some(w) = self.row_weight.get_mut(r) {
+                    *w += (value * x).abs();
+                }
+            }
         }
     }
 
     fn add_rhs(&mut self, row: Slot, value: f64) {
-        if let Some(entry) = row.and_then(|r| self.b.get_mut(r)) {
-            *entry += value;
+        if let Some(r) = row {
+            if let Some(entry) = self.b.get_mut(r) {
+                *entry += value;
+            }
+            if let Some(w) = self.row_weight.get_mut(r) {
+                *w += value.abs();
+            }
         }
     }
 
@@ -195,7 +212,33 @@ pub(crate) fn assemble(
     lin: &[[f64; 2]],
     step: StepSettings,
 ) -> System {
-    let mut sys = System::new(layout.size);
+    stamp_all(net, layout, lin, step, System::new(layout.size, None))
+}
+
+/// As [`assemble`], also filling [`System::row_weight`] against the iterate `x`.
+pub(crate) fn assemble_weighted(
+    net: &Network,
+    layout: &Layout,
+    lin: &[[f64; 2]],
+    step: StepSettings,
+    x: &DVector<f64>,
+) -> System {
+    stamp_all(
+        net,
+        layout,
+        lin,
+        step,
+        System::new(layout.size, Some(x.clone())),
+    )
+}
+
+fn stamp_all(
+    net: &Network,
+    layout: &Layout,
+    lin: &[[f64; 2]],
+    step: StepSettings,
+    mut sys: System,
+) -> System {
     let at = |node: Node| layout.node(node);
     for (index, element) in net.elements.iter().enumerate() {
         let point = lin.get(index).copied().unwrap_or([0.0, 0.0]);

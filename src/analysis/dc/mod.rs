@@ -25,6 +25,7 @@
 //! evaluated at the new point. When plain Newton fails, gmin stepping and then source
 //! stepping are tried; all of it is bounded by an iteration budget, so a solve always ends.
 
+mod balance;
 mod linear;
 mod mna;
 mod models;
@@ -34,6 +35,9 @@ mod options;
 mod result;
 mod thevenin;
 mod topology;
+
+#[cfg(test)]
+mod tests;
 
 pub use models::MosRegion;
 pub use network::{
@@ -54,7 +58,31 @@ use newton::{Converged, Failure, Solver};
 /// voltage-source loops or a degenerate matrix, [`DcError::NoConvergence`] when Newton and its
 /// fallbacks all fail within the iteration budget.
 pub fn solve(network: &Network, options: &SolveOptions) -> Result<OperatingPoint, DcError> {
-    let (layout, converged, iterations, fallback) = solve_raw(network, options)?;
+    solve_with_start(network, options, None)
+}
+
+/// As [`solve`], starting Newton from `start`, the operating point of the same network
+/// (same nodes and elements, in the same order) with other element values. Sweeps of a
+/// supply corner or a pot's wiper converge in a few iterations this way. A `start` from a
+/// differently built network is ignored, and a start that fails falls back to [`solve`]'s
+/// zero start, so the answer never depends on the starting point being good.
+///
+/// # Errors
+/// As [`solve`].
+pub fn solve_from(
+    network: &Network,
+    options: &SolveOptions,
+    start: &OperatingPoint,
+) -> Result<OperatingPoint, DcError> {
+    solve_with_start(network, options, Some(&start.solution))
+}
+
+fn solve_with_start(
+    network: &Network,
+    options: &SolveOptions,
+    start: Option<&[f64]>,
+) -> Result<OperatingPoint, DcError> {
+    let (layout, converged, iterations, fallback) = solve_raw(network, options, start)?;
     Ok(OperatingPoint::build(
         network,
         &layout,
@@ -70,11 +98,12 @@ pub fn solve(network: &Network, options: &SolveOptions) -> Result<OperatingPoint
 pub(crate) fn solve_raw(
     network: &Network,
     options: &SolveOptions,
+    start: Option<&[f64]>,
 ) -> Result<(Layout, Converged, usize, Fallback), DcError> {
     topology::validate(network)?;
     topology::check_structure(network)?;
     let layout = Layout::new(network);
-    let outcome = Solver::new(network, &layout, options).solve();
+    let outcome = Solver::new(network, &layout, options).solve(start);
     match outcome.result {
         Ok((converged, fallback)) => Ok((layout, converged, outcome.iterations, fallback)),
         Err(Failure::Singular(unknowns)) => Err(topology::singular(names(&layout, &unknowns))),
@@ -95,10 +124,21 @@ fn names(layout: &Layout, unknowns: &[usize]) -> Vec<String> {
         .collect()
 }
 
-/// Net names for unknowns in the given order (first occurrence kept), at most ten.
+/// Net names for unknowns in the given order (first occurrence kept), at most ten. Node
+/// voltages are named in preference to branch currents, which only point at their nodes.
 fn names_in_order(layout: &Layout, unknowns: &[usize]) -> Vec<String> {
+    let voltages: Vec<usize> = unknowns
+        .iter()
+        .copied()
+        .filter(|&k| k < layout.voltage_unknowns)
+        .collect();
+    let chosen = if voltages.is_empty() {
+        unknowns
+    } else {
+        &voltages
+    };
     let mut out: Vec<String> = Vec::new();
-    for name in names(layout, unknowns) {
+    for name in names(layout, chosen) {
         if !out.contains(&name) {
             out.push(name);
         }

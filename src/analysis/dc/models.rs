@@ -3,15 +3,24 @@
 
 use super::network::{BjtParams, BjtPolarity, DiodeParams, MosParams, MosPolarity};
 
-/// Above this exponent the exponential is continued by its tangent line, so a wild Newton
-/// step yields a large finite current instead of infinity.
+/// Junction current beyond which the exponential continues along its tangent line. No part
+/// in this domain survives a kiloampere, and stopping there keeps a junction wired straight
+/// across a supply at a huge but finite current whose arithmetic still cancels cleanly.
+const JUNCTION_CEILING: f64 = 1e3;
+/// Largest exponent evaluated as an exponential whatever the scale current.
 const EXP_LIMIT: f64 = 80.0;
 
-/// `exp(x)` and its derivative, linear beyond [`EXP_LIMIT`].
-fn exp_guarded(x: f64) -> (f64, f64) {
-    if x > EXP_LIMIT {
-        let e = EXP_LIMIT.exp();
-        (e * (1.0 + (x - EXP_LIMIT)), e)
+/// The exponent `V/(N·Vt)` at which a junction with scale current `is` reaches
+/// [`JUNCTION_CEILING`].
+pub(crate) fn knee(is: f64) -> f64 {
+    (JUNCTION_CEILING / is).ln().clamp(1.0, EXP_LIMIT)
+}
+
+/// `exp(x)` and its derivative, continued linearly beyond `limit`.
+fn exp_guarded(x: f64, limit: f64) -> (f64, f64) {
+    if x > limit {
+        let e = limit.exp();
+        (e * (1.0 + (x - limit)), e)
     } else {
         let e = x.exp();
         (e, e)
@@ -30,11 +39,11 @@ pub(crate) struct Branch {
 /// branch carries nothing at 0 V.
 pub(crate) fn diode_junction(v: f64, p: &DiodeParams, vt: f64, gmin: f64) -> Branch {
     let nvt = p.n * vt;
-    let (e, de) = exp_guarded(v / nvt);
+    let (e, de) = exp_guarded(v / nvt, knee(p.is));
     let mut current = p.is * (e - 1.0) + gmin * v;
     let mut conductance = p.is * de / nvt + gmin;
     if let Some(bv) = p.bv {
-        let (eb, deb) = exp_guarded(-(v + bv) / nvt);
+        let (eb, deb) = exp_guarded(-(v + bv) / nvt, knee(p.ibv));
         let offset = (-bv / nvt).exp();
         current -= p.ibv * (eb - offset);
         conductance += p.ibv * deb / nvt;
@@ -47,14 +56,22 @@ pub(crate) fn diode_junction(v: f64, p: &DiodeParams, vt: f64, gmin: f64) -> Bra
 
 /// Junction voltage above which an exponential junction's current runs away fastest per volt
 /// of Newton step; the limiter starts acting above it.
-pub(crate) fn critical_voltage(is: f64, nvt: f64) -> f64 {
+fn critical_voltage(is: f64, nvt: f64) -> f64 {
     nvt * (nvt / (std::f64::consts::SQRT_2 * is)).ln()
 }
 
 /// Logarithmic step limit for a forward-biased pn junction: a step that would raise the
 /// junction voltage by many thermal voltages is shortened to the voltage whose current the
-/// present linearisation predicts. Returns the limited voltage and whether it changed.
-pub(crate) fn limit_junction(v_new: f64, v_old: f64, nvt: f64, v_crit: f64) -> (f64, bool) {
+/// present linearisation predicts. `is` is the junction's scale current. Returns the limited
+/// voltage and whether it changed.
+pub(crate) fn limit_junction(v_new: f64, v_old: f64, nvt: f64, is: f64) -> (f64, bool) {
+    // Beyond the exponential's linear continuation the model is a plain conductance and
+    // Newton needs no help.
+    let linear_from = knee(is) * nvt;
+    if v_old >= linear_from && v_new >= linear_from {
+        return (v_new, false);
+    }
+    let v_crit = critical_voltage(is, nvt);
     if v_new > v_crit && (v_new - v_old).abs() > 2.0 * nvt {
         let limited = if v_old > 0.0 {
             let arg = 1.0 + (v_new - v_old) / nvt;
@@ -77,12 +94,15 @@ pub(crate) fn limit_diode(v_new: f64, v_old: f64, p: &DiodeParams, vt: f64) -> (
     let nvt = p.n * vt;
     if let Some(bv) = p.bv {
         if v_new < (10.0 * nvt - bv).min(0.0) {
-            let crit = critical_voltage(p.ibv, nvt);
-            let (mirrored, hit) = limit_junction(-(v_new + bv), -(v_old + bv), nvt, crit);
-            return (-(mirrored + bv), hit);
+            let (mirrored, hit) = limit_junction(-(v_new + bv), -(v_old + bv), nvt, p.ibv);
+            return if hit {
+                (-(mirrored + bv), true)
+            } else {
+                (v_new, false)
+            };
         }
     }
-    limit_junction(v_new, v_old, nvt, critical_voltage(p.is, nvt))
+    limit_junction(v_new, v_old, nvt, p.is)
 }
 
 /// Terminal currents of a bipolar transistor and their derivatives with respect to V(b)−V(e)
@@ -116,8 +136,9 @@ pub(crate) fn bjt_sign(p: &BjtParams) -> f64 {
 pub(crate) fn bjt(vbe: f64, vbc: f64, p: &BjtParams, vt: f64, gmin: f64) -> BjtEval {
     let sign = bjt_sign(p);
     let nvt = p.n * vt;
-    let (ef, def) = exp_guarded(sign * vbe / nvt);
-    let (er, der) = exp_guarded(sign * vbc / nvt);
+    let limit = knee(p.is);
+    let (ef, def) = exp_guarded(sign * vbe / nvt, limit);
+    let (er, der) = exp_guarded(sign * vbc / nvt, limit);
     let forward = p.is * (ef - 1.0);
     let reverse = p.is * (er - 1.0);
     let gf = p.is * def / nvt;
@@ -211,25 +232,28 @@ pub(crate) fn mosfet(vgs: f64, vds: f64, p: &MosParams, gmin: f64) -> MosEval {
 
 /// Step limit for a MOSFET's controlling voltage (N sense): a device turning on stops just
 /// above threshold first, and large swings are cut to about twice the present overdrive.
-fn limit_gate(v_new: f64, v_old: f64, vto: f64) -> f64 {
+/// Returns `v_new` untouched, and false, when no limit acts.
+fn limit_gate(v_new: f64, v_old: f64, vto: f64) -> (f64, bool) {
     let max_step = 2.0 * (v_old - vto).abs() + 2.0;
     let step = v_new - v_old;
-    if v_old < vto {
+    let limited = if v_old < vto {
         if v_new > vto + 0.5 {
-            return (vto + 0.5).max(v_old);
+            Some((vto + 0.5).max(v_old))
+        } else {
+            (step < -max_step).then_some(v_old - max_step)
         }
-        return v_old + step.max(-max_step);
-    }
-    if v_new < vto - 0.5 {
-        return vto - 0.5;
-    }
-    v_old + step.clamp(-max_step, max_step)
+    } else if v_new < vto - 0.5 {
+        Some(vto - 0.5)
+    } else {
+        (step.abs() > max_step).then(|| v_old + max_step.copysign(step))
+    };
+    limited.map_or((v_new, false), |v| (v, true))
 }
 
 /// Step limit for the drain-source voltage (N sense): rises are held to a few volts at a time
 /// so the device passes through the regions instead of jumping over them.
-fn limit_channel(v_new: f64, v_old: f64) -> f64 {
-    if v_old >= 3.5 {
+fn limit_channel(v_new: f64, v_old: f64) -> (f64, bool) {
+    let bound = if v_old >= 3.5 {
         if v_new > v_old {
             v_new.min(3.0 * v_old + 2.0)
         } else if v_new < 3.5 {
@@ -241,28 +265,34 @@ fn limit_channel(v_new: f64, v_old: f64) -> f64 {
         v_new.min(4.0)
     } else {
         v_new.max(-0.5)
-    }
+    };
+    (bound, bound != v_new)
 }
 
 /// Limits a MOSFET's new `(vgs, vds)` against the previous linearisation point. Returns the
-/// limited pair and whether anything changed.
+/// limited pair and whether anything changed (the new pair itself when nothing did).
 pub(crate) fn limit_mosfet(new: (f64, f64), old: (f64, f64), p: &MosParams) -> ((f64, f64), bool) {
     let sign = mos_sign(p);
     let (ngs, nds) = (sign * new.0, sign * new.1);
     let (ogs, ods) = (sign * old.0, sign * old.1);
     let (lgs, lds) = if ods >= 0.0 {
-        let lgs = limit_gate(ngs, ogs, p.vto);
-        (lgs, limit_channel(nds, ods))
+        let (lgs, hit_gate) = limit_gate(ngs, ogs, p.vto);
+        let (lds, hit_channel) = limit_channel(nds, ods);
+        if !(hit_gate || hit_channel) {
+            return (new, false);
+        }
+        (lgs, lds)
     } else {
         // Reversed channel: the gate-drain voltage controls it and the mirrored channel
         // voltage is limited.
-        let lgd = limit_gate(ngs - nds, ogs - ods, p.vto);
-        let lds = -limit_channel(-nds, -ods);
-        (lgd + lds, lds)
+        let (lgd, hit_gate) = limit_gate(ngs - nds, ogs - ods, p.vto);
+        let (lsd, hit_channel) = limit_channel(-nds, -ods);
+        if !(hit_gate || hit_channel) {
+            return (new, false);
+        }
+        (lgd - lsd, -lsd)
     };
-    let limited = (sign * lgs, sign * lds);
-    let changed = limited.0 != new.0 || limited.1 != new.1;
-    (limited, changed)
+    ((sign * lgs, sign * lds), true)
 }
 
 /// Sharpness of the current-limited resistor's knee; higher is sharper.

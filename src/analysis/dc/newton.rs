@@ -4,8 +4,11 @@
 
 use nalgebra::DVector;
 
+use super::balance::node_balance;
 use super::linear::{solve_linear, LinearFailure};
-use super::mna::{assemble, device_voltages, DeviceVoltages, Layout, StepSettings};
+use super::mna::{
+    assemble, assemble_weighted, device_voltages, DeviceVoltages, Layout, StepSettings,
+};
 use super::models;
 use super::network::{Element, Network};
 use super::options::SolveOptions;
@@ -13,7 +16,7 @@ use super::options::SolveOptions;
 /// How the accepted solution was reached.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash)]
 pub enum Fallback {
-    /// Plain Newton–Raphson from a zero start converged.
+    /// Plain Newton–Raphson converged (from a zero start, or from the given starting point).
     None,
     /// A shunt conductance on every node was stepped down to zero.
     GminStepping,
@@ -53,10 +56,13 @@ pub(crate) struct Solver<'a> {
     used: usize,
 }
 
-/// Smallest shunt tried first in gmin stepping, in siemens, and the most it may grow to when
-/// even that start fails.
+/// Shunt tried first in gmin stepping, in siemens, and the most it may grow to (a decade per
+/// failure) when even that start fails: large enough to pin nodes fed through fractions of
+/// an ohm.
 const GMIN_START: f64 = 1e-3;
-const GMIN_CEILING: f64 = 1.0;
+const GMIN_CEILING: f64 = 1e3;
+/// Relative rounding allowed in the KCL check: a few hundred ulps of the largest terms.
+const ROUNDING_SLACK: f64 = 1e-13;
 /// Bounds on the number of stepping stages, beyond the iteration budget.
 const MAX_STAGES: usize = 200;
 
@@ -81,16 +87,25 @@ impl<'a> Solver<'a> {
         }
     }
 
-    /// Plain Newton, then gmin stepping, then source stepping.
-    pub(crate) fn solve(mut self) -> Outcome {
+    /// Plain Newton, then gmin stepping, then source stepping. A singular matrix on the way
+    /// does not end the attempt at once (devices may pass through states that isolate a
+    /// node); the first failure is what gets reported when every attempt fails.
+    ///
+    /// A `start` of the right size (the solution of the same network with other values) is
+    /// tried first; a failure from there falls back to the zero start.
+    pub(crate) fn solve(mut self, start: Option<&[f64]>) -> Outcome {
         let zero = DVector::zeros(self.layout.size);
         let zero_lin = vec![[0.0, 0.0]; self.net.elements.len()];
+        if let Some(start) = start.filter(|s| s.len() == self.layout.size) {
+            let x0 = DVector::from_column_slice(start);
+            let lin0 = device_voltages(self.net, self.layout, &x0);
+            if let Ok(done) = self.newton(&x0, &lin0, self.settings(1.0, 0.0)) {
+                return self.finish(Ok((done, Fallback::None)));
+            }
+        }
         let plain = self.newton(&zero, &zero_lin, self.settings(1.0, 0.0));
         let first_failure = match plain {
             Ok(done) => return self.finish(Ok((done, Fallback::None))),
-            Err(Failure::Singular(unknowns)) => {
-                return self.finish(Err(Failure::Singular(unknowns)))
-            }
             Err(failure) => failure,
         };
         if let Some(done) = self.gmin_stepping(&zero, &zero_lin) {
@@ -185,7 +200,7 @@ impl<'a> Solver<'a> {
     ) -> Result<Converged, Failure> {
         let mut x = x0.clone();
         let mut lin = lin0.clone();
-        let mut moving = Vec::new();
+        let mut blame = Vec::new();
         for _ in 0..self.options.max_iterations {
             if self.budget == 0 {
                 break;
@@ -200,23 +215,66 @@ impl<'a> Solver<'a> {
                 Err(LinearFailure::Degenerate(unknowns)) => {
                     return Err(Failure::Singular(unknowns))
                 }
-                Err(LinearFailure::NotFinite) => return Err(Failure::Diverged(moving)),
+                Err(LinearFailure::NotFinite) => break,
             };
-            moving = self.moving_unknowns(&x, &next);
+            let moving = self.moving_unknowns(&x, &next);
             x = next;
-            if !limited && moving.is_empty() && self.residual_small(&x, step) {
-                let lin = device_voltages(self.net, self.layout, &x);
-                return Ok(Converged { x, lin });
-            }
+            blame = if !moving.is_empty() {
+                moving
+            } else if !limited.is_empty() {
+                self.terminal_unknowns(&limited)
+            } else {
+                let failing = self.residual_failures(&x, step);
+                if failing.is_empty() {
+                    let lin = device_voltages(self.net, self.layout, &x);
+                    return Ok(Converged { x, lin });
+                }
+                failing
+            };
         }
-        Err(Failure::Diverged(moving))
+        if blame.is_empty() {
+            let nonlinear: Vec<usize> = (0..self.net.elements.len()).collect();
+            blame = self.terminal_unknowns(&nonlinear);
+        }
+        Err(Failure::Diverged(blame))
     }
 
-    /// Replaces `lin` by the limited device voltages for the new iterate; true when any
-    /// limit acted (the step is then not trusted for convergence).
-    fn limit(&self, raw: &DeviceVoltages, lin: &mut DeviceVoltages) -> bool {
-        let mut any = false;
-        for ((element, new), old) in self.net.elements.iter().zip(raw).zip(lin.iter_mut()) {
+    /// Voltage unknowns of the terminals of the given nonlinear elements.
+    fn terminal_unknowns(&self, elements: &[usize]) -> Vec<usize> {
+        let mut unknowns = Vec::new();
+        for element in elements.iter().filter_map(|&k| self.net.elements.get(k)) {
+            if matches!(
+                element,
+                Element::Diode { .. }
+                    | Element::Bjt { .. }
+                    | Element::Mosfet { .. }
+                    | Element::CurrentLimited { .. }
+            ) {
+                unknowns.extend(
+                    element
+                        .terminals()
+                        .into_iter()
+                        .filter_map(|n| self.layout.node(n)),
+                );
+            }
+        }
+        unknowns.sort_unstable();
+        unknowns.dedup();
+        unknowns
+    }
+
+    /// Replaces `lin` by the limited device voltages for the new iterate and returns the
+    /// elements whose limit acted (their step is then not trusted for convergence).
+    fn limit(&self, raw: &DeviceVoltages, lin: &mut DeviceVoltages) -> Vec<usize> {
+        let mut hits = Vec::new();
+        for (index, ((element, new), old)) in self
+            .net
+            .elements
+            .iter()
+            .zip(raw)
+            .zip(lin.iter_mut())
+            .enumerate()
+        {
             let (limited, hit) = match element {
                 Element::Diode { params, .. } => {
                     let (v, hit) = models::limit_diode(new[0], old[0], params, self.vt);
@@ -225,11 +283,10 @@ impl<'a> Solver<'a> {
                 Element::Bjt { params, .. } => {
                     let sign = models::bjt_sign(params);
                     let nvt = params.n * self.vt;
-                    let crit = models::critical_voltage(params.is, nvt);
                     let (be, hit_be) =
-                        models::limit_junction(sign * new[0], sign * old[0], nvt, crit);
+                        models::limit_junction(sign * new[0], sign * old[0], nvt, params.is);
                     let (bc, hit_bc) =
-                        models::limit_junction(sign * new[1], sign * old[1], nvt, crit);
+                        models::limit_junction(sign * new[1], sign * old[1], nvt, params.is);
                     ([sign * be, sign * bc], hit_be || hit_bc)
                 }
                 Element::Mosfet { params, .. } => {
@@ -240,9 +297,11 @@ impl<'a> Solver<'a> {
                 _ => (*new, false),
             };
             *old = limited;
-            any |= hit;
+            if hit {
+                hits.push(index);
+            }
         }
-        any
+        hits
     }
 
     /// Unknowns whose change exceeds `reltol·max(|old|, |new|)` plus the absolute tolerance
@@ -267,30 +326,32 @@ impl<'a> Solver<'a> {
         moving.into_iter().map(|(k, _)| k).collect()
     }
 
-    /// KCL holds at `x` with the devices evaluated exactly there: each node's residual
-    /// current is within `reltol` of the currents meeting at it plus `abstol` (and each
-    /// branch equation within `vntol`).
-    fn residual_small(&self, x: &DVector<f64>, step: StepSettings) -> bool {
+    /// Nodes where KCL fails at `x` with the devices evaluated exactly there, worst first. A
+    /// node's residual current may be `reltol` of the currents meeting at it plus `abstol`,
+    /// plus the rounding floor of the arithmetic that produced the iterate
+    /// ([`ROUNDING_SLACK`] times the row's stamped-term weight).
+    fn residual_failures(&self, x: &DVector<f64>, step: StepSettings) -> Vec<usize> {
+        let balance = node_balance(self.net, self.layout, x, step);
         let exact = device_voltages(self.net, self.layout, x);
-        let sys = assemble(self.net, self.layout, &exact, step);
+        let weights = assemble_weighted(self.net, self.layout, &exact, step, x).row_weight;
         let o = self.options;
-        sys.a
-            .row_iter()
-            .zip(sys.b.iter())
+        let mut failing: Vec<(usize, f64)> = balance
+            .residual
+            .iter()
+            .zip(&balance.magnitude)
+            .zip(weights.iter())
             .enumerate()
-            .all(|(k, (row, &rhs))| {
-                let (sum, scale) = row
-                    .iter()
-                    .zip(x.iter())
-                    .fold((0.0, rhs.abs()), |(s, m), (a, v)| {
-                        (s + a * v, m + (a * v).abs())
-                    });
-                let absolute = if k < self.layout.voltage_unknowns {
-                    o.abstol
+            .filter_map(|(k, ((&residual, &magnitude), &weight))| {
+                let allowed = o.reltol * magnitude + o.abstol + ROUNDING_SLACK * weight;
+                // Written so that a NaN residual fails too.
+                if residual.abs() <= allowed {
+                    None
                 } else {
-                    o.vntol
-                };
-                (sum - rhs).abs() <= o.reltol * scale + absolute
+                    Some((k, residual.abs() / allowed))
+                }
             })
+            .collect();
+        failing.sort_by(|a, b| b.1.total_cmp(&a.1));
+        failing.into_iter().map(|(k, _)| k).collect()
     }
 }

@@ -40,7 +40,7 @@ impl Default for SolveOptions {
 }
 
 impl SolveOptions {
-    /// Thermal voltage kT/q at [`SolveOptions::temperature_celsius`] (25.85 mV at 27 °C).
+    /// Thermal voltage kT/q at [`SolveOptions::temperature_celsius`] (25.865 mV at 27 °C).
     pub fn thermal_voltage(&self) -> f64 {
         K_OVER_Q * (self.temperature_celsius + 273.15)
     }

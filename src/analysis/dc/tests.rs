@@ -1,0 +1,239 @@
+//! Unit checks of the engine's internals: every model's analytic derivatives against central
+//! finite differences (the definition of the derivative), continuity across region
+//! boundaries, the step limiters, the structural checks and the equilibrated solve.
+
+use nalgebra::{DMatrix, DVector};
+
+use super::linear::{solve_linear, LinearFailure};
+use super::models::{self, MosRegion};
+use super::network::{BjtParams, BjtPolarity, DiodeParams, MosParams, MosPolarity, Network};
+use super::options::{DcError, SolveOptions};
+use super::topology;
+
+const VT: f64 = 0.025_865;
+const GMIN: f64 = 1e-12;
+
+/// Central difference of `f` at `x`.
+fn slope(f: impl Fn(f64) -> f64, x: f64) -> f64 {
+    let h = 1e-6 * x.abs().max(1e-3);
+    (f(x + h) - f(x - h)) / (2.0 * h)
+}
+
+fn assert_slope(analytic: f64, numeric: f64, what: &str) {
+    let scale = analytic.abs().max(numeric.abs()).max(1e-9);
+    assert!(
+        (analytic - numeric).abs() <= 1e-4 * scale,
+        "{what}: analytic {analytic}, numeric {numeric}"
+    );
+}
+
+#[test]
+fn thermal_voltage_at_room_temperature() {
+    // kT/q with the exact SI constants (k = 1.380649e-23 J/K, q = 1.602176634e-19 C).
+    let vt = SolveOptions::default().thermal_voltage();
+    assert!((vt - 0.025_865).abs() < 1e-6, "{vt}");
+}
+
+#[test]
+fn diode_conductance_is_the_derivative_of_its_current() {
+    let zener = DiodeParams {
+        bv: Some(5.1),
+        ..DiodeParams::default()
+    };
+    let rectifier = DiodeParams {
+        is: 2.5e-9,
+        n: 1.75,
+        ..DiodeParams::default()
+    };
+    for p in [DiodeParams::default(), zener, rectifier] {
+        for v in [-6.0, -5.2, -5.0, -1.0, 0.0, 0.3, 0.65, 0.8, 1.2, 3.0] {
+            let b = models::diode_junction(v, &p, VT, GMIN);
+            let numeric = slope(|v| models::diode_junction(v, &p, VT, GMIN).current, v);
+            assert_slope(b.conductance, numeric, &format!("diode at {v} V"));
+        }
+        assert!(models::diode_junction(0.0, &p, VT, GMIN).current.abs() < 1e-20);
+    }
+}
+
+#[test]
+fn bjt_partials_match_finite_differences() {
+    for polarity in [BjtPolarity::Npn, BjtPolarity::Pnp] {
+        let p = BjtParams {
+            polarity,
+            is: 1e-14,
+            beta_f: 120.0,
+            beta_r: 2.0,
+            n: 1.1,
+        };
+        let s = models::bjt_sign(&p);
+        for (vbe, vbc) in [
+            (0.65, -5.0),
+            (0.7, 0.55),
+            (-2.0, -3.0),
+            (0.2, 0.6),
+            (1.5, 1.4),
+        ] {
+            let (vbe, vbc) = (s * vbe, s * vbc);
+            let m = models::bjt(vbe, vbc, &p, VT, GMIN);
+            let ic_be = slope(|x| models::bjt(x, vbc, &p, VT, GMIN).ic, vbe);
+            let ic_bc = slope(|x| models::bjt(vbe, x, &p, VT, GMIN).ic, vbc);
+            let ib_be = slope(|x| models::bjt(x, vbc, &p, VT, GMIN).ib, vbe);
+            let ib_bc = slope(|x| models::bjt(vbe, x, &p, VT, GMIN).ib, vbc);
+            let at = format!("{polarity:?} at ({vbe}, {vbc})");
+            assert_slope(m.dic_dvbe, ic_be, &format!("dIc/dVbe {at}"));
+            assert_slope(m.dic_dvbc, ic_bc, &format!("dIc/dVbc {at}"));
+            assert_slope(m.dib_dvbe, ib_be, &format!("dIb/dVbe {at}"));
+            assert_slope(m.dib_dvbc, ib_bc, &format!("dIb/dVbc {at}"));
+        }
+    }
+}
+
+#[test]
+fn mosfet_partials_match_finite_differences_in_every_region() {
+    for polarity in [MosPolarity::N, MosPolarity::P] {
+        let p = MosParams {
+            polarity,
+            vto: 2.0,
+            k: 0.5,
+            lambda: 0.03,
+        };
+        let s = models::mos_sign(&p);
+        let points = [
+            (1.0, 5.0, MosRegion::Cutoff),
+            (4.0, 5.0, MosRegion::Saturation),
+            (6.0, 1.0, MosRegion::Triode),
+            (6.0, -1.0, MosRegion::Triode),
+            (-1.0, -4.0, MosRegion::Saturation),
+        ];
+        for (vgs, vds, region) in points {
+            let (vgs, vds) = (s * vgs, s * vds);
+            let m = models::mosfet(vgs, vds, &p, GMIN);
+            assert_eq!(m.region, region, "{polarity:?} at ({vgs}, {vds})");
+            let gm = slope(|x| models::mosfet(x, vds, &p, GMIN).id, vgs);
+            let gds = slope(|x| models::mosfet(vgs, x, &p, GMIN).id, vds);
+            assert_slope(
+                m.did_dvgs,
+                gm,
+                &format!("gm {polarity:?} at ({vgs}, {vds})"),
+            );
+            assert_slope(
+                m.did_dvds,
+                gds,
+                &format!("gds {polarity:?} at ({vgs}, {vds})"),
+            );
+        }
+    }
+}
+
+#[test]
+fn mosfet_current_is_continuous_at_region_boundaries() {
+    let p = MosParams {
+        polarity: MosPolarity::N,
+        vto: 2.0,
+        k: 0.5,
+        lambda: 0.05,
+    };
+    let id = |vgs: f64, vds: f64| models::mosfet(vgs, vds, &p, 0.0).id;
+    // Saturation edge Vds = Vgs − Vt, threshold, and channel reversal at Vds = 0.
+    let e = 1e-9;
+    assert!((id(5.0, 3.0 - e) - id(5.0, 3.0 + e)).abs() < 1e-8);
+    assert!((id(2.0 + e, 3.0) - id(2.0 - e, 3.0)).abs() < 1e-8);
+    assert!((id(5.0, e) - id(5.0, -e)).abs() < 1e-8);
+}
+
+#[test]
+fn current_limited_resistor_is_smooth_and_bounded() {
+    let (r, limit) = (10.0, 0.1);
+    for v in [-100.0, -1.0, -0.5, 0.0, 0.3, 0.999, 1.0, 1.001, 2.0, 1e6] {
+        let b = models::current_limited(v, r, limit, 0.0);
+        let numeric = slope(|v| models::current_limited(v, r, limit, 0.0).current, v);
+        assert_slope(b.conductance, numeric, &format!("limiter at {v} V"));
+        assert!(b.current.abs() <= limit * (1.0 + 1e-12));
+    }
+    let e = 1e-9;
+    let below = models::current_limited(1.0 - e, r, limit, 0.0).current;
+    let above = models::current_limited(1.0 + e, r, limit, 0.0).current;
+    assert!((below - above).abs() < 1e-9);
+    assert!(models::current_limited(f64::MAX, r, limit, 0.0)
+        .current
+        .is_finite());
+}
+
+#[test]
+fn junction_limit_shortens_large_forward_steps_only() {
+    let nvt = VT;
+    let (v, hit) = models::limit_junction(5.0, 0.6, nvt, 1e-14);
+    assert!(hit && v > 0.6 && v < 0.9, "{v}");
+    let (v, hit) = models::limit_junction(0.61, 0.6, nvt, 1e-14);
+    assert!(!hit && v == 0.61);
+    let (v, hit) = models::limit_junction(-20.0, 0.6, nvt, 1e-14);
+    assert!(!hit && v == -20.0);
+    // Past the current ceiling the model is linear and steps go through.
+    let (v, hit) = models::limit_junction(30.0, 20.0, nvt, 1e-14);
+    assert!(!hit && v == 30.0);
+}
+
+#[test]
+fn mosfet_limit_stops_a_turn_on_near_threshold() {
+    let p = MosParams {
+        polarity: MosPolarity::N,
+        vto: 2.0,
+        k: 1.0,
+        lambda: 0.0,
+    };
+    let ((vgs, vds), hit) = models::limit_mosfet((12.0, 12.0), (0.0, 0.0), &p);
+    assert!(hit && vgs == 2.5 && vds == 4.0, "({vgs}, {vds})");
+    let ((vgs, vds), hit) = models::limit_mosfet((5.1, 3.9), (5.0, 4.0), &p);
+    assert!(!hit && vgs == 5.1 && vds == 3.9);
+    let pmos = MosParams {
+        polarity: MosPolarity::P,
+        ..p
+    };
+    let ((vgs, _), hit) = models::limit_mosfet((-12.0, -12.0), (0.0, 0.0), &pmos);
+    assert!(hit && vgs == -2.5);
+}
+
+#[test]
+fn voltage_source_loop_names_only_the_loop() {
+    // The supply's own node is not part of a loop formed elsewhere.
+    let mut net = Network::new();
+    let gnd = net.ground();
+    let (vcc, a, b) = (net.add_node("vcc"), net.add_node("a"), net.add_node("b"));
+    net.add_voltage_source(vcc, gnd, 12.0);
+    net.add_voltage_source(a, gnd, 1.0);
+    net.add_voltage_source(b, a, 1.0);
+    net.add_voltage_source(b, gnd, 2.0);
+    net.add_resistor(vcc, a, 1.0);
+    match topology::check_structure(&net) {
+        Err(DcError::Singular { nodes }) => assert_eq!(nodes, vec!["a", "b"]),
+        other => panic!("{other:?}"),
+    }
+}
+
+#[test]
+fn equilibrated_solve_handles_a_saddle_with_huge_conductance() {
+    // [[g, 1], [1, 0]]·[v, i] = [0, V]: v = V, i = −g·V, for any g.
+    let g = 1e30;
+    let a = DMatrix::from_row_slice(2, 2, &[g, 1.0, 1.0, 0.0]);
+    let b = DVector::from_vec(vec![0.0, 2.0]);
+    let x = solve_linear(&a, &b).ok().expect("regular");
+    assert!((x[0] - 2.0).abs() < 1e-12);
+    assert!((x[1] + 2.0 * g).abs() < 1e-12 * g);
+}
+
+#[test]
+fn singular_and_non_finite_systems_are_reported() {
+    let a = DMatrix::from_row_slice(2, 2, &[1.0, 1.0, 1.0, 1.0]);
+    let b = DVector::from_vec(vec![1.0, 1.0]);
+    assert!(matches!(solve_linear(&a, &b), Err(LinearFailure::Degenerate(ref k)) if k == &[1]));
+    let zero_row = DMatrix::from_row_slice(2, 2, &[1.0, 0.0, 0.0, 0.0]);
+    assert!(matches!(
+        solve_linear(&zero_row, &b),
+        Err(LinearFailure::Degenerate(_))
+    ));
+    let nan = DMatrix::from_row_slice(2, 2, &[f64::NAN, 0.0, 0.0, 1.0]);
+    assert!(matches!(
+        solve_linear(&nan, &b),
+        Err(LinearFailure::NotFinite)
+    ));
+}

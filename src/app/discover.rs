@@ -1,0 +1,104 @@
+//! Which netlists a `check` covers: files named on the command line always, and the netlists
+//! found in folders, honouring `.gitignore` and `.ignore` files (in git checkouts or not).
+
+use std::collections::BTreeSet;
+use std::path::{Component, Path, PathBuf};
+
+/// Netlist extensions, compared case-insensitively.
+pub const EXTENSIONS: &[&str] = &["cir", "sp", "spice", "net", "ckt"];
+
+#[derive(Debug, Default)]
+pub struct Discovery {
+    /// Netlists to check, sorted, each once.
+    pub files: Vec<PathBuf>,
+    /// Paths that could not be read or walked, with why.
+    pub failures: Vec<(PathBuf, String)>,
+    /// Folders that held no netlist.
+    pub empty_folders: Vec<PathBuf>,
+}
+
+pub fn discover(paths: &[PathBuf]) -> Discovery {
+    let mut files = BTreeSet::new();
+    let mut out = Discovery::default();
+    for path in paths {
+        let path = tidy(path);
+        match std::fs::metadata(&path) {
+            Err(e) => out.failures.push((path, e.to_string())),
+            Ok(meta) if meta.is_dir() => {
+                if !walk(&path, &mut files, &mut out.failures) {
+                    out.empty_folders.push(path);
+                }
+            }
+            Ok(_) => {
+                files.insert(path);
+            }
+        }
+    }
+    out.files = files.into_iter().collect();
+    out.failures.sort();
+    out.empty_folders.sort();
+    out
+}
+
+/// Adds the netlists under `root`; false when there were none.
+fn walk(root: &Path, files: &mut BTreeSet<PathBuf>, failures: &mut Vec<(PathBuf, String)>) -> bool {
+    let mut found = false;
+    let walker = ignore::WalkBuilder::new(root).require_git(false).build();
+    for entry in walker {
+        match entry {
+            Ok(entry) => {
+                let path = entry.path();
+                // Symlinked netlists count; the walk itself does not follow linked folders.
+                let is_file = entry.file_type().is_some_and(|t| t.is_file())
+                    || (entry.path_is_symlink() && path.is_file());
+                if is_file && is_netlist(path) {
+                    files.insert(tidy(path));
+                    found = true;
+                }
+            }
+            Err(e) => failures.push((root.to_path_buf(), e.to_string())),
+        }
+    }
+    found
+}
+
+pub fn is_netlist(path: &Path) -> bool {
+    path.extension()
+        .and_then(|e| e.to_str())
+        .is_some_and(|e| EXTENSIONS.iter().any(|x| x.eq_ignore_ascii_case(e)))
+}
+
+/// `./hw/a.cir` → `hw/a.cir`: leading `.` components say nothing to the reader.
+fn tidy(path: &Path) -> PathBuf {
+    let mut components = path.components().peekable();
+    while components.peek() == Some(&Component::CurDir) {
+        components.next();
+    }
+    let tidied: PathBuf = components.collect();
+    if tidied.as_os_str().is_empty() {
+        PathBuf::from(".")
+    } else {
+        tidied
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn extensions_match_case_insensitively() {
+        assert!(is_netlist(Path::new("a/b.CIR")));
+        assert!(is_netlist(Path::new("b.Spice")));
+        assert!(is_netlist(Path::new("b.ckt")));
+        assert!(!is_netlist(Path::new("b.txt")));
+        assert!(!is_netlist(Path::new("cir")));
+    }
+
+    #[test]
+    fn leading_dots_are_dropped() {
+        assert_eq!(tidy(Path::new("./hw/a.cir")), PathBuf::from("hw/a.cir"));
+        assert_eq!(tidy(Path::new(".")), PathBuf::from("."));
+        assert_eq!(tidy(Path::new("../a.cir")), PathBuf::from("../a.cir"));
+    }
+}

@@ -1,0 +1,289 @@
+//! The command-line program: reads the arguments, runs the commands, picks the renderer and
+//! turns the outcome into an exit code. `src/main.rs` only calls [`main`].
+//!
+//! Exit codes: [`EXIT_CLEAN`] no error-level findings, [`EXIT_FINDINGS`] error-level findings
+//! (warnings too with `--deny warnings`), [`EXIT_FAILURE`] the tool could not do its job.
+
+pub mod catalogue;
+pub mod cli;
+pub mod discover;
+pub mod init;
+pub mod terminal;
+
+use crate::check::{check_file, CheckError, CheckOptions, FileReport};
+use crate::config::Config;
+use crate::diagnostic::Severity;
+use crate::netlist::{Limits, LoadError};
+use crate::report::{self, human::HumanOptions};
+use crate::source::SourceMap;
+use clap::{CommandFactory, Parser};
+use cli::{Cli, Command, Deny, Format, GlobalArgs};
+use rayon::prelude::*;
+use std::ffi::OsString;
+use std::io::{self, Write};
+use std::path::{Path, PathBuf};
+pub use terminal::Environment;
+
+pub const EXIT_CLEAN: u8 = 0;
+pub const EXIT_FINDINGS: u8 = 1;
+pub const EXIT_FAILURE: u8 = 2;
+
+/// The program, on the process's own arguments, streams and environment.
+pub fn main() -> u8 {
+    let env = Environment::from_process();
+    let stdout = io::stdout();
+    let stderr = io::stderr();
+    run(
+        std::env::args_os(),
+        &env,
+        &mut stdout.lock(),
+        &mut stderr.lock(),
+    )
+}
+
+/// The program on given arguments (the first is the program name), environment and streams.
+pub fn run<I, T>(args: I, env: &Environment, out: &mut dyn Write, err: &mut dyn Write) -> u8
+where
+    I: IntoIterator<Item = T>,
+    T: Into<OsString> + Clone,
+{
+    let cli = match Cli::try_parse_from(args) {
+        Ok(cli) => cli,
+        Err(e) => return usage(&e, env, out, err),
+    };
+    let mut console = Console {
+        out,
+        err,
+        failed: false,
+    };
+    let code = match &cli.command {
+        Command::Check { paths } => check(paths, &cli.global, env, &mut console),
+        Command::Report { .. } => report_command(&cli.global, &mut console),
+        Command::Rules => {
+            console.print(&catalogue::table(crate::rules::REGISTRY));
+            EXIT_CLEAN
+        }
+        Command::Explain { rule } => explain(rule, &mut console),
+        Command::Init { path } => init(path.as_deref(), &mut console),
+        Command::Completions { shell } => {
+            let mut script = Vec::new();
+            clap_complete::generate(*shell, &mut Cli::command(), "kickback", &mut script);
+            console.print(&String::from_utf8_lossy(&script));
+            EXIT_CLEAN
+        }
+    };
+    code.max(console.trouble())
+}
+
+/// clap's own messages: help and version go to stdout with exit 0, usage errors to stderr
+/// with exit 2.
+fn usage(e: &clap::Error, env: &Environment, out: &mut dyn Write, err: &mut dyn Write) -> u8 {
+    let styled = e.render();
+    if e.use_stderr() {
+        let _ = write!(err, "{styled}");
+        EXIT_FAILURE
+    } else {
+        let text = if env.color(cli::ColorChoice::Auto) {
+            styled.ansi().to_string()
+        } else {
+            styled.to_string()
+        };
+        let _ = write!(out, "{text}");
+        EXIT_CLEAN
+    }
+}
+
+fn check(
+    paths: &[PathBuf],
+    global: &GlobalArgs,
+    env: &Environment,
+    console: &mut Console<'_>,
+) -> u8 {
+    let defaults = Limits::default();
+    let options = CheckOptions {
+        limits: Limits {
+            max_elements: global.max_elements.unwrap_or(defaults.max_elements),
+            allow_outside_includes: global.allow_outside_includes,
+            ..defaults
+        },
+        config_path: global.config.clone(),
+    };
+    if let Some(config) = &global.config {
+        if let Err(message) = preflight_config(config) {
+            console.error(&message);
+            return EXIT_FAILURE;
+        }
+    }
+    let found = discover::discover(paths);
+    if !global.quiet {
+        for folder in &found.empty_folders {
+            console.note(&format!(
+                "no netlists (*.{}) found in {}",
+                discover::EXTENSIONS.join(" *."),
+                folder.display()
+            ));
+        }
+    }
+    let mut reports: Vec<FileReport> = found
+        .files
+        .par_iter()
+        .map(|path| check_file(path, &options))
+        .collect();
+    reports.extend(found.failures.into_iter().map(unreadable));
+    reports.sort_by(|a, b| a.path.cmp(&b.path));
+
+    for (file, message) in report::failures(&reports) {
+        // Most reasons already name the netlist ("cannot read a.cir: ..."); others name only
+        // their own file (a config line), so the netlist is added.
+        if message.contains(&file) {
+            console.error(&message);
+        } else {
+            console.error(&format!("cannot check {file}: {message}"));
+        }
+    }
+    let failing = if global.deny == Some(Deny::Warnings) {
+        Severity::Warning
+    } else {
+        Severity::Error
+    };
+    let shown = if global.quiet {
+        failing
+    } else {
+        Severity::Note
+    };
+    let text = match global.format {
+        Format::Human => report::human::render(
+            &reports,
+            &HumanOptions {
+                color: env.color(global.color),
+                unicode: env.unicode(),
+                width: env.width(),
+                min_severity: shown,
+                summary: true,
+            },
+        ),
+        Format::Short => report::short::render(&reports, shown),
+        Format::Json => report::json::render(&reports),
+        Format::Sarif => report::sarif::render(&reports),
+    };
+    console.print(&text);
+    outcome(&reports, failing)
+}
+
+/// The exit code of a check: 2 when any file could not be checked, 1 when a finding is at the
+/// failing severity or above, else 0.
+pub fn outcome(reports: &[FileReport], failing: Severity) -> u8 {
+    if reports.iter().any(|r| r.failure.is_some()) {
+        EXIT_FAILURE
+    } else if reports
+        .iter()
+        .flat_map(|r| &r.findings)
+        .any(|f| f.severity >= failing)
+    {
+        EXIT_FINDINGS
+    } else {
+        EXIT_CLEAN
+    }
+}
+
+/// A path that could not be read or walked, as a report that failed.
+fn unreadable((path, reason): (PathBuf, String)) -> FileReport {
+    FileReport {
+        path: path.clone(),
+        sources: SourceMap::new(),
+        findings: Vec::new(),
+        suppressed: 0,
+        failure: Some(CheckError::Load(LoadError::Unreadable { path, reason })),
+    }
+}
+
+/// A `--config` file that cannot be read or used stops the run before any netlist is read,
+/// with one message instead of one per netlist.
+fn preflight_config(path: &Path) -> Result<(), String> {
+    std::fs::read_to_string(path)
+        .map_err(|e| format!("cannot read config {}: {e}", path.display()))?;
+    Config::load(path).map(|_| ()).map_err(|e| e.to_string())
+}
+
+fn report_command(global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
+    if !matches!(global.format, Format::Human | Format::Json) {
+        console.error("report prints --format human or --format json");
+        return EXIT_FAILURE;
+    }
+    console.write_err("report: not available yet\n");
+    EXIT_FAILURE
+}
+
+fn explain(rule: &str, console: &mut Console<'_>) -> u8 {
+    match catalogue::explain(rule) {
+        Ok(page) => {
+            console.print(&page);
+            EXIT_CLEAN
+        }
+        Err(suggestions) => {
+            let mut message = format!("unknown rule `{rule}`");
+            if !suggestions.is_empty() {
+                message.push_str(&format!("; did you mean {}?", suggestions.join(", ")));
+            }
+            message.push_str(" (`kickback rules` lists every rule)");
+            console.error(&message);
+            EXIT_FAILURE
+        }
+    }
+}
+
+fn init(dir: Option<&Path>, console: &mut Console<'_>) -> u8 {
+    match init::write_starter(dir.unwrap_or(Path::new("."))) {
+        Ok(path) => {
+            console.print(&format!("wrote {}\n", path.display()));
+            EXIT_CLEAN
+        }
+        Err(e) => {
+            console.error(&e.to_string());
+            EXIT_FAILURE
+        }
+    }
+}
+
+/// stdout and stderr. A reader that went away (`kickback check | head`) is not an error; any
+/// other failure to write is, and makes the exit code 2.
+struct Console<'a> {
+    out: &'a mut dyn Write,
+    err: &'a mut dyn Write,
+    failed: bool,
+}
+
+impl Console<'_> {
+    fn print(&mut self, text: &str) {
+        if let Err(e) = self
+            .out
+            .write_all(text.as_bytes())
+            .and_then(|()| self.out.flush())
+        {
+            if e.kind() != io::ErrorKind::BrokenPipe {
+                let _ = writeln!(self.err, "error: cannot write the output: {e}");
+                self.failed = true;
+            }
+        }
+    }
+
+    fn error(&mut self, message: &str) {
+        self.write_err(&format!("error: {message}\n"));
+    }
+
+    fn note(&mut self, message: &str) {
+        self.write_err(&format!("note: {message}\n"));
+    }
+
+    fn write_err(&mut self, text: &str) {
+        let _ = self.err.write_all(text.as_bytes());
+    }
+
+    fn trouble(&self) -> u8 {
+        if self.failed {
+            EXIT_FAILURE
+        } else {
+            EXIT_CLEAN
+        }
+    }
+}

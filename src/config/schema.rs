@@ -1,0 +1,416 @@
+//! The schema of `kickback.toml`: walks the spanned TOML tree into a [`Config`], refusing
+//! unknown keys, wrong types and impossible values with the line, column and key.
+
+use super::tree::{line_column, Node};
+use super::value::parse_value;
+use super::{Config, ConfigError, PartConfig, RuleLevel, SupplyConfig};
+use crate::circuit::{glob, parts, pins, Kind};
+use crate::diagnostic::Severity;
+use serde_spanned::Spanned;
+use std::ops::Range;
+use std::path::Path;
+
+type Entries = Vec<(Spanned<String>, Node)>;
+
+const TOP_KEYS: [&str; 5] = ["analysis", "rules", "supply", "parts", "elements"];
+const SUPPLY_KEYS: [&str; 3] = ["min", "nominal", "max"];
+
+/// Pairs of ratings where the first may not exceed the second.
+const ORDERED_RATINGS: [(&str, &str); 5] = [
+    ("vgs_th_min", "vgs_th_max"),
+    ("vgs_rated", "vgs_max"),
+    ("supply_min", "supply_max"),
+    ("supply_max", "supply_abs_max"),
+    ("discharge_current_rated", "discharge_current_max"),
+];
+
+pub(super) fn read(text: &str, path: &Path) -> Result<Config, ConfigError> {
+    let cx = Reader { text, path };
+    let root = toml::from_str::<Node>(text).map_err(|e| {
+        let offset = e.span().map_or(0, |s| s.start);
+        // The TOML reader hands dates to a tree of plain values as a private marker key.
+        let message = if e.message().contains("toml_private_datetime") {
+            "a date or time is not a valid value here; write a number or a string".to_string()
+        } else {
+            e.message().trim().to_string()
+        };
+        cx.error_at(offset, None, message)
+    })?;
+    let Node::Table(top) = root else {
+        return Err(cx.error_at(0, None, "the file is not a TOML table".into()));
+    };
+    let mut config = Config::default();
+    for (key, node) in &top {
+        match key.get_ref().as_str() {
+            "analysis" => cx.analysis(key, node, &mut config)?,
+            "rules" => cx.rules(key, node, &mut config)?,
+            "supply" => {
+                for (name, entry) in cx.table(key, node, key.get_ref())? {
+                    let dotted = format!("supply.{}", name.get_ref());
+                    let supply = cx.supply(name, entry, &dotted)?;
+                    config.supplies.insert(name.get_ref().clone(), supply);
+                }
+            }
+            "parts" => {
+                for (name, entry) in cx.table(key, node, key.get_ref())? {
+                    let dotted = format!("parts.{}", name.get_ref());
+                    if let Err(reason) = glob::validate(name.get_ref()) {
+                        return Err(cx.error(name.span(), &dotted, reason));
+                    }
+                    let part = cx.part(name, entry, &dotted)?;
+                    config.parts.push((name.get_ref().clone(), part));
+                }
+            }
+            "elements" => {
+                for (name, entry) in cx.table(key, node, key.get_ref())? {
+                    let dotted = format!("elements.\"{}\"", name.get_ref());
+                    let part = cx.part(name, entry, &dotted)?;
+                    config.elements.insert(name.get_ref().clone(), part);
+                }
+            }
+            other => return Err(cx.unknown_key(key, other, "", &TOP_KEYS)),
+        }
+    }
+    Ok(config)
+}
+
+struct Reader<'a> {
+    text: &'a str,
+    path: &'a Path,
+}
+
+impl Reader<'_> {
+    fn error_at(&self, offset: usize, key: Option<&str>, message: String) -> ConfigError {
+        let (line, column) = line_column(self.text, offset);
+        ConfigError {
+            path: self.path.to_path_buf(),
+            line,
+            column,
+            key: key.map(str::to_string),
+            message,
+        }
+    }
+
+    fn error(&self, span: Range<usize>, key: &str, message: impl Into<String>) -> ConfigError {
+        let message = format!("`{key}`: {}", message.into());
+        self.error_at(span.start, Some(key), message)
+    }
+
+    fn unknown_key(
+        &self,
+        key: &Spanned<String>,
+        name: &str,
+        prefix: &str,
+        known: &[&str],
+    ) -> ConfigError {
+        let dotted = format!("{prefix}{name}");
+        let best = known
+            .iter()
+            .map(|k| (strsim::jaro_winkler(k, &name.to_ascii_lowercase()), *k))
+            .filter(|(score, _)| *score > 0.8)
+            .max_by(|a, b| a.0.total_cmp(&b.0));
+        let message = match best {
+            Some((_, k)) => format!("unknown key; did you mean `{k}`?"),
+            None if known.len() <= 8 => {
+                format!("unknown key; expected one of {}", known.join(", "))
+            }
+            None => "unknown key".to_string(),
+        };
+        self.error(key.span(), &dotted, message)
+    }
+
+    fn table<'n>(
+        &self,
+        key: &Spanned<String>,
+        node: &'n Node,
+        dotted: &str,
+    ) -> Result<&'n Entries, ConfigError> {
+        match node {
+            Node::Table(entries) => Ok(entries),
+            other => Err(self.error(
+                key.span(),
+                dotted,
+                format!("must be a table, not {}", other.type_name()),
+            )),
+        }
+    }
+
+    fn analysis(
+        &self,
+        key: &Spanned<String>,
+        node: &Node,
+        config: &mut Config,
+    ) -> Result<(), ConfigError> {
+        for (name, value) in self.table(key, node, "analysis")? {
+            let dotted = format!("analysis.{}", name.get_ref());
+            if name.get_ref() != "ground" {
+                return Err(self.unknown_key(name, name.get_ref(), "analysis.", &["ground"]));
+            }
+            let Node::Array(items) = value else {
+                return Err(self.error(
+                    name.span(),
+                    &dotted,
+                    format!("must be an array of net names, not {}", value.type_name()),
+                ));
+            };
+            let mut ground = Vec::new();
+            for item in items {
+                match item {
+                    Node::Str(net) if !net.trim().is_empty() => ground.push(net.trim().to_string()),
+                    Node::Str(_) => {
+                        return Err(self.error(name.span(), &dotted, "a net name is empty"))
+                    }
+                    other => {
+                        return Err(self.error(
+                            name.span(),
+                            &dotted,
+                            format!("net names are strings, not {}", other.type_name()),
+                        ))
+                    }
+                }
+            }
+            config.analysis.ground = ground;
+        }
+        Ok(())
+    }
+
+    fn rules(
+        &self,
+        key: &Spanned<String>,
+        node: &Node,
+        config: &mut Config,
+    ) -> Result<(), ConfigError> {
+        for (name, value) in self.table(key, node, "rules")? {
+            let dotted = format!("rules.{}", name.get_ref());
+            let level = match value {
+                Node::Str(text) if text.eq_ignore_ascii_case("off") => Some(RuleLevel::Off),
+                Node::Str(text) => Severity::parse(text).map(RuleLevel::Set),
+                _ => None,
+            };
+            let Some(level) = level else {
+                let given = match value {
+                    Node::Str(text) => format!("\"{text}\""),
+                    other => other.type_name().to_string(),
+                };
+                return Err(self.error(
+                    name.span(),
+                    &dotted,
+                    format!(
+                        "{given} is not a rule level; use \"error\", \"warning\", \"note\" \
+                         or \"off\""
+                    ),
+                ));
+            };
+            config.rules.insert(name.get_ref().clone(), level);
+            let position = line_column(self.text, name.span().start);
+            config.rule_spans.insert(name.get_ref().clone(), position);
+        }
+        Ok(())
+    }
+
+    fn supply(
+        &self,
+        key: &Spanned<String>,
+        node: &Node,
+        dotted: &str,
+    ) -> Result<SupplyConfig, ConfigError> {
+        let mut supply = SupplyConfig::default();
+        let mut spans = Vec::new();
+        for (name, value) in self.table(key, node, dotted)? {
+            let here = format!("{dotted}.{}", name.get_ref());
+            let slot = match name.get_ref().as_str() {
+                "min" => &mut supply.min,
+                "nominal" => &mut supply.nominal,
+                "max" => &mut supply.max,
+                other => {
+                    return Err(self.unknown_key(name, other, &format!("{dotted}."), &SUPPLY_KEYS))
+                }
+            };
+            *slot = Some(self.number(name, value, &here)?);
+            spans.push((name.get_ref().clone(), name.span()));
+        }
+        let span_of = |wanted: &str| {
+            spans
+                .iter()
+                .find(|(k, _)| k == wanted)
+                .map_or(key.span(), |(_, s)| s.clone())
+        };
+        if let (Some(min), Some(max)) = (supply.min, supply.max) {
+            if min > max {
+                return Err(self.error(
+                    span_of("max"),
+                    &format!("{dotted}.max"),
+                    format!("max ({max}) is below min ({min})"),
+                ));
+            }
+        }
+        if let Some(nominal) = supply.nominal {
+            let below = supply.min.is_some_and(|min| nominal < min);
+            let above = supply.max.is_some_and(|max| nominal > max);
+            if below || above {
+                return Err(self.error(
+                    span_of("nominal"),
+                    &format!("{dotted}.nominal"),
+                    format!("nominal ({nominal}) lies outside min..max"),
+                ));
+            }
+        }
+        Ok(supply)
+    }
+
+    fn part(
+        &self,
+        key: &Spanned<String>,
+        node: &Node,
+        dotted: &str,
+    ) -> Result<PartConfig, ConfigError> {
+        let mut part = PartConfig::default();
+        let mut spans = Vec::new();
+        for (name, value) in self.table(key, node, dotted)? {
+            let written = name.get_ref();
+            let lower = written.to_ascii_lowercase();
+            let here = format!("{dotted}.{written}");
+            match lower.as_str() {
+                "kind" => part.kind = Some(self.kind(name, value, &here)?),
+                "pins" => part.pins = Some(self.pins(name, value, &here)?),
+                rating if parts::FLAG_RATINGS.contains(&rating) => {
+                    let Node::Bool(flag) = value else {
+                        return Err(self.error(
+                            name.span(),
+                            &here,
+                            format!("must be true or false, not {}", value.type_name()),
+                        ));
+                    };
+                    part.ratings
+                        .insert(lower.clone(), if *flag { 1.0 } else { 0.0 });
+                }
+                rating if parts::RATING_NAMES.contains(&rating) => {
+                    let number = self.number(name, value, &here)?;
+                    if number < 0.0 {
+                        return Err(self.error(
+                            name.span(),
+                            &here,
+                            format!(
+                                "{number} is negative; ratings are magnitudes (write {})",
+                                -number
+                            ),
+                        ));
+                    }
+                    part.ratings.insert(lower.clone(), number);
+                }
+                _ => {
+                    let mut known = vec!["kind", "pins"];
+                    known.extend(parts::FLAG_RATINGS);
+                    known.extend(parts::RATING_NAMES);
+                    return Err(self.unknown_key(name, written, &format!("{dotted}."), &known));
+                }
+            }
+            spans.push((lower, name.span()));
+        }
+        for (low, high) in ORDERED_RATINGS {
+            if let (Some(a), Some(b)) = (part.ratings.get(low), part.ratings.get(high)) {
+                if a > b {
+                    let span = spans
+                        .iter()
+                        .find(|(k, _)| k == high)
+                        .map_or(key.span(), |(_, s)| s.clone());
+                    return Err(self.error(
+                        span,
+                        &format!("{dotted}.{high}"),
+                        format!("{high} ({b}) is below {low} ({a})"),
+                    ));
+                }
+            }
+        }
+        Ok(part)
+    }
+
+    fn kind(&self, name: &Spanned<String>, value: &Node, here: &str) -> Result<Kind, ConfigError> {
+        let kinds: Vec<&str> = Kind::CONFIGURABLE.iter().map(|k| k.as_str()).collect();
+        match value {
+            Node::Str(text) => Kind::parse(text).ok_or_else(|| {
+                self.error(
+                    name.span(),
+                    here,
+                    format!(
+                        "unknown kind \"{text}\"; expected one of {}",
+                        kinds.join(", ")
+                    ),
+                )
+            }),
+            other => Err(self.error(
+                name.span(),
+                here,
+                format!("must be a string, not {}", other.type_name()),
+            )),
+        }
+    }
+
+    fn pins(
+        &self,
+        name: &Spanned<String>,
+        value: &Node,
+        here: &str,
+    ) -> Result<Vec<String>, ConfigError> {
+        let Node::Array(items) = value else {
+            return Err(self.error(
+                name.span(),
+                here,
+                format!("must be an array of pin roles, not {}", value.type_name()),
+            ));
+        };
+        let mut roles = Vec::new();
+        for item in items {
+            let Node::Str(role) = item else {
+                return Err(self.error(
+                    name.span(),
+                    here,
+                    format!("pin roles are strings, not {}", item.type_name()),
+                ));
+            };
+            if !pins::is_role_name(role) {
+                return Err(self.error(
+                    name.span(),
+                    here,
+                    format!(
+                        "unknown pin role \"{role}\"; expected one of {}",
+                        pins::PRIMARY_ROLE_NAMES.join(", ")
+                    ),
+                ));
+            }
+            roles.push(role.trim().to_string());
+        }
+        Ok(roles)
+    }
+
+    fn number(&self, name: &Spanned<String>, value: &Node, here: &str) -> Result<f64, ConfigError> {
+        let number = match value {
+            Node::Integer(i) => Some(*i as f64),
+            Node::Float(f) => Some(*f),
+            Node::Str(text) => parse_value(text),
+            other => {
+                return Err(self.error(
+                    name.span(),
+                    here,
+                    format!(
+                        "must be a number or a string such as \"2.2m\", not {}",
+                        other.type_name()
+                    ),
+                ))
+            }
+        };
+        match number {
+            Some(n) if n.is_finite() => Ok(n),
+            _ => Err(self.error(
+                name.span(),
+                here,
+                match value {
+                    Node::Str(text) => format!(
+                        "\"{text}\" is not a number (write e.g. 2.2e-3, \"2.2m\" or \"10k\")"
+                    ),
+                    _ => "must be a finite number".to_string(),
+                },
+            )),
+        }
+    }
+}

@@ -1,0 +1,33 @@
+//! `--format short`: `path:line:col: severity[rule-id]: message`, one finding per line — the
+//! form editors, terminals and quickfix lists parse.
+
+use super::ordered;
+use crate::check::FileReport;
+use crate::diagnostic::Severity;
+
+/// One line per finding at or above `min_severity`, in file, line, column order.
+pub fn render(reports: &[FileReport], min_severity: Severity) -> String {
+    let mut out = String::new();
+    for entry in ordered(reports) {
+        let finding = entry.finding;
+        if finding.severity < min_severity {
+            continue;
+        }
+        let loc = &entry.location;
+        out.push_str(&format!(
+            "{}:{}:{}: {}[{}]: {}\n",
+            loc.file,
+            loc.line,
+            loc.column,
+            finding.severity,
+            finding.rule,
+            one_line(&finding.message)
+        ));
+    }
+    out
+}
+
+/// A message on one line, whatever it holds, so that each finding stays one line.
+fn one_line(message: &str) -> String {
+    message.split_whitespace().collect::<Vec<_>>().join(" ")
+}
