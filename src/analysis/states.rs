@@ -167,8 +167,8 @@ impl<'a> Context<'a> {
         }
     }
 
-    /// The switching inputs a component sees: pulse sources on its boundary, timers and logic
-    /// outputs whose outputs sit in it.
+    /// The switching inputs a component sees: pulse sources on its boundary or floating inside
+    /// it, timers and logic outputs whose pins sit in it.
     pub fn inputs(&self, component: &Component) -> Vec<DeviceId> {
         let mut inputs = Vec::new();
         for &device in &component.devices {
@@ -177,6 +177,10 @@ impl<'a> Context<'a> {
                 d.kind,
                 Kind::Timer555 | Kind::Timer555Cmos | Kind::LogicOutput
             ) {
+                inputs.push(device);
+            }
+            // A pulse source floating inside the component (gate to source, say).
+            if self.is_pulse_source(device) {
                 inputs.push(device);
             }
             for pin in &d.pins {
