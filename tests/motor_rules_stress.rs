@@ -4,9 +4,7 @@
 
 mod motor_rules_kit;
 
-use kickback::analysis::{
-    CapacitorFacts, Freewheel, FreewheelKind, ResistorFacts, Side, SupplyFacts,
-};
+use kickback::analysis::{CapacitorFacts, FreewheelKind, ResistorFacts, Side, SupplyFacts};
 use kickback::circuit::{Kind, PinRole};
 use kickback::diagnostic::Severity;
 use kickback::rules::{
@@ -14,7 +12,9 @@ use kickback::rules::{
     load_overvoltage, pot_wiper_overcurrent, resistor_overpower, supply_out_of_range,
     switch_dissipation, switch_voltage_margin,
 };
-use motor_rules_kit::{driver, load, point, range, rated, supply, switch, timer, value, Kit};
+use motor_rules_kit::{
+    driver, freewheel, load, point, range, rated, supply, switch, timer, value, Kit,
+};
 
 use PinRole::*;
 
@@ -144,12 +144,8 @@ fn switch_margin_over_rail_and_diode() {
     let d = kit.two("D1 d vm DSW", Kind::Schottky, &[("vf", 0.5)]);
     let sw = &mut kit.analysis.switches[0];
     sw.inductive = true;
-    sw.freewheel.push(Freewheel {
-        device: d,
-        kind: FreewheelKind::AcrossLoad,
-        reversed: false,
-        on_state_current_a: None,
-    });
+    sw.freewheel
+        .push(freewheel(d, FreewheelKind::AcrossLoad, false));
     let m = sw.device;
     // 30 V against 24.5 V: within the rating but under 1.25 × (30.6 V wanted).
     kit.circuit.devices[m]
@@ -184,12 +180,7 @@ fn a_tvs_clamping_above_the_switch_rating_is_an_error() {
     let t = kit.two("DZ 0 d TVS33", Kind::Tvs, &[("vclamp", 45.0)]);
     let sw = &mut kit.analysis.switches[0];
     sw.inductive = true;
-    sw.freewheel.push(Freewheel {
-        device: t,
-        kind: FreewheelKind::Clamp,
-        reversed: false,
-        on_state_current_a: None,
-    });
+    sw.freewheel.push(freewheel(t, FreewheelKind::Clamp, false));
     let m = sw.device;
     kit.circuit.devices[m]
         .data
@@ -264,6 +255,7 @@ fn discharge_short() -> Kit {
             "V1 at 9 V, XU1 low, XRV1 wiper at 0 %",
         ),
         wiper_current_a: None,
+        current_a: None,
     });
     kit.analysis.resistors.push(ResistorFacts {
         device: pot,
@@ -274,6 +266,7 @@ fn discharge_short() -> Kit {
             "XU1 high",
             "V1 at 9 V, XU1 low, XRV1 wiper at 0 %",
         )),
+        current_a: None,
     });
     kit
 }

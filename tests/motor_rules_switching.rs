@@ -11,7 +11,7 @@ use kickback::rules::{
     gate_overvoltage, gate_underdrive, shoot_through,
 };
 use motor_rules_kit::{
-    driver, load, point, pulse, range, rated, supply, switch, timer, value, Kit,
+    driver, freewheel, load, point, pulse, range, rated, supply, switch, timer, value, Kit,
 };
 
 use PinRole::*;
@@ -59,10 +59,8 @@ fn valve_on_npn(with_diode: Option<(&str, Kind, bool)>) -> Kit {
     if let Some((line, k, reversed)) = with_diode {
         let d = kit.two(line, k, &[("vrrm", 40.0), ("if_avg", 1.0)]);
         sw.freewheel.push(Freewheel {
-            device: d,
-            kind: FreewheelKind::AcrossLoad,
-            reversed,
             on_state_current_a: reversed.then_some(2.9),
+            ..freewheel(d, FreewheelKind::AcrossLoad, reversed)
         });
     }
     let mut l = load(sol, Kind::Solenoid);
@@ -479,12 +477,8 @@ fn a_standard_recovery_diode_on_fast_pwm_is_a_warning_and_a_schottky_is_not() {
         ],
     );
     let sw = &mut kit.analysis.switches[0];
-    sw.freewheel.push(Freewheel {
-        device: d,
-        kind: FreewheelKind::AcrossLoad,
-        reversed: false,
-        on_state_current_a: None,
-    });
+    sw.freewheel
+        .push(freewheel(d, FreewheelKind::AcrossLoad, false));
     sw.duty = Some(range(0.1, 0.9, "RV1 at 0 %", "RV1 at 100 %"));
     sw.frequency_hz = Some(point(20e3, "XU1"));
     let found = kit.show(flyback_underrated::check);

@@ -44,11 +44,12 @@ fn draws(cx: &RuleContext<'_>, id: DeviceId) -> Vec<Draw> {
     let out_net = cx.circuit.devices.get(id).and_then(|d| d.pin(PinRole::Out));
     if let Some(net) = out_net {
         for load in &cx.analysis.loads {
-            let on_pin = cx
-                .circuit
-                .devices
-                .get(load.device)
-                .is_some_and(|d| d.pins.iter().any(|p| p.net == net));
+            let on_pin = load.driven_by == Some(id)
+                || cx
+                    .circuit
+                    .devices
+                    .get(load.device)
+                    .is_some_and(|d| d.pins.iter().any(|p| p.net == net));
             let amps = load
                 .current_a
                 .as_ref()

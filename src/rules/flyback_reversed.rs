@@ -4,7 +4,7 @@
 use super::switch_util::{branch_ends, finding_at, label, load_device, name, net_name, rail};
 use super::units::format_si;
 use super::RuleContext;
-use crate::analysis::Side;
+use crate::analysis::{Freewheel, FreewheelKind, Side, SwitchFacts};
 use crate::circuit::DeviceId;
 use crate::diagnostic::{Finding, Severity};
 
@@ -18,6 +18,10 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
                 continue;
             }
             reported.push(fw.device);
+            if fw.kind == FreewheelKind::Clamp {
+                out.extend(reversed_clamp(cx, sw, fw));
+                continue;
+            }
             let diode = name(cx, fw.device);
             let switch = name(cx, sw.device);
             let load = load_device(cx, sw);
@@ -88,4 +92,43 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             out.push(f);
         }
     }
+}
+
+/// A TVS or zener across the switch, fitted so it conducts forward while the switch is off: it
+/// holds the load on and clamps nothing at turn-off.
+fn reversed_clamp(cx: &RuleContext<'_>, sw: &SwitchFacts, fw: &Freewheel) -> Option<Finding> {
+    let clamp = name(cx, fw.device);
+    let switch = name(cx, sw.device);
+    let load = load_device(cx, sw);
+    let load_name = load.map_or_else(|| "the load".to_string(), |l| name(cx, l));
+    let mut message = format!(
+        "{clamp} is fitted backwards across {switch}: it conducts forward while {switch} is \
+         off"
+    );
+    if let Some(i) = fw.off_state_current_a {
+        message.push_str(&format!(", {} through {load_name}", format_si(i.abs(), "A")));
+    }
+    message.push_str(&format!(
+        ", so {load_name} never turns off, and at turn-off it clamps nothing"
+    ));
+    let mut f = finding_at(RULE, Severity::Error, cx, fw.device, message)?;
+    f = label(f, cx, sw.device, "the switch it bypasses");
+    if let Some(l) = load {
+        f = label(f, cx, l, "stays energised");
+    }
+    let node = |n: Option<crate::circuit::NetId>| n.map(|n| net_name(cx, n).to_string());
+    let help = match (node(sw.switched_net), node(sw.anchor_net)) {
+        (Some(hi), Some(lo)) if sw.side == Side::Low => format!(
+            "turn {clamp} round: cathode to {hi} (the drain), anode to {lo}"
+        ),
+        _ => format!(
+            "turn {clamp} round so that it blocks while {switch} is off and breaks down only \
+             above the rail"
+        ),
+    };
+    f = f.with_help(help);
+    if let Some(i) = fw.off_state_current_a {
+        f = f.with_value("off_state_current", i.abs(), "A", "computed");
+    }
+    Some(f)
 }

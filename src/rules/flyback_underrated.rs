@@ -4,9 +4,9 @@
 use super::switch_util::{
     diode_hint, duty_text, finding_at, is_pwm, kind, label, load_device, load_of, name, rail, rated,
 };
-use super::units::format_si;
+use super::units::{format_si, percent};
 use super::RuleContext;
-use crate::analysis::{FreewheelKind, Range, SwitchFacts};
+use crate::analysis::{Freewheel, FreewheelKind, SwitchFacts};
 use crate::circuit::{DeviceId, Kind};
 use crate::diagnostic::{Finding, Severity};
 
@@ -28,11 +28,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
                 continue;
             }
             seen.push(fw.device);
-            let diode = Diode {
-                cx,
-                sw,
-                id: fw.device,
-            };
+            let diode = Diode { cx, sw, fw };
             out.extend(diode.voltage());
             out.extend(diode.average_current());
             out.extend(diode.peak_current());
@@ -44,28 +40,34 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 struct Diode<'a, 'b> {
     cx: &'a RuleContext<'b>,
     sw: &'a SwitchFacts,
-    id: DeviceId,
+    fw: &'a Freewheel,
 }
 
 impl Diode<'_, '_> {
     fn name(&self) -> String {
-        name(self.cx, self.id)
+        name(self.cx, self.fw.device)
     }
 
     fn load_name(&self) -> String {
         load_device(self.cx, self.sw).map_or_else(|| "the load".into(), |l| name(self.cx, l))
     }
 
-    /// The on-state current the winding carries when the switch lets go.
-    fn on_current(&self) -> Option<&Range> {
-        load_of(self.cx, self.sw)
+    /// The on-state current the winding carries when the switch lets go, and the state.
+    fn on_current(&self) -> Option<(f64, String)> {
+        let range = load_of(self.cx, self.sw)
             .and_then(|l| l.current_a.as_ref())
             .or(self.sw.current_a.as_ref())
-            .filter(|r| r.max > 0.0)
+            .filter(|r| r.max > 0.0);
+        match (self.fw.peak_current_a, range) {
+            (Some(i), Some(r)) => Some((i, r.max_state.clone())),
+            (Some(i), None) => Some((i, "the on state".into())),
+            (None, Some(r)) => Some((r.max, r.max_state.clone())),
+            (None, None) => None,
+        }
     }
 
     fn finding(&self, severity: Severity, message: String) -> Option<Finding> {
-        let mut f = finding_at(RULE, severity, self.cx, self.id, message)?;
+        let mut f = finding_at(RULE, severity, self.cx, self.fw.device, message)?;
         if let Some(l) = load_device(self.cx, self.sw) {
             f = label(f, self.cx, l, "the load it freewheels");
         }
@@ -79,7 +81,7 @@ impl Diode<'_, '_> {
     }
 
     fn voltage(&self) -> Option<Finding> {
-        let vrrm = rated(self.cx, self.id, "vrrm")?;
+        let vrrm = rated(self.cx, self.fw.device, "vrrm")?;
         let rail = rail(self.cx, self.sw)?;
         let v = rail.v.max;
         let wanted = VOLTAGE_MARGIN * v;
@@ -107,7 +109,7 @@ impl Diode<'_, '_> {
             format_si(v, "V"),
             rail.v.max_state
         );
-        let amps = self.on_current().map_or(0.0, |i| i.max);
+        let amps = self.on_current().map_or(0.0, |i| i.0);
         let mut f = self.finding(severity, message)?;
         if let Some(s) = rail.supply {
             f = label(f, self.cx, s, &format!("the {} rail", format_si(v, "V")));
@@ -125,8 +127,8 @@ impl Diode<'_, '_> {
         if !is_pwm(self.sw) {
             return None;
         }
-        let rating = rated(self.cx, self.id, "if_avg")?;
-        let i_on = self.on_current()?;
+        let rating = rated(self.cx, self.fw.device, "if_avg")?;
+        let (i_on, _) = self.on_current()?;
         let duty = load_of(self.cx, self.sw)
             .and_then(|l| l.duty.as_ref())
             .or(self.sw.duty.as_ref())?;
@@ -136,15 +138,17 @@ impl Diode<'_, '_> {
             // for (1 − D) of each period; (1 − D)·D peaks at D = 0.5.
             let d = 0.5f64.clamp(duty.min, duty.max);
             (
-                (1.0 - d) * d * i_on.max,
-                format!("(1 − D)·D·I at D = {}", super::units::percent(d)),
+                (1.0 - d) * d * i_on,
+                format!("(1 − D)·D·I at D = {}, the current smoothed by L/R", percent(d)),
             )
         } else {
             let d = duty.min;
-            (
-                (1.0 - d) * i_on.max,
-                format!("(1 − D)·I at D = {}", super::units::percent(d)),
-            )
+            let avg = self
+                .fw
+                .avg_current_a
+                .as_ref()
+                .map_or((1.0 - d) * i_on, |r| r.max);
+            (avg, format!("(1 − D)·I at D = {}", percent(d)))
         };
         if avg <= rating.value {
             return None;
@@ -155,55 +159,55 @@ impl Diode<'_, '_> {
              duty {}): above its {} average forward rating",
             format_si(avg, "A"),
             self.load_name(),
-            format_si(i_on.max, "A"),
+            format_si(i_on, "A"),
             duty_text(duty),
             format_si(rating.value, "A"),
         );
         let f = self.finding(Severity::Warning, message)?;
         Some(
-            f.with_help(format!("replace {d} with {}", self.hint(avg.max(i_on.max))))
+            f.with_help(format!("replace {d} with {}", self.hint(avg.max(i_on))))
                 .with_value("if_avg", rating.value, "A", rating.source)
                 .with_value("freewheel_average_current", avg, "A", "computed")
-                .with_value("on_state_current", i_on.max, "A", "computed"),
+                .with_value("on_state_current", i_on, "A", "computed"),
         )
     }
 
     /// The winding's current at turn-off against the repetitive (else surge) peak rating.
     fn peak_current(&self) -> Option<Finding> {
         let pwm = is_pwm(self.sw);
-        let rating = match rated(self.cx, self.id, "ifrm") {
+        let rating = match rated(self.cx, self.fw.device, "ifrm") {
             Some(r) => ("ifrm", "repetitive peak", r),
-            None if !pwm => ("ifsm", "surge", rated(self.cx, self.id, "ifsm")?),
+            None if !pwm => ("ifsm", "surge", rated(self.cx, self.fw.device, "ifsm")?),
             None => return None,
         };
-        let i_on = self.on_current()?;
-        if i_on.max <= rating.2.value {
+        let (i_on, state) = self.on_current()?;
+        if i_on <= rating.2.value {
             return None;
         }
         let d = self.name();
         let message = format!(
-            "{d} takes {}'s full {} each time {} turns off ({}): above its {} {} current rating",
+            "{d} takes {}'s full {} each time {} turns off ({state}): above its {} {} current \
+             rating",
             self.load_name(),
-            format_si(i_on.max, "A"),
+            format_si(i_on, "A"),
             name(self.cx, self.sw.device),
-            i_on.max_state,
             format_si(rating.2.value, "A"),
             rating.1,
         );
         let f = self.finding(Severity::Warning, message)?;
         Some(
-            f.with_help(format!("replace {d} with {}", self.hint(i_on.max)))
+            f.with_help(format!("replace {d} with {}", self.hint(i_on)))
                 .with_value(rating.0, rating.2.value, "A", rating.2.source)
-                .with_value("turn_off_current", i_on.max, "A", "computed"),
+                .with_value("turn_off_current", i_on, "A", "computed"),
         )
     }
 
     /// A standard-recovery diode on fast PWM.
     fn recovery(&self) -> Option<Finding> {
-        if kind(self.cx, self.id) == Some(Kind::Schottky) || !is_pwm(self.sw) {
+        if kind(self.cx, self.fw.device) == Some(Kind::Schottky) || !is_pwm(self.sw) {
             return None;
         }
-        let trr = rated(self.cx, self.id, "trr")?;
+        let trr = rated(self.cx, self.fw.device, "trr")?;
         let f_hz = self.sw.frequency_hz.as_ref()?;
         if trr.value <= SLOW_TRR_S || f_hz.max <= SLOW_DIODE_MAX_HZ {
             return None;
@@ -217,7 +221,7 @@ impl Diode<'_, '_> {
             format_si(trr.value, "s"),
             format_si(f_hz.max, "Hz")
         );
-        let amps = self.on_current().map_or(0.0, |i| i.max);
+        let amps = self.on_current().map_or(0.0, |i| i.0);
         let rail_v = rail(self.cx, self.sw).map_or(0.0, |r| r.v.max);
         let f = self.finding(Severity::Warning, message)?;
         Some(

@@ -201,7 +201,12 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
         }
     };
 
-    let estimate = gain.as_ref().and_then(|g| rds_at(g, vgs, th.value));
+    // The analysis's channel resistance at the actual drive, else the square law here.
+    let estimate = sw
+        .rds_on_ohm
+        .as_ref()
+        .map(|r| r.max)
+        .or_else(|| gain.as_ref().and_then(|g| rds_at(g, vgs, th.value)));
     let (severity, message) = if vgs < need {
         let mut m = format!(
             "{s}'s gate gets only {}{from} ({state}): {reason}",
@@ -222,7 +227,7 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
         );
         if let Some(r) = estimate {
             m.push_str(&format!(
-                ": expect about {} on-resistance (1/(k·(V_GS − vgs_th_max)))",
+                ": expect about {} on-resistance (1/(k·(V_GS − V_th)), cold die)",
                 format_si(r, "Ω")
             ));
             if let Some(rds) = cx

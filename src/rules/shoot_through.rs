@@ -323,14 +323,25 @@ struct Window {
 
 fn on_window(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Window> {
     let driver = sw.driver.as_ref()?;
-    // Only a passive gate network keeps the PULSE's sense; an inverting stage flips it.
-    let passive = driver
-        .network
-        .iter()
-        .all(|&n| kind(cx, n).is_some_and(|k| k == Kind::Resistor));
-    if !passive {
-        return None;
-    }
+    let control = driver.control.unwrap_or(driver.device);
+    // The analysis solves which level turns the switch on ("high" is the PULSE's v2 level);
+    // without it, only a passive gate network keeps the PULSE's sense (an inverting stage
+    // flips it).
+    let solved = driver.on_when_high;
+    let physical = match solved {
+        Some(_) => None,
+        None => {
+            let passive = control == driver.device
+                && driver
+                    .network
+                    .iter()
+                    .all(|&n| kind(cx, n).is_some_and(|k| k == Kind::Resistor));
+            if !passive {
+                return None;
+            }
+            Some(super::switch_util::polarity(kind(cx, sw.device)?) > 0.0)
+        }
+    };
     let Waveform::Pulse {
         v1,
         v2,
@@ -339,20 +350,22 @@ fn on_window(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Window> {
         fall,
         width,
         period,
-    } = element(cx, driver.device)?.source.as_ref()?.wave
+    } = element(cx, control)?.source.as_ref()?.wave
     else {
         return None;
     };
     if period <= 0.0 || !period.is_finite() {
         return None;
     }
-    let k = kind(cx, sw.device)?;
     // v2 window, edge midpoints.
     let start = delay + rise / 2.0;
     let end = delay + rise + width + fall / 2.0;
-    let on_at_high = super::switch_util::polarity(k) > 0.0;
-    let pulse_is_high = v2 > v1;
-    let (start, end) = if on_at_high == pulse_is_high {
+    let on_in_v2_window = match (solved, physical) {
+        (Some(v2_on), _) => v2_on,
+        (None, Some(on_at_high)) => on_at_high == (v2 > v1),
+        (None, None) => return None,
+    };
+    let (start, end) = if on_in_v2_window {
         (start, end)
     } else {
         (end, start + period)

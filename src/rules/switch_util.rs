@@ -186,10 +186,11 @@ pub fn supply_range(cx: &RuleContext<'_>, s: &SupplyFacts) -> Range {
 
 /// The rail of a switch: the analysis's rail voltage, or the corners of its rail supply.
 pub fn rail(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Rail> {
-    let net = sw
-        .rail_supply
-        .and_then(|s| device(cx, s))
-        .and_then(|d| d.pin(PinRole::Pos));
+    let net = sw.rail_net.or_else(|| {
+        sw.rail_supply
+            .and_then(|s| device(cx, s))
+            .and_then(|d| d.pin(PinRole::Pos))
+    });
     let from_supply = || {
         sw.rail_supply
             .and_then(|s| supply_facts(cx, s))
@@ -256,6 +257,11 @@ pub fn branch_ends(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<BranchEnds>
         .filter(|(_, c)| c % 2 == 1)
         .map(|(n, _)| *n)
         .collect();
+    if let Some(switched) = sw.switched_net {
+        if let Some(&far) = ends.iter().find(|&&n| n != switched) {
+            return Some(BranchEnds { switched, far });
+        }
+    }
     let (a, b) = main_terminals(device(cx, sw.device)?)?;
     match ends.as_slice() {
         [x, y] if *x == a || *x == b => Some(BranchEnds {

@@ -5,7 +5,8 @@
 #![allow(dead_code)]
 
 use kickback::analysis::{
-    Analysis, DriverFacts, LoadFacts, Range, Side, SupplyFacts, SwitchFacts, TimerFacts, TimerMode,
+    Analysis, DriverFacts, Freewheel, FreewheelKind, LoadFacts, Range, Side, SupplyFacts,
+    SwitchFacts, TimerFacts, TimerMode,
 };
 use kickback::circuit::{
     Circuit, Device, DeviceId, Kind, Net, NetId, PartData, Pin, PinRole, Rated,
@@ -266,9 +267,13 @@ pub fn switch(device: DeviceId, kind: Kind, side: Side) -> SwitchFacts {
         device,
         kind,
         side,
+        switched_net: None,
+        anchor_net: None,
         rail_v: None,
+        rail_net: None,
         rail_supply: None,
         load: None,
+        parallel_loads: Vec::new(),
         branch: Vec::new(),
         inductive: false,
         driver: None,
@@ -279,6 +284,7 @@ pub fn switch(device: DeviceId, kind: Kind, side: Side) -> SwitchFacts {
         base_current_a: None,
         vds_on_v: None,
         current_a: None,
+        rds_on_ohm: None,
         dissipation_w: None,
         duty: None,
         frequency_hz: None,
@@ -298,21 +304,26 @@ pub fn load(device: DeviceId, kind: Kind) -> LoadFacts {
         avg_v: None,
         effective_v: None,
         effective_is_average: false,
+        time_constant_s: None,
         current_a: None,
         duty: None,
         frequency_hz: None,
         stored_energy_j: None,
         switch: None,
         freewheel: None,
+        driven_by: None,
     }
 }
 
 pub fn driver(device: DeviceId, network: Vec<DeviceId>) -> DriverFacts {
     DriverFacts {
         device,
+        control: Some(device),
+        on_when_high: None,
         network,
         shared_with: Vec::new(),
         boosted: false,
+        bootstrap: None,
         can_float: false,
     }
 }
@@ -356,5 +367,23 @@ pub fn timer(device: DeviceId, supply_v: f64) -> TimerFacts {
         divided_frequency_hz: None,
         divided_duty: None,
         output_current_a: None,
+        upper_threshold_v: None,
+        lower_threshold_v: None,
+        discharge_source_ohms: None,
+        discharge_open_v: None,
+        charge_path: Vec::new(),
+        discharge_path: Vec::new(),
+    }
+}
+
+pub fn freewheel(device: DeviceId, kind: FreewheelKind, reversed: bool) -> Freewheel {
+    Freewheel {
+        device,
+        kind,
+        reversed,
+        on_state_current_a: None,
+        off_state_current_a: None,
+        peak_current_a: None,
+        avg_current_a: None,
     }
 }

@@ -66,7 +66,14 @@ pub fn analyze(
     };
     // A discharge pin on a fixed net (tied to ground or straight to a rail) has no network of
     // its own to solve; a rail is the dead short itself.
-    if cx.partition.net_component.get(dis).copied().flatten().is_none() {
+    if cx
+        .partition
+        .net_component
+        .get(dis)
+        .copied()
+        .flatten()
+        .is_none()
+    {
         return out;
     }
     let mut pots = setup.pots.clone();
@@ -176,7 +183,9 @@ fn dump(cx: &Context<'_>, index: &NetIndex, setup: &Setup) -> Option<(DeviceId, 
             .ok()
             .flatten()?
             .upper;
-        let i = diode_current_held(cx, setup, &state, diode, upper).ok().flatten();
+        let i = diode_current_held(cx, setup, &state, diode, upper)
+            .ok()
+            .flatten();
         if let Some(i) = i {
             peak = Some(peak.map_or(i, |p: f64| p.max(i)));
         }

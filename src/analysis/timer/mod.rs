@@ -148,9 +148,8 @@ fn timer_facts(
     let values = |f: fn(&Sample) -> Option<f64>| -> Vec<Option<f64>> {
         samples.iter().map(|s| s.as_ref().and_then(f)).collect()
     };
-    let range_of = |f: fn(&Sample) -> Option<f64>| {
-        sweep::range(&points, &values(f), &eval_with(f), &describe)
-    };
+    let range_of =
+        |f: fn(&Sample) -> Option<f64>| sweep::range(&points, &values(f), &eval_with(f), &describe);
     facts.upper_threshold_v = range_of(|s| Some(s.upper));
     facts.lower_threshold_v = range_of(|s| Some(s.lower));
     facts.high_s = range_of(Sample::high_s);
@@ -182,12 +181,18 @@ fn timer_facts(
         })
     });
     let mid = mid_state(cx, setup);
-    let th = phase::thresholds(cx, index, setup, &sweep::with_level(&mid, setup.device, true))
-        .ok()
-        .flatten();
+    let th = phase::thresholds(
+        cx,
+        index,
+        setup,
+        &sweep::with_level(&mid, setup.device, true),
+    )
+    .ok()
+    .flatten();
     if let Some(th) = th {
         let v = 0.5 * (th.upper + th.lower);
-        facts.charge_path = path_devices(cx, setup, &sweep::with_level(&mid, setup.device, true), v);
+        facts.charge_path =
+            path_devices(cx, setup, &sweep::with_level(&mid, setup.device, true), v);
         if setup.mode == TimerMode::Astable {
             facts.discharge_path =
                 path_devices(cx, setup, &sweep::with_level(&mid, setup.device, false), v);

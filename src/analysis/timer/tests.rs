@@ -235,7 +235,11 @@ fn monostable_width_is_1_1_rc() {
     let trig = t.trigger.as_ref().expect("trigger");
     // 10 µs low plus the part of each 100 ns edge below 3 V (a third of it: the pulse swings
     // from 9 V to 0 V).
-    assert!(rel(trig.low_s.max, 10e-6 + 2.0 * 1e-7 / 3.0) < 1e-3, "{}", trig.low_s.max);
+    assert!(
+        rel(trig.low_s.max, 10e-6 + 2.0 * 1e-7 / 3.0) < 1e-3,
+        "{}",
+        trig.low_s.max
+    );
     assert!(rel(trig.period_s.min, 10e-3) < 1e-9);
     assert!(t.divided_frequency_hz.is_none());
 }
@@ -285,7 +289,9 @@ fn diode_across_rb_makes_the_low_time_a_spike() {
 }
 
 fn cx_name(d: &Deck, device: DeviceId) -> String {
-    d.netlist.elements[d.circuit.devices[device].element].path.clone()
+    d.netlist.elements[d.circuit.devices[device].element]
+        .path
+        .clone()
 }
 
 fn rheostat_monostable(series: Option<f64>) -> Deck {
@@ -341,7 +347,10 @@ fn control_voltage_moves_the_thresholds() {
 #[test]
 fn timer_driving_a_one_shot_hands_over_its_low_time() {
     let mut d = astable(1e3, 10e3, 10e-9, 9.0);
-    d.timer("XU2", ["0", "out", "out2", "vcc", "ctl2", "tc2", "tc2", "vcc"]);
+    d.timer(
+        "XU2",
+        ["0", "out", "out2", "vcc", "ctl2", "tc2", "tc2", "vcc"],
+    );
     d.r("R2", "vcc", "tc2", 10e3);
     d.c("C2", "tc2", "0", 2.2e-9);
     let facts = d.analyze();

@@ -119,7 +119,12 @@ fn fraction_below(a: f64, b: f64, threshold: f64) -> f64 {
 
 /// Time per period a PULSE source holds the trigger below `threshold`, given the trigger's
 /// voltage at the source's `v1` and `v2` levels; and the period.
-pub fn pulse_time_below(wave: &Waveform, at_v1: f64, at_v2: f64, threshold: f64) -> Option<(f64, f64)> {
+pub fn pulse_time_below(
+    wave: &Waveform,
+    at_v1: f64,
+    at_v2: f64,
+    threshold: f64,
+) -> Option<(f64, f64)> {
     let Waveform::Pulse {
         rise,
         fall,
@@ -213,7 +218,9 @@ fn trigger_facts(
             wipers: Default::default(),
         };
         let describe = state.describe(cx, &[]);
-        let th = super::phase::thresholds(cx, index, setup, &state).ok().flatten()?;
+        let th = super::phase::thresholds(cx, index, setup, &state)
+            .ok()
+            .flatten()?;
         thresholds.push((th.lower, describe.clone()));
         let at_low = trig_level(cx, setup, drv, &state, false)?;
         let at_high = trig_level(cx, setup, drv, &state, true)?;
