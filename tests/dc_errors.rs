@@ -215,7 +215,11 @@ fn arbitrary_element() -> impl Strategy<Value = (u8, usize, usize, usize, f64, f
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 96, failure_persistence: None, ..ProptestConfig::default() })]
+    #![proptest_config(ProptestConfig { cases: 96, failure_persistence: None,
+        // A fixed seed keeps CI deterministic; raise `cases` and drop the seed to explore
+        // further.
+        rng_seed: proptest::test_runner::RngSeed::Fixed(0x6b69_636b_0003),
+        ..ProptestConfig::default() })]
 
     /// Any network of any values returns Ok or Err without panicking or hanging.
     #[test]

@@ -220,3 +220,24 @@ fn switch_states_and_zero_ohm_short() {
     assert_close(op.current(closed), 5.0 / (load + 0.5), 1e-10);
     assert_close(op.current(open), 5.0 / (1e9 + 1e3), 1e-9);
 }
+
+#[test]
+fn start_from_another_network_is_ignored() {
+    // solve_from only speeds a solve up: a foreign start gives the divider rule's answer.
+    use kickback::analysis::dc::solve_from;
+    let mut other = Network::new();
+    let x = other.add_node("x");
+    let gnd = other.ground();
+    other.add_current_source(gnd, x, 1.0);
+    other.add_resistor(x, gnd, 1e3);
+    let foreign = solve(&other, &SolveOptions::default()).expect("solves");
+
+    let mut net = Network::new();
+    let gnd = net.ground();
+    let (vin, out) = (net.add_node("vin"), net.add_node("out"));
+    net.add_voltage_source(vin, gnd, 5.0);
+    net.add_resistor(vin, out, 1e3);
+    net.add_resistor(out, gnd, 4e3);
+    let op = solve_from(&net, &SolveOptions::default(), &foreign).expect("solves");
+    assert_close(op.voltage(out), 4.0, 1e-12);
+}

@@ -1,6 +1,7 @@
 //! Random nonlinear networks at board-level magnitudes (sources up to ±30 V and ±100 µA,
-//! 10 Ω to 1 MΩ): every one with a resistive path from each node to ground must converge, and the reported element currents must satisfy Kirchhoff's current law at every
-//! node (Kirchhoff, 1845: the currents into a node sum to zero).
+//! 10 Ω to 1 MΩ): every one with a resistive path from each node to ground must converge,
+//! and the reported element currents must satisfy Kirchhoff's current law at every node
+//! (Kirchhoff, 1845: the currents into a node sum to zero).
 
 use kickback::analysis::dc::{
     solve, BjtParams, BjtPolarity, DiodeParams, MosParams, MosPolarity, Network, Node, SolveOptions,
@@ -50,7 +51,11 @@ fn network() -> impl Strategy<Value = (usize, Vec<(usize, usize, f64)>, Vec<Part
 }
 
 proptest! {
-    #![proptest_config(ProptestConfig { cases: 256, failure_persistence: None, ..ProptestConfig::default() })]
+    #![proptest_config(ProptestConfig { cases: 256, failure_persistence: None,
+        // A fixed seed keeps CI deterministic; raise `cases` and drop the seed to explore
+        // further.
+        rng_seed: proptest::test_runner::RngSeed::Fixed(0x6b69_636b_0001),
+        ..ProptestConfig::default() })]
 
     #[test]
     fn random_nonlinear_networks_converge_and_obey_kcl(

@@ -5,7 +5,8 @@
 use std::time::Instant;
 
 use kickback::analysis::dc::{
-    solve, BjtParams, BjtPolarity, DiodeParams, MosParams, MosPolarity, Network, SolveOptions,
+    solve, solve_from, BjtParams, BjtPolarity, DiodeParams, MosParams, MosPolarity, Network,
+    SolveOptions,
 };
 
 /// Two channels of a drive board (values invented): a divider chain biasing everything, a
@@ -13,11 +14,15 @@ use kickback::analysis::dc::{
 /// freewheel diode, a PNP high-side driver into a solenoid, a P-channel switch on a pump, and
 /// an R–2R sense ladder.
 fn drive_board() -> Network {
+    drive_board_at(12.0)
+}
+
+fn drive_board_at(supply: f64) -> Network {
     let mut net = Network::new();
     let gnd = net.ground();
     let vcc = net.add_node("vcc");
     let v5 = net.add_node("v5");
-    net.add_voltage_source(vcc, gnd, 12.0);
+    net.add_voltage_source(vcc, gnd, supply);
     net.add_voltage_source(v5, gnd, 5.0);
 
     // Channel 1: logic pin → base resistor → NPN → pull-up → NMOS gate → motor.
@@ -108,6 +113,39 @@ fn drive_board_solves() {
 }
 
 #[test]
+fn supply_sweep_from_previous_point_matches_cold_solves() {
+    // Warm starts are an optimisation only: each corner must agree with a cold solve.
+    let options = SolveOptions::default();
+    let mut previous = solve(&drive_board_at(10.0), &options).expect("solves");
+    for step in 1..=8 {
+        let supply = 10.0 + 0.5 * f64::from(step);
+        let net = drive_board_at(supply);
+        let warm = solve_from(&net, &options, &previous).expect("solves");
+        let cold = solve(&net, &options).expect("solves");
+        assert!(
+            warm.iterations() < cold.iterations(),
+            "{} vs {}",
+            warm.iterations(),
+            cold.iterations()
+        );
+        for k in 0..net.node_count() {
+            let name = format!("ladder{k}");
+            for node in [net.node("pump"), net.node("solenoid"), net.node(&name)]
+                .into_iter()
+                .flatten()
+            {
+                let (w, c) = (
+                    warm.voltage(node).unwrap_or(f64::NAN),
+                    cold.voltage(node).unwrap_or(0.0),
+                );
+                assert!((w - c).abs() <= 1e-6 * c.abs() + 1e-6, "{name}: {w} vs {c}");
+            }
+        }
+        previous = warm;
+    }
+}
+
+#[test]
 #[ignore = "timing report; run with --release"]
 fn time_one_solve() {
     let net = drive_board();
@@ -123,4 +161,13 @@ fn time_one_solve() {
     println!(
         "one solve of 30 nodes / 5 nonlinear devices: {each:?} ({iterations} Newton iterations)"
     );
+    let nearby = drive_board_at(12.5);
+    let start = solve(&net, &options).expect("the board solves");
+    let started = Instant::now();
+    for _ in 0..runs {
+        let op = solve_from(&nearby, &options, &start).expect("the board solves");
+        iterations = op.iterations();
+    }
+    let each = started.elapsed() / runs;
+    println!("the same from a neighbouring corner's solution: {each:?} ({iterations} iterations)");
 }

@@ -127,6 +127,8 @@ pub struct TimerFacts {
     /// Peak current of a capacitor dumped into the discharge pin through a diode with no
     /// series resistor, and the diode.
     pub discharge_dump: Option<(DeviceId, f64)>,
+    /// The state in which that peak is largest (`RV1 wiper at 100 %`).
+    pub discharge_dump_state: Option<String>,
     pub timing_capacitor: Option<DeviceId>,
     pub pots: Vec<DeviceId>,
     pub stuck: Option<StuckPhase>,

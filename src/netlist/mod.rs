@@ -1,13 +1,40 @@
 //! The SPICE front end: text → statements with spans → values and parameters → includes →
 //! flattened elements ([`FlatNetlist`]). Nothing here knows what a part *is*; the caller says
 //! which subcircuits to keep whole.
+//!
+//! Stages, each in its own module: `text` (decoding, caseless names), `lex` (lines, comments,
+//! continuation, tokens) with `suppress` (allow comments) and `dialect` (other netlist
+//! families), `load` (files, includes, definitions), `deck` (names, headers, models), `scope`,
+//! `expr` and `functions` (parameters and expressions), [`value`] (numbers), `stmt` and
+//! `element*` (per-letter grammar into `parsed` parts), `flatten` and `source_spec` (hierarchy
+//! to [`FlatElement`]s), `write` (flat deck back to text).
 
+mod deck;
+mod dialect;
+mod element;
+mod element_ports;
+mod element_sources;
+mod expr;
 pub mod flat;
+mod flatten;
+mod functions;
+mod lex;
+mod load;
+mod parsed;
+mod scope;
+mod source_spec;
+mod stmt;
+mod suppress;
+mod text;
+pub mod value;
+mod write;
 
 pub use flat::*;
+pub use text::decode;
+pub use write::write_flat;
 
 use crate::diagnostic::Finding;
-use crate::source::SourceMap;
+use crate::source::{FileId, SourceMap};
 use std::path::{Path, PathBuf};
 
 /// Resource limits for loading one netlist.
@@ -65,6 +92,119 @@ pub fn load(
     limits: &Limits,
     keep_whole: KeepWhole<'_>,
 ) -> Result<(FlatNetlist, Vec<Finding>), LoadError> {
-    let _ = (path, sources, limits, keep_whole);
-    Ok((FlatNetlist::default(), Vec::new()))
+    let unreadable = |e: std::io::Error| LoadError::Unreadable {
+        path: path.to_path_buf(),
+        reason: e.to_string(),
+    };
+    let meta = std::fs::metadata(path).map_err(unreadable)?;
+    if !meta.is_file() {
+        return Err(LoadError::Unreadable {
+            path: path.to_path_buf(),
+            reason: "not a file".into(),
+        });
+    }
+    if meta.len() > limits.max_file_bytes {
+        return Err(LoadError::TooLarge {
+            path: path.to_path_buf(),
+            size: meta.len(),
+            limit: limits.max_file_bytes,
+        });
+    }
+    let bytes = std::fs::read(path).map_err(unreadable)?;
+    let canonical = std::fs::canonicalize(path).map_err(unreadable)?;
+    let root = canonical
+        .parent()
+        .map(Path::to_path_buf)
+        .unwrap_or_else(|| canonical.clone());
+    let id = sources.add(
+        path.to_path_buf(),
+        path.display().to_string(),
+        text::decode(bytes),
+    );
+    let origin = load::Origin { canonical, root };
+    run(sources, id, Some(origin), limits, keep_whole)
+}
+
+/// Parses netlist text without reading any file (includes are recorded as missing).
+/// Convenient for tests of later stages.
+pub fn parse_str(name: &str, text: &str) -> (FlatNetlist, Vec<Finding>, SourceMap) {
+    let mut sources = SourceMap::new();
+    let id = sources.add(PathBuf::from(name), name.to_string(), text.to_string());
+    let limits = Limits::default();
+    let keep = |_: &str| false;
+    let result = run(&mut sources, id, None, &limits, &keep);
+    let (flat, findings) = match result {
+        Ok(r) => r,
+        Err(e) => {
+            let span = crate::source::Span::new(id, 0, 0);
+            let finding = Finding::new(
+                "syntax",
+                crate::diagnostic::Severity::Error,
+                span,
+                e.to_string(),
+            );
+            (FlatNetlist::default(), vec![finding])
+        }
+    };
+    (flat, findings, sources)
+}
+
+fn run(
+    sources: &mut SourceMap,
+    top: FileId,
+    origin: Option<load::Origin>,
+    limits: &Limits,
+    keep_whole: KeepWhole<'_>,
+) -> Result<(FlatNetlist, Vec<Finding>), LoadError> {
+    let loaded = load::Loader::new(sources, limits, origin).run(top);
+    let sources: &SourceMap = sources;
+    let mut findings = loaded.findings.clone();
+    let mut suppressions: Vec<Suppression> = loaded
+        .files
+        .iter()
+        .flat_map(|f| f.suppressions.iter().cloned())
+        .collect();
+    suppressions.sort_by_key(|s| (s.file, s.span.start));
+    if loaded.foreign {
+        let title = loaded
+            .files
+            .first()
+            .and_then(|f| f.title)
+            .and_then(|(s, e)| {
+                sources
+                    .get(top)
+                    .and_then(|f| f.text.get(s as usize..e as usize))
+            })
+            .unwrap_or("")
+            .to_string();
+        let flat = FlatNetlist {
+            title,
+            ..FlatNetlist::default()
+        };
+        return Ok((flat, findings));
+    }
+    let mut deck = deck::build(&loaded, sources);
+    let elements = {
+        let mut flattener = flatten::Flattener::new(&deck, limits, keep_whole);
+        flattener.run()?;
+        std::mem::take(&mut flattener.out)
+    };
+    findings.extend(deck.sink.take());
+    findings.sort_by_key(|f| (f.span.file, f.span.start, f.span.end));
+    let flat = FlatNetlist {
+        title: std::mem::take(&mut deck.title),
+        elements,
+        models: std::mem::take(&mut deck.models),
+        globals: deck.globals.iter().map(|g| g.to_string()).collect(),
+        suppressions,
+        missing_includes: loaded.missing.clone(),
+        subckt_names: deck
+            .defs
+            .iter()
+            .skip(1)
+            .map(|d| d.name.to_string())
+            .filter(|n| !n.is_empty())
+            .collect(),
+    };
+    Ok((flat, findings))
 }

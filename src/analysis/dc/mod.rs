@@ -58,7 +58,31 @@ use newton::{Converged, Failure, Solver};
 /// voltage-source loops or a degenerate matrix, [`DcError::NoConvergence`] when Newton and its
 /// fallbacks all fail within the iteration budget.
 pub fn solve(network: &Network, options: &SolveOptions) -> Result<OperatingPoint, DcError> {
-    let (layout, converged, iterations, fallback) = solve_raw(network, options)?;
+    solve_with_start(network, options, None)
+}
+
+/// As [`solve`], starting Newton from `start`, the operating point of the same network
+/// (same nodes and elements, in the same order) with other element values. Sweeps of a
+/// supply corner or a pot's wiper converge in a few iterations this way. A `start` from a
+/// differently built network is ignored, and a start that fails falls back to [`solve`]'s
+/// zero start, so the answer never depends on the starting point being good.
+///
+/// # Errors
+/// As [`solve`].
+pub fn solve_from(
+    network: &Network,
+    options: &SolveOptions,
+    start: &OperatingPoint,
+) -> Result<OperatingPoint, DcError> {
+    solve_with_start(network, options, Some(&start.solution))
+}
+
+fn solve_with_start(
+    network: &Network,
+    options: &SolveOptions,
+    start: Option<&[f64]>,
+) -> Result<OperatingPoint, DcError> {
+    let (layout, converged, iterations, fallback) = solve_raw(network, options, start)?;
     Ok(OperatingPoint::build(
         network,
         &layout,
@@ -74,11 +98,12 @@ pub fn solve(network: &Network, options: &SolveOptions) -> Result<OperatingPoint
 pub(crate) fn solve_raw(
     network: &Network,
     options: &SolveOptions,
+    start: Option<&[f64]>,
 ) -> Result<(Layout, Converged, usize, Fallback), DcError> {
     topology::validate(network)?;
     topology::check_structure(network)?;
     let layout = Layout::new(network);
-    let outcome = Solver::new(network, &layout, options).solve();
+    let outcome = Solver::new(network, &layout, options).solve(start);
     match outcome.result {
         Ok((converged, fallback)) => Ok((layout, converged, outcome.iterations, fallback)),
         Err(Failure::Singular(unknowns)) => Err(topology::singular(names(&layout, &unknowns))),

@@ -16,7 +16,7 @@ use super::options::SolveOptions;
 /// How the accepted solution was reached.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash)]
 pub enum Fallback {
-    /// Plain Newton–Raphson from a zero start converged.
+    /// Plain Newton–Raphson converged (from a zero start, or from the given starting point).
     None,
     /// A shunt conductance on every node was stepped down to zero.
     GminStepping,
@@ -90,9 +90,19 @@ impl<'a> Solver<'a> {
     /// Plain Newton, then gmin stepping, then source stepping. A singular matrix on the way
     /// does not end the attempt at once (devices may pass through states that isolate a
     /// node); the first failure is what gets reported when every attempt fails.
-    pub(crate) fn solve(mut self) -> Outcome {
+    ///
+    /// A `start` of the right size (the solution of the same network with other values) is
+    /// tried first; a failure from there falls back to the zero start.
+    pub(crate) fn solve(mut self, start: Option<&[f64]>) -> Outcome {
         let zero = DVector::zeros(self.layout.size);
         let zero_lin = vec![[0.0, 0.0]; self.net.elements.len()];
+        if let Some(start) = start.filter(|s| s.len() == self.layout.size) {
+            let x0 = DVector::from_column_slice(start);
+            let lin0 = device_voltages(self.net, self.layout, &x0);
+            if let Ok(done) = self.newton(&x0, &lin0, self.settings(1.0, 0.0)) {
+                return self.finish(Ok((done, Fallback::None)));
+            }
+        }
         let plain = self.newton(&zero, &zero_lin, self.settings(1.0, 0.0));
         let first_failure = match plain {
             Ok(done) => return self.finish(Ok((done, Fallback::None))),

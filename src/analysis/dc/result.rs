@@ -49,6 +49,8 @@ pub(crate) struct ElementState {
 #[derive(Clone, Debug, PartialEq)]
 pub struct OperatingPoint {
     voltages: Vec<f64>,
+    /// The full solution vector, kept as a starting point for [`super::solve_from`].
+    pub(crate) solution: Vec<f64>,
     elements: Vec<ElementState>,
     iterations: usize,
     fallback: Fallback,
@@ -93,6 +95,7 @@ impl OperatingPoint {
             .collect();
         Self {
             voltages,
+            solution: x.iter().copied().collect(),
             elements,
             iterations,
             fallback,

@@ -51,7 +51,7 @@ pub fn thevenin(
     if node.index() >= network.node_count() {
         return Err(singular(vec![network.node_name(node).to_string()]));
     }
-    let (layout, converged, _, _) = super::solve_raw(network, options)?;
+    let (layout, converged, _, _) = super::solve_raw(network, options, None)?;
     let Some(slot) = layout.node(node) else {
         return Ok(Thevenin {
             v_open: 0.0,

@@ -1,0 +1,478 @@
+//! Reading files and walking their statements into definitions: the top level and one entry
+//! per `.subckt`, with `.include`/`.lib` spliced in where they stand. Include policy lives
+//! here: paths relative to the including file, cycles, nesting depth, size, and refusal of
+//! anything outside the top netlist's folder tree (checked before a file is opened).
+
+use super::dialect;
+use super::flat::MissingInclude;
+use super::lex::{lex, Dot, Head, Lexed, TokKind};
+use super::text::decode;
+use super::Limits;
+use crate::diagnostic::{Finding, Severity};
+use crate::source::{FileId, SourceMap, Span};
+use std::collections::HashMap;
+use std::path::{Component, Path, PathBuf};
+
+/// A statement: index into [`Loaded::files`] and into that file's statements.
+pub type StmtRef = (u32, u32);
+
+/// One definition before names are resolved: the top level (index 0) or a `.subckt`.
+#[derive(Debug, Default)]
+pub struct DefBuild {
+    pub parent: Option<usize>,
+    pub header: Option<StmtRef>,
+    pub elements: Vec<StmtRef>,
+    pub models: Vec<StmtRef>,
+    pub params: Vec<StmtRef>,
+    pub funcs: Vec<StmtRef>,
+    pub children: Vec<usize>,
+}
+
+#[derive(Debug, Default)]
+pub struct Loaded {
+    pub files: Vec<Lexed>,
+    pub defs: Vec<DefBuild>,
+    pub globals: Vec<StmtRef>,
+    pub titles: Vec<StmtRef>,
+    pub missing: Vec<MissingInclude>,
+    pub findings: Vec<Finding>,
+    /// Set when the top file is of another netlist family; nothing else is read.
+    pub foreign: bool,
+}
+
+/// Where the top file lives, for resolving and policing includes.
+pub struct Origin {
+    /// Canonical path of the top file.
+    pub canonical: PathBuf,
+    /// Canonical folder whose tree includes must stay in.
+    pub root: PathBuf,
+}
+
+struct FileInfo {
+    canonical: Option<PathBuf>,
+    /// Display name as registered in the source map.
+    name: String,
+}
+
+pub struct Loader<'s> {
+    sources: &'s mut SourceMap,
+    limits: &'s Limits,
+    origin: Option<Origin>,
+    out: Loaded,
+    info: Vec<FileInfo>,
+    by_path: HashMap<PathBuf, usize>,
+    /// Include chain: (file, section) pairs being walked.
+    chain: Vec<(usize, Option<String>)>,
+    def_stack: Vec<usize>,
+    depth_reported: bool,
+}
+
+impl<'s> Loader<'s> {
+    /// `origin` is `None` when includes are not followed (text given directly).
+    pub fn new(sources: &'s mut SourceMap, limits: &'s Limits, origin: Option<Origin>) -> Self {
+        Loader {
+            sources,
+            limits,
+            origin,
+            out: Loaded::default(),
+            info: Vec::new(),
+            by_path: HashMap::new(),
+            chain: Vec::new(),
+            def_stack: vec![0],
+            depth_reported: false,
+        }
+    }
+
+    /// Lexes and walks the top file (already in the source map).
+    pub fn run(mut self, top: FileId) -> Loaded {
+        let Some(file) = self.sources.get(top) else {
+            return self.out;
+        };
+        let lexed = lex(top, &file.text, true);
+        let name = file.name.clone();
+        if let Some(finding) = dialect::detect(&lexed, &file.text) {
+            self.out.findings.push(finding);
+            self.out.files.push(lexed);
+            self.out.foreign = true;
+            return self.out;
+        }
+        let canonical = self.origin.as_ref().map(|o| o.canonical.clone());
+        if let Some(c) = &canonical {
+            self.by_path.insert(c.clone(), 0);
+        }
+        self.info.push(FileInfo { canonical, name });
+        self.take_lexed(lexed);
+        self.out.defs.push(DefBuild::default());
+        self.chain.push((0, None));
+        let count = self.out.files[0].stmts.len();
+        self.walk(0, 0, count);
+        self.chain.pop();
+        while self.def_stack.len() > 1 {
+            if let Some(def) = self.def_stack.pop() {
+                if let Some(span) = self.header_span(def) {
+                    self.out.findings.push(Finding::new(
+                        "syntax",
+                        Severity::Error,
+                        span,
+                        "this `.subckt` is never closed: expected `.ends` before the end of the deck",
+                    ));
+                }
+            }
+        }
+        self.out
+    }
+
+    fn take_lexed(&mut self, mut lexed: Lexed) -> usize {
+        self.out.findings.append(&mut lexed.findings);
+        self.out.files.push(lexed);
+        self.out.files.len() - 1
+    }
+
+    fn header_span(&self, def: usize) -> Option<Span> {
+        let (f, s) = self.out.defs.get(def)?.header?;
+        let file = self.out.files.get(f as usize)?;
+        let stmt = file.stmts.get(s as usize)?;
+        Some(file.span(stmt.start, stmt.end))
+    }
+
+    fn stmt_span(&self, file: usize, stmt: usize) -> Span {
+        let lexed = &self.out.files[file];
+        let s = &lexed.stmts[stmt];
+        lexed.span(s.start, s.end)
+    }
+
+    fn current(&mut self) -> &mut DefBuild {
+        let def = self.def_stack.last().copied().unwrap_or(0);
+        &mut self.out.defs[def]
+    }
+
+    fn walk(&mut self, file: usize, from: usize, to: usize) {
+        let mut i = from;
+        while i < to {
+            let Some(stmt) = self.out.files[file].stmts.get(i).copied() else {
+                break;
+            };
+            let at: StmtRef = (file as u32, i as u32);
+            match stmt.head {
+                Head::Element(_) | Head::Invalid => self.current().elements.push(at),
+                Head::Dot(Dot::Subckt) => self.open_subckt(at),
+                Head::Dot(Dot::Ends) => {
+                    if self.def_stack.len() > 1 {
+                        self.def_stack.pop();
+                    } else {
+                        self.out.findings.push(Finding::new(
+                            "syntax",
+                            Severity::Error,
+                            self.stmt_span(file, i),
+                            "`.ends` with no `.subckt` open before it",
+                        ));
+                    }
+                }
+                Head::Dot(Dot::Model) => self.current().models.push(at),
+                Head::Dot(Dot::Param) => self.current().params.push(at),
+                Head::Dot(Dot::Func) => self.current().funcs.push(at),
+                Head::Dot(Dot::Global) => self.out.globals.push(at),
+                Head::Dot(Dot::Title) => self.out.titles.push(at),
+                Head::Dot(Dot::Include) => match self.argument(file, i, 1) {
+                    Some(path) => self.include(file, i, &path, None),
+                    None => self.out.findings.push(Finding::new(
+                        "syntax",
+                        Severity::Error,
+                        self.stmt_span(file, i),
+                        "expected a file name after `.include`",
+                    )),
+                },
+                Head::Dot(Dot::Lib) => {
+                    if let Some(&end) = self.out.files[file].section_end.get(&i) {
+                        // A section definition: read only when a `.lib FILE SECTION` asks for it.
+                        i = end + 1;
+                        continue;
+                    }
+                    match (self.argument(file, i, 1), self.argument(file, i, 2)) {
+                        (Some(path), section) => self.include(file, i, &path, section),
+                        (None, _) => self.out.findings.push(Finding::new(
+                            "syntax",
+                            Severity::Error,
+                            self.stmt_span(file, i),
+                            "expected a file name (and a section name) after `.lib`",
+                        )),
+                    }
+                }
+                Head::Dot(Dot::Endl) | Head::Dot(Dot::Other) => {}
+            }
+            i += 1;
+        }
+    }
+
+    fn open_subckt(&mut self, at: StmtRef) {
+        let parent = self.def_stack.last().copied().unwrap_or(0);
+        let id = self.out.defs.len();
+        self.out.defs.push(DefBuild {
+            parent: Some(parent),
+            header: Some(at),
+            ..DefBuild::default()
+        });
+        self.out.defs[parent].children.push(id);
+        self.def_stack.push(id);
+        if self.def_stack.len() > self.limits.max_depth + 1 && !self.depth_reported {
+            self.depth_reported = true;
+            self.out.findings.push(Finding::new(
+                "syntax",
+                Severity::Error,
+                self.stmt_span(at.0 as usize, at.1 as usize),
+                format!(
+                    "subcircuit definitions are nested more than {} levels deep here",
+                    self.limits.max_depth
+                ),
+            ));
+        }
+    }
+
+    /// The `n`-th argument of a statement as text: a quoted string without its quotes, or a
+    /// plain word (for the first argument of `.include`, the rest of the line).
+    fn argument(&self, file: usize, stmt: usize, n: usize) -> Option<String> {
+        let lexed = &self.out.files[file];
+        let s = lexed.stmts.get(stmt)?;
+        let toks = lexed.toks_of(s);
+        let text = &self.sources.get(lexed.file)?.text;
+        let tok = toks.get(n)?;
+        let raw = text.get(tok.start as usize..tok.end as usize)?;
+        match tok.kind {
+            TokKind::Str | TokKind::Quote if raw.len() >= 2 => {
+                Some(raw[1..raw.len() - 1].to_string())
+            }
+            TokKind::Word
+                if n == 1
+                    && toks.len() > 2
+                    && lexed.stmts[stmt].head == Head::Dot(Dot::Include) =>
+            {
+                // An unquoted path with characters that split words (`parts(v2).lib`).
+                let end = toks.last().map_or(tok.end, |t| t.end);
+                text.get(tok.start as usize..end as usize)
+                    .map(|t| t.trim().to_string())
+            }
+            TokKind::Word => Some(raw.to_string()),
+            _ => None,
+        }
+    }
+
+    fn refuse(&mut self, span: Span, message: String) {
+        self.out.findings.push(Finding::new(
+            "include-refused",
+            Severity::Error,
+            span,
+            message,
+        ));
+    }
+
+    fn include(&mut self, from: usize, stmt: usize, written: &str, section: Option<String>) {
+        let span = self.stmt_span(from, stmt);
+        let shown = match &section {
+            Some(s) => format!("{written} (section {s})"),
+            None => written.to_string(),
+        };
+        let missing = MissingInclude {
+            path: shown.clone(),
+            span,
+        };
+        let Some(root) = self.origin.as_ref().map(|o| o.root.clone()) else {
+            self.out.missing.push(missing);
+            return;
+        };
+        if self.chain.len() > self.limits.max_depth {
+            self.refuse(
+                span,
+                format!(
+                    "`{shown}` is not read: includes are nested more than {} levels deep",
+                    self.limits.max_depth
+                ),
+            );
+            return;
+        }
+        let portable = written.replace('\\', "/");
+        let from_dir = self.info[from]
+            .canonical
+            .as_ref()
+            .and_then(|p| p.parent().map(Path::to_path_buf))
+            .unwrap_or_else(|| root.clone());
+        let candidate = normalize(&from_dir.join(&portable));
+        let allow = self.limits.allow_outside_includes;
+        if !allow && !candidate.starts_with(&root) {
+            self.refuse(span, format!("`{shown}` is outside the netlist's folder tree and is not read (allow outside includes to read it)"));
+            return;
+        }
+        let canonical = match std::fs::canonicalize(&candidate) {
+            Ok(c) => c,
+            Err(_) => {
+                self.out.missing.push(missing);
+                return;
+            }
+        };
+        if !allow && !canonical.starts_with(&root) {
+            self.refuse(span, format!("`{shown}` leads outside the netlist's folder tree (through a link) and is not read (allow outside includes to read it)"));
+            return;
+        }
+        let file = match self.by_path.get(&canonical) {
+            Some(&f) => f,
+            None => match self.read(from, &portable, &canonical, span, &shown) {
+                Some(f) => f,
+                None => return,
+            },
+        };
+        if let Some(pos) = self
+            .chain
+            .iter()
+            .position(|(f, s)| *f == file && sections_equal(s.as_deref(), section.as_deref()))
+        {
+            let mut names: Vec<String> = self.chain[pos..]
+                .iter()
+                .map(|(f, _)| self.info[*f].name.clone())
+                .collect();
+            names.push(self.info[file].name.clone());
+            self.out.findings.push(Finding::new(
+                "include-cycle",
+                Severity::Error,
+                span,
+                format!("include cycle: {}", names.join(" → ")),
+            ));
+            return;
+        }
+        let range = match &section {
+            None => Some((0, self.out.files[file].stmts.len())),
+            Some(name) => self.out.files[file]
+                .sections
+                .get(&name.to_ascii_lowercase())
+                .map(|&(h, e)| (h + 1, e)),
+        };
+        let Some((start, end)) = range else {
+            self.out.missing.push(missing);
+            return;
+        };
+        self.chain.push((file, section));
+        self.walk(file, start, end);
+        self.chain.pop();
+    }
+
+    /// Reads, registers and lexes an include; `None` when it cannot be used.
+    fn read(
+        &mut self,
+        from: usize,
+        portable: &str,
+        canonical: &Path,
+        span: Span,
+        shown: &str,
+    ) -> Option<usize> {
+        let size = match std::fs::metadata(canonical) {
+            Ok(m) if m.is_file() => m.len(),
+            _ => {
+                self.out.missing.push(MissingInclude {
+                    path: shown.to_string(),
+                    span,
+                });
+                return None;
+            }
+        };
+        if size > self.limits.max_file_bytes {
+            self.refuse(
+                span,
+                format!(
+                    "`{shown}` is {size} bytes, above the file size limit of {} bytes, and is not read",
+                    self.limits.max_file_bytes
+                ),
+            );
+            return None;
+        }
+        let Ok(bytes) = std::fs::read(canonical) else {
+            self.out.missing.push(MissingInclude {
+                path: shown.to_string(),
+                span,
+            });
+            return None;
+        };
+        let name = display_name(&self.info[from].name, portable);
+        let text = decode(bytes);
+        let id = self.sources.add(PathBuf::from(&name), name.clone(), text);
+        let file_text = self.sources.get(id).map(|f| f.text.as_str()).unwrap_or("");
+        let lexed = lex(id, file_text, false);
+        let foreign = dialect::detect(&lexed, file_text);
+        let index = self.out.files.len();
+        self.by_path.insert(canonical.to_path_buf(), index);
+        self.info.push(FileInfo {
+            canonical: Some(canonical.to_path_buf()),
+            name,
+        });
+        match foreign {
+            Some(finding) => {
+                self.out.findings.push(finding);
+                let mut empty = lexed;
+                empty.stmts.clear();
+                empty.sections.clear();
+                empty.section_end.clear();
+                empty.findings.clear();
+                self.out.files.push(empty);
+            }
+            None => {
+                self.take_lexed(lexed);
+            }
+        }
+        Some(index)
+    }
+}
+
+fn sections_equal(a: Option<&str>, b: Option<&str>) -> bool {
+    match (a, b) {
+        (None, None) => true,
+        (Some(x), Some(y)) => x.eq_ignore_ascii_case(y),
+        _ => false,
+    }
+}
+
+/// Removes `.` and resolves `..` lexically (no file system access).
+pub fn normalize(path: &Path) -> PathBuf {
+    let mut out = PathBuf::new();
+    for comp in path.components() {
+        match comp {
+            Component::CurDir => {}
+            Component::ParentDir => {
+                let last_is_normal =
+                    matches!(out.components().next_back(), Some(Component::Normal(_)));
+                if last_is_normal {
+                    out.pop();
+                } else if !out.has_root() {
+                    out.push("..");
+                }
+            }
+            other => out.push(other.as_os_str()),
+        }
+    }
+    out
+}
+
+/// The include's name as the user should see it: the including file's shown folder joined
+/// with the path as written.
+fn display_name(including: &str, written: &str) -> String {
+    let written_path = Path::new(written);
+    if written_path.is_absolute() {
+        return normalize(written_path).display().to_string();
+    }
+    let dir = Path::new(including).parent().unwrap_or(Path::new(""));
+    let joined = normalize(&dir.join(written_path));
+    joined.display().to_string()
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn normalizing_paths() {
+        assert_eq!(normalize(Path::new("a/./b/../c")), PathBuf::from("a/c"));
+        assert_eq!(normalize(Path::new("../x")), PathBuf::from("../x"));
+        assert_eq!(normalize(Path::new("/a/../../b")), PathBuf::from("/b"));
+        assert_eq!(
+            display_name("decks/top.cir", "sub/parts.lib"),
+            "decks/sub/parts.lib"
+        );
+        assert_eq!(display_name("top.cir", "./parts.lib"), "parts.lib");
+    }
+}
