@@ -50,11 +50,14 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
         .map(|r| in_conduction_sense(r, k).weakest);
     let threshold = rated(cx, sw.device, "vgs_th_max").map(|r| r.value);
     let rds = if k.is_mos() {
-        sw.rds_on_ohm.as_ref().map(|r| r.max).or(match (mos_gain(cx, sw.device), vgs, threshold) {
-            (Some(g), Some(v), Some(t)) => rds_at(&g, v, t),
-            _ => None,
-        })
-        .or_else(|| rated(cx, sw.device, "rds_on").map(|r| r.value))
+        sw.rds_on_ohm
+            .as_ref()
+            .map(|r| r.max)
+            .or(match (mos_gain(cx, sw.device), vgs, threshold) {
+                (Some(g), Some(v), Some(t)) => rds_at(&g, v, t),
+                _ => None,
+            })
+            .or_else(|| rated(cx, sw.device, "rds_on").map(|r| r.value))
     } else {
         None
     };
