@@ -106,7 +106,10 @@ fn reversed_clamp(cx: &RuleContext<'_>, sw: &SwitchFacts, fw: &Freewheel) -> Opt
          off"
     );
     if let Some(i) = fw.off_state_current_a {
-        message.push_str(&format!(", {} through {load_name}", format_si(i.abs(), "A")));
+        message.push_str(&format!(
+            ", {} through {load_name}",
+            format_si(i.abs(), "A")
+        ));
     }
     message.push_str(&format!(
         ", so {load_name} never turns off, and at turn-off it clamps nothing"
@@ -118,9 +121,9 @@ fn reversed_clamp(cx: &RuleContext<'_>, sw: &SwitchFacts, fw: &Freewheel) -> Opt
     }
     let node = |n: Option<crate::circuit::NetId>| n.map(|n| net_name(cx, n).to_string());
     let help = match (node(sw.switched_net), node(sw.anchor_net)) {
-        (Some(hi), Some(lo)) if sw.side == Side::Low => format!(
-            "turn {clamp} round: cathode to {hi} (the drain), anode to {lo}"
-        ),
+        (Some(hi), Some(lo)) if sw.side == Side::Low => {
+            format!("turn {clamp} round: cathode to {hi} (the drain), anode to {lo}")
+        }
         _ => format!(
             "turn {clamp} round so that it blocks while {switch} is off and breaks down only \
              above the rail"

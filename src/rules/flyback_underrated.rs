@@ -139,7 +139,10 @@ impl Diode<'_, '_> {
             let d = 0.5f64.clamp(duty.min, duty.max);
             (
                 (1.0 - d) * d * i_on,
-                format!("(1 − D)·D·I at D = {}, the current smoothed by L/R", percent(d)),
+                format!(
+                    "(1 − D)·D·I at D = {}, the current smoothed by L/R",
+                    percent(d)
+                ),
             )
         } else {
             let d = duty.min;
