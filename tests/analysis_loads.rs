@@ -3,8 +3,6 @@
 mod analysis_support;
 
 use analysis_support::{assert_close, Board};
-use kickback::analysis::states::Context;
-use kickback::analysis::{switching, Range, TimerFacts, TimerMode};
 use kickback::circuit::Kind;
 
 /// A motor (10 Ω) on a low-side switch driven hard at 25 % duty and the given period.
@@ -131,9 +129,14 @@ fn three_volt_motor_on_pulsed_6_and_9_volts() {
 
 #[test]
 fn duty_and_frequency_come_from_the_driving_timer() {
+    // A 555 astable: RA 1 kΩ, RB 10 kΩ, C 10 nF (about 6.9 kHz at about 52 %).
     let mut b = Board::new();
     b.dc("V12", "v12", "0", 12.0);
-    let u = b.timer("XU1", ["0", "tr", "out", "v12", "ctl", "tr", "dis", "v12"]);
+    let u = b.timer("XU1", ["0", "tc", "out", "v12", "ctl", "tc", "dis", "v12"]);
+    b.r("RA", "v12", "dis", 1e3);
+    b.r("RB", "dis", "tc", 10e3);
+    b.c("CT", "tc", "0", 10e-9);
+    b.c("CC", "ctl", "0", 10e-9);
     b.r("RG", "out", "g", 47.0);
     b.nmos("M1", "d", "g", "0", 2.0, 2.0);
     b.load(
@@ -144,42 +147,37 @@ fn duty_and_frequency_come_from_the_driving_timer() {
         &[("resistance", 10.0), ("inductance", 1e-3)],
     );
     b.diode("D1", Kind::Diode, "d", "v12");
-    let mut duty = Range::point(0.2, "XRV1 wiper at 0 %");
-    duty.include(0.9, "XRV1 wiper at 100 %");
-    let freq = Range::point(25e3, "the steady state");
-    let timer = TimerFacts {
-        device: u,
-        mode: TimerMode::Astable,
-        supply_v: None,
-        high_s: None,
-        low_s: None,
-        period_s: None,
-        frequency_hz: Some(freq),
-        duty: Some(duty),
-        discharge_current_a: None,
-        discharge_chain: Vec::new(),
-        discharge_dump: None,
-        timing_capacitor: None,
-        pots: Vec::new(),
-        stuck: None,
-        trigger: None,
-        divided_frequency_hz: None,
-        divided_duty: None,
-        output_current_a: None,
-    };
-    let cx = Context::new(&b.netlist, &b.circuit, &b.config);
-    let (switches, loads, _) = switching::analyze(&cx, &[timer]);
-    let sw = &switches[0];
-    let d = sw.duty.as_ref().expect("duty");
-    assert_eq!((d.min, d.max), (0.2, 0.9));
-    assert_eq!(d.max_state, "XRV1 wiper at 100 %");
-    // τ = 1 mH / 10 Ω = 100 µs; T = 40 µs > τ/3: RMS over 20…90 %.
-    let load = &loads[0];
+    let (a, _) = b.analyze();
+    let timer = a
+        .timers
+        .iter()
+        .find(|t| t.device == u)
+        .expect("timer facts");
+    let sw = &a.switches[0];
+    assert_eq!(sw.driver.as_ref().map(|d| d.device), Some(u));
+    // The switch conducts while the output is high: its duty is the timer's.
+    assert_eq!(sw.duty, timer.duty);
+    assert_eq!(sw.frequency_hz, timer.frequency_hz);
+    let duty = sw.duty.as_ref().expect("timer duty");
+    let f = sw.frequency_hz.as_ref().expect("timer frequency");
+    // τ = 1 mH / 10 Ω = 100 µs; T ≈ 145 µs is not below τ/3: RMS over the duty range.
+    let load = &a.loads[0];
+    assert!(1.0 / f.min > 1e-4 / 3.0);
     assert!(!load.effective_is_average);
     let peak = load.peak_v.as_ref().expect("peak");
     let eff = load.effective_v.as_ref().expect("eff");
-    assert_close(eff.min, peak.min * 0.2f64.sqrt(), 1e-9, "RMS at 20 %");
-    assert_close(eff.max, peak.max * 0.9f64.sqrt(), 1e-9, "RMS at 90 %");
-    // The 555's output high, 12 − 1.7 V, on the gate.
+    assert_close(
+        eff.min,
+        peak.min * duty.min.sqrt(),
+        1e-9,
+        "RMS at the lowest duty",
+    );
+    assert_close(
+        eff.max,
+        peak.max * duty.max.sqrt(),
+        1e-9,
+        "RMS at the highest duty",
+    );
+    // The 555's output high, 12 − 1.7 V, on the gate (no gate current at DC).
     assert_close(sw.vgs_on_v.as_ref().expect("vgs").min, 10.3, 1e-6, "gate");
 }

@@ -433,7 +433,6 @@ fn completions_for_each_shell() {
 // ---- with findings from the pipeline ---------------------------------------------------------
 
 #[test]
-#[ignore = "needs the parser"]
 fn error_finding_exits_1_in_every_format() {
     let broken = testdata("syntax-error.cir");
     kickback().arg("check").arg(&broken).assert().code(1);
@@ -449,7 +448,6 @@ fn error_finding_exits_1_in_every_format() {
 }
 
 #[test]
-#[ignore = "needs the parser"]
 fn human_output_of_a_finding_through_the_program() {
     let dir = tempfile::tempdir().expect("tempdir");
     fs::copy(testdata("syntax-error.cir"), dir.path().join("valve.cir")).expect("copy");

@@ -92,6 +92,9 @@ pub struct StuckPhase {
     /// would reach the threshold), with the resistance it flows through.
     pub bias_a: Option<f64>,
     pub bias_ohms: Option<f64>,
+    /// The discharge pin runs at its own current limit: the supply reaches DIS through almost
+    /// nothing, so the pin cannot pull the capacitor down.
+    pub discharge_limited: bool,
     /// The state in which it was found (`V1 at min, RV1 wiper at 100 %`).
     pub state: String,
 }
@@ -127,6 +130,8 @@ pub struct TimerFacts {
     /// Peak current of a capacitor dumped into the discharge pin through a diode with no
     /// series resistor, and the diode.
     pub discharge_dump: Option<(DeviceId, f64)>,
+    /// The state in which that peak is largest (`RV1 wiper at 100 %`).
+    pub discharge_dump_state: Option<String>,
     pub timing_capacitor: Option<DeviceId>,
     pub pots: Vec<DeviceId>,
     pub stuck: Option<StuckPhase>,

@@ -389,7 +389,15 @@ impl Built {
     }
 
     pub fn solve(self, options: &SolveOptions) -> Result<Solved, DcError> {
-        let op = dc::solve(&self.network, options)?;
+        let mut network = self.network;
+        if network.node_count() <= 1 {
+            // Nothing to solve (a capacitor straight across two rails stamps nothing), but the
+            // engine wants at least one unknown: a grounded node of its own changes nothing.
+            let spare = network.add_node("(no free net)");
+            let ground = network.ground();
+            network.add_resistor(spare, ground, 1.0);
+        }
+        let op = dc::solve(&network, options)?;
         Ok(Solved {
             op,
             nodes: self.nodes,

@@ -100,9 +100,10 @@ fn report(
         "is driven by nothing".to_string()
     };
     let effect = if mos {
-        "its charge drifts and the switch can sit half-on, dissipating in its linear region"
+        "the gate can float: its charge drifts and the switch can sit half-on, dissipating in \
+         its linear region"
     } else {
-        "leakage can bias it partly on"
+        "the base can float: leakage can bias the transistor partly on"
     };
     let g = net_name(cx, gate);
     let s = net_name(cx, source);
@@ -117,7 +118,7 @@ fn report(
         element,
         format!(
             "the {gate_word} of {} (net `{g}`) {why}, and no resistor ties it to its \
-             {source_word} (net `{s}`): when the drive lets go the {gate_word} floats and {effect}",
+             {source_word} (net `{s}`), so {effect}",
             element.path
         ),
     )

@@ -124,11 +124,9 @@ impl Once {
 /// A net name that says "no connection" on purpose (`NC`, `nc_3`, `unconnected-(U1-Pad3)`).
 pub fn is_no_connect_name(name: &str) -> bool {
     let local = name.rsplit('.').next().unwrap_or(name).to_ascii_lowercase();
-    let nc_prefix = local.strip_prefix("nc").is_some_and(|rest| {
-        rest.chars()
-            .next()
-            .map_or(true, |c| !c.is_ascii_alphabetic())
-    });
+    let nc_prefix = local
+        .strip_prefix("nc")
+        .is_some_and(|rest| rest.chars().next().is_none_or(|c| !c.is_ascii_alphabetic()));
     nc_prefix
         || local == "n/c"
         || local.contains("unconnected")
@@ -457,8 +455,8 @@ pub fn monostable_width(r: f64, c: f64) -> Option<f64> {
     (t.is_finite() && t > 0.0).then_some(t)
 }
 
-/// The pin's name for messages: the port name of a kept subcircuit when it has one, else the
-/// role, with its position (`TRIG (port 2)`).
+/// The pin's name for messages: its role (`TRIG`, `gate`), or the port name of a kept
+/// subcircuit when the role is unknown.
 pub fn pin_label(element: &FlatElement, device: &Device, pin_index: usize) -> String {
     let role = device
         .pins
@@ -469,12 +467,18 @@ pub fn pin_label(element: &FlatElement, device: &Device, pin_index: usize) -> St
         .as_ref()
         .and_then(|s| s.ports.get(pin_index))
         .cloned();
-    let name = match (role, port) {
+    match (role, port) {
         (PinRole::Other, Some(port)) => port,
         (PinRole::Other, None) => "pin".to_string(),
+        (PinRole::Gate, _) => "gate".to_string(),
+        (PinRole::Drain, _) => "drain".to_string(),
+        (PinRole::Source, _) => "source".to_string(),
+        (PinRole::Bulk, _) => "body".to_string(),
+        (PinRole::Collector, _) => "collector".to_string(),
+        (PinRole::Base, _) => "base".to_string(),
+        (PinRole::Emitter, _) => "emitter".to_string(),
         (role, _) => role.as_str().to_ascii_uppercase(),
-    };
-    format!("{name} (node {})", pin_index + 1)
+    }
 }
 
 /// A hand-built netlist and circuit for the rules' unit tests, independent of the parser.

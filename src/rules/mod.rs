@@ -367,4 +367,5 @@ pub mod eseries;
 pub mod hygiene_util;
 pub mod suppress;
 pub mod switch_util;
+pub mod timer_util;
 pub mod units;

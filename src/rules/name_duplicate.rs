@@ -27,7 +27,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         let Some(earlier) = elements.get(first) else {
             continue;
         };
-        let (here, there, name) = clashing_lines(earlier, element);
+        let (here, there, name, first_name) = clashing_lines(earlier, element);
         if !once.first(
             here,
             format!("{}:{}", there.start, name.to_ascii_lowercase()),
@@ -52,7 +52,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
                  rejects the deck or keeps only one of them, and the other's connections are lost"
             ),
         )
-        .with_label(there, format!("`{name}` is first defined here"))
+        .with_label(there, format!("`{first_name}` is first defined here"))
         .with_help(format!("rename this one, e.g. to `{free}`"));
         if here == element.span {
             finding = finding.with_element(element.name.clone(), element.instance_path());
@@ -64,22 +64,34 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 
 /// The two lines that clash and the name they share: the element lines themselves when both
 /// sit in the same instance chain, else the first pair of instance lines that differ.
-fn clashing_lines(earlier: &FlatElement, later: &FlatElement) -> (Span, Span, String) {
+fn clashing_lines(earlier: &FlatElement, later: &FlatElement) -> (Span, Span, String, String) {
     let depth = earlier.instances.len().min(later.instances.len());
     for level in 0..depth {
         let (Some(a), Some(b)) = (earlier.instances.get(level), later.instances.get(level)) else {
             break;
         };
         if a.span != b.span {
-            return (b.span, a.span, b.name.clone());
+            return (b.span, a.span, b.name.clone(), a.name.clone());
         }
     }
-    (later.span, earlier.span, later.name.clone())
+    (
+        later.span,
+        earlier.span,
+        later.name.clone(),
+        earlier.name.clone(),
+    )
 }
 
-/// `R1` → `R1A`, `R1B`... the first that no element in the same scope uses.
+/// `R1` → `R1A`, `R1B`... (`rg` → `rga`) the first that no element in the same scope uses.
 fn free_name(name: &str, scope: &str, taken: &HashSet<String>) -> String {
+    let lower = name.chars().any(|c| c.is_ascii_lowercase())
+        && !name.chars().any(|c| c.is_ascii_uppercase());
     for suffix in 'A'..='Z' {
+        let suffix = if lower {
+            suffix.to_ascii_lowercase()
+        } else {
+            suffix
+        };
         let candidate = format!("{name}{suffix}");
         if !taken.contains(&format!("{scope}{candidate}").to_ascii_lowercase()) {
             return candidate;
@@ -105,7 +117,7 @@ mod tests {
         assert_eq!(found.len(), 1);
         assert_eq!(found[0].span, d.netlist.elements[2].span);
         assert_eq!(found[0].labels[0].span, d.netlist.elements[0].span);
-        assert!(found[0].help.as_deref().unwrap_or("").contains("`r1B`"));
+        assert!(found[0].help.as_deref().unwrap_or("").contains("`r1b`"));
     }
 
     #[test]

@@ -12,6 +12,7 @@ use super::hygiene_util::{NetIndex, Once};
 use super::RuleContext;
 use crate::circuit::NetId;
 use crate::diagnostic::{Finding, Severity};
+use crate::source::Span;
 use std::collections::{HashMap, HashSet};
 
 const RULE: &str = "net-dangling";
@@ -58,6 +59,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let candidates = candidates(cx, &index, &dangling);
     let mut budget = COMPARISON_BUDGET;
     let mut once = Once::default();
+    let repeats = repeats(cx, &dangling);
     for d in &dangling {
         let Some(device) = cx.circuit.devices.get(d.device) else {
             continue;
@@ -73,12 +75,21 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         let near = candidates
             .get(&d.scope)
             .and_then(|list| closest(cx, &index, local, &d.scope, list, &mut budget));
+        let others = repeats
+            .get(&(element.span, local.to_ascii_lowercase()))
+            .map_or(0, |n| n.saturating_sub(1));
+        let elsewhere = match others {
+            0 => String::new(),
+            1 => " (and in 1 other instance)".to_string(),
+            n => format!(" (and in {n} other instances)"),
+        };
         let mut finding = finding_at(
             RULE,
             Severity::Warning,
             element,
             format!(
-                "net `{name}` has a single connection ({} node {}): nothing else is wired to it",
+                "net `{name}`{elsewhere} has a single connection ({} node {}): nothing else is \
+                 wired to it",
                 element.path,
                 d.pin + 1
             ),
@@ -100,6 +111,24 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         };
         out.push(finding);
     }
+}
+
+/// How many instances share each dangling definition line and net.
+fn repeats(cx: &RuleContext<'_>, dangling: &[Dangling]) -> HashMap<(Span, String), usize> {
+    let mut counts = HashMap::new();
+    for d in dangling {
+        let Some(element) = cx
+            .circuit
+            .devices
+            .get(d.device)
+            .and_then(|x| cx.netlist.elements.get(x.element))
+        else {
+            continue;
+        };
+        let local = strip_scope(net_name(cx, d.net), &d.scope).to_ascii_lowercase();
+        *counts.entry((element.span, local)).or_insert(0) += 1;
+    }
+    counts
 }
 
 fn scope_of(path: &str, name: &str) -> String {
@@ -176,7 +205,7 @@ fn closest(
             continue;
         }
         let key = (distance, std::cmp::Reverse(index.degree(net)), other, net);
-        if best.as_ref().map_or(true, |b| key < *b) {
+        if best.as_ref().is_none_or(|b| key < *b) {
             best = Some(key);
         }
     }

@@ -46,23 +46,28 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             .iter()
             .map(|&i| {
                 let net = device.pins.get(i).map_or("?", |p| net_name(cx, p.net));
-                format!("{} on net `{net}`", pin_label(element, device, i))
+                format!(
+                    "{} (node {}, net `{net}`)",
+                    pin_label(element, device, i),
+                    i + 1
+                )
             })
             .collect();
-        let what = if pins.len() == 1 {
-            format!("pin {} of {}", pins.join(""), element.path)
+        let message = if pins.len() == 1 {
+            format!(
+                "{}'s {} is alone on its net: {}",
+                element.path,
+                pins.join(""),
+                consequence(device.kind, role)
+            )
         } else {
-            format!("pins {} of {}", pins.join(", "), element.path)
+            format!(
+                "{}'s {} are each alone on their nets: {}",
+                element.path,
+                pins.join(", "),
+                consequence(device.kind, role)
+            )
         };
-        let message = format!(
-            "{what} {} nothing else: {}",
-            if pins.len() == 1 {
-                "connects to"
-            } else {
-                "connect to"
-            },
-            consequence(device.kind, role)
-        );
         out.push(
             finding_at(RULE, Severity::Warning, element, message)
                 .with_value(
@@ -127,6 +132,8 @@ mod tests {
         d.c("CT", "thr", "0", 1e-9);
         let found = d.run(check);
         assert_eq!(found.len(), 1, "{found:?}");
-        assert!(found[0].message.contains("TRIG (node 2) on net `trg`"));
+        assert!(found[0]
+            .message
+            .contains("XU1's TRIG (node 2, net `trg`) is alone"));
     }
 }

@@ -117,7 +117,7 @@ fn across_short(
     let path = zero_path(links, pos, neg);
     let message = if pos == neg {
         format!(
-            "{} ({volts}) has both terminals on net `{}`: the source is shorted",
+            "{} ({volts}) has both terminals on net `{}`, so the source is shorted",
             element.path,
             net_name(cx, pos)
         )
@@ -157,6 +157,12 @@ fn across_short(
         }
     }
     let _ = device;
+    if pos == neg {
+        return finding.with_help(
+            "a node name on this line is probably mistyped: connect each terminal to the net it \
+             belongs on",
+        );
+    }
     finding.with_help(
         "a 0 Ω resistor or an ideal inductor straight across a source is a dead short: give \
          the path its real resistance (a motor's winding resistance, the inductor's Rser=) or \
@@ -212,7 +218,7 @@ fn fighting(
     };
     let both_dc = [sa, sb]
         .iter()
-        .all(|s| s.map_or(true, |s| s.wave == Waveform::Dc));
+        .all(|s| s.is_none_or(|s| s.wave == Waveform::Dc));
     let (va, vb) = (dc(sa, a), dc(sb, b));
     if both_dc {
         let (va, vb) = (va? * first_sign, vb? * later_sign);

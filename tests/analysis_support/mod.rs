@@ -1,65 +1,29 @@
-//! Hand-built boards for analysis tests: a flattened netlist and its circuit graph, written
-//! the way the front end and part knowledge would produce them, without parsing text.
+//! Hand-built boards for analysis tests: flattened netlists written the way the front end
+//! produces them (element letters, model cards, kept subcircuits, instance parameters), turned
+//! into a circuit by the real part knowledge (`Circuit::build`).
 #![allow(dead_code)]
 
 use kickback::analysis::{self, Analysis};
-use kickback::circuit::{Circuit, Device, DeviceId, Kind, Net, NetId, PartData, Pin, PinRole};
+use kickback::circuit::{Circuit, DeviceId, Kind};
 use kickback::config::{Config, SupplyConfig};
 use kickback::diagnostic::Finding;
-use kickback::netlist::{FlatElement, FlatNetlist, Num, SourceSpec, Waveform};
-use kickback::source::Span;
+use kickback::netlist::{FlatElement, FlatNetlist, KeptSubckt, Model, Num, SourceSpec, Waveform};
+use kickback::source::{FileId, Span};
 
 #[derive(Default)]
 pub struct Board {
     pub netlist: FlatNetlist,
-    pub circuit: Circuit,
     pub config: Config,
 }
 
 impl Board {
     pub fn new() -> Board {
-        let mut b = Board::default();
-        b.circuit.nets.push(Net {
-            name: "0".into(),
-            is_ground: true,
-        });
-        b
+        Board::default()
     }
 
-    pub fn net(&mut self, name: &str) -> NetId {
-        if name == "0" {
-            return 0;
-        }
-        if let Some(i) = self
-            .circuit
-            .nets
-            .iter()
-            .position(|n| n.name.eq_ignore_ascii_case(name))
-        {
-            return i;
-        }
-        self.circuit.nets.push(Net {
-            name: name.into(),
-            is_ground: false,
-        });
-        self.circuit.nets.len() - 1
-    }
-
-    pub fn element(
-        &mut self,
-        name: &str,
-        nodes: &[&str],
-        kind: Kind,
-        roles: &[PinRole],
-    ) -> DeviceId {
-        let pins = nodes
-            .iter()
-            .zip(roles)
-            .map(|(n, &role)| Pin {
-                role,
-                net: self.net(n),
-            })
-            .collect();
+    /// Adds an element; its device id is its position (one device per element).
+    fn element(&mut self, name: &str, nodes: &[&str]) -> DeviceId {
+        let line = self.netlist.elements.len();
         self.netlist.elements.push(FlatElement {
             path: name.into(),
             name: name.into(),
@@ -73,74 +37,80 @@ impl Board {
             source: None,
             refs: Vec::new(),
             subckt: None,
-            span: Span::default(),
+            // One line of 40 bytes per element, so that spans tell elements apart.
+            span: Span::new(FileId(0), line * 40, line * 40 + 30),
             instances: Vec::new(),
         });
-        self.circuit.devices.push(Device {
-            element: self.netlist.elements.len() - 1,
-            kind,
-            pins,
-            data: PartData::default(),
-        });
-        self.circuit.devices.len() - 1
-    }
-
-    /// Sets a part-data number with a provenance naming the test.
-    pub fn set(&mut self, device: DeviceId, key: &str, value: f64) -> &mut Self {
-        self.circuit.devices[device]
-            .data
-            .set_if_absent(key, value, format!("test value {key}"));
-        self
+        line
     }
 
     fn value(&mut self, device: DeviceId, value: f64) {
-        let e = self.circuit.devices[device].element;
-        self.netlist.elements[e].value = Some(Num::Known(value));
+        self.netlist.elements[device].value = Some(Num::Known(value));
+        self.netlist.elements[device].value_text = Some(value.to_string());
+    }
+
+    /// An instance parameter (`rated_voltage=3`), as the netlist would carry it.
+    pub fn param(&mut self, device: DeviceId, key: &str, value: f64) -> &mut Self {
+        self.netlist.elements[device]
+            .params
+            .push((key.to_ascii_lowercase(), Num::Known(value)));
+        self
+    }
+
+    fn model(&mut self, device: DeviceId, name: &str, kind: &str, params: &[(&str, f64)]) {
+        self.netlist.models.push(Model {
+            name: name.into(),
+            kind: kind.into(),
+            params: params
+                .iter()
+                .map(|(k, v)| (k.to_ascii_lowercase(), Num::Known(*v)))
+                .collect(),
+            span: Span::default(),
+        });
+        let e = &mut self.netlist.elements[device];
+        e.model = Some(name.into());
+        e.model_index = Some(self.netlist.models.len() - 1);
+    }
+
+    fn kept(&mut self, device: DeviceId, subckt: &str) {
+        let e = &mut self.netlist.elements[device];
+        e.model = Some(subckt.into());
+        e.subckt = Some(KeptSubckt {
+            name: subckt.into(),
+            ports: Vec::new(),
+            definition: None,
+        });
     }
 
     pub fn id(&self, name: &str) -> DeviceId {
-        self.circuit
-            .devices
+        self.netlist
+            .elements
             .iter()
-            .position(|d| self.netlist.elements[d.element].path == name)
-            .unwrap_or_else(|| panic!("no device {name}"))
+            .position(|e| e.path == name)
+            .unwrap_or_else(|| panic!("no element {name}"))
     }
 
     pub fn r(&mut self, name: &str, a: &str, b: &str, ohms: f64) -> DeviceId {
-        let d = self.element(name, &[a, b], Kind::Resistor, &[PinRole::Pos, PinRole::Neg]);
+        let d = self.element(name, &[a, b]);
         self.value(d, ohms);
-        self.set(d, "resistance", ohms);
         d
     }
 
     pub fn c(&mut self, name: &str, a: &str, b: &str, farads: f64) -> DeviceId {
-        let d = self.element(
-            name,
-            &[a, b],
-            Kind::Capacitor,
-            &[PinRole::Pos, PinRole::Neg],
-        );
+        let d = self.element(name, &[a, b]);
         self.value(d, farads);
-        self.set(d, "capacitance", farads);
         d
     }
 
     pub fn l(&mut self, name: &str, a: &str, b: &str, henries: f64) -> DeviceId {
-        let d = self.element(name, &[a, b], Kind::Inductor, &[PinRole::Pos, PinRole::Neg]);
+        let d = self.element(name, &[a, b]);
         self.value(d, henries);
-        self.set(d, "inductance", henries);
         d
     }
 
     pub fn dc(&mut self, name: &str, p: &str, n: &str, volts: f64) -> DeviceId {
-        let d = self.element(
-            name,
-            &[p, n],
-            Kind::VoltageSource,
-            &[PinRole::Pos, PinRole::Neg],
-        );
-        let e = self.circuit.devices[d].element;
-        self.netlist.elements[e].source = Some(SourceSpec {
+        let d = self.element(name, &[p, n]);
+        self.netlist.elements[d].source = Some(SourceSpec {
             dc: Some(volts),
             wave: Waveform::Dc,
         });
@@ -148,6 +118,7 @@ impl Board {
     }
 
     /// A PULSE source with 1 ns edges.
+    #[allow(clippy::too_many_arguments)]
     pub fn pulse(
         &mut self,
         name: &str,
@@ -158,14 +129,8 @@ impl Board {
         width: f64,
         period: f64,
     ) -> DeviceId {
-        let d = self.element(
-            name,
-            &[p, n],
-            Kind::VoltageSource,
-            &[PinRole::Pos, PinRole::Neg],
-        );
-        let e = self.circuit.devices[d].element;
-        self.netlist.elements[e].source = Some(SourceSpec {
+        let d = self.element(name, &[p, n]);
+        self.netlist.elements[d].source = Some(SourceSpec {
             dc: Some(v1),
             wave: Waveform::Pulse {
                 v1,
@@ -180,7 +145,7 @@ impl Board {
         d
     }
 
-    /// Supply corners as `[supply.NAME]` would give them.
+    /// Supply corners as `[supply.NAME]` gives them.
     pub fn corners(&mut self, name: &str, min: f64, max: f64) {
         self.config.supplies.insert(
             name.into(),
@@ -192,53 +157,40 @@ impl Board {
         );
     }
 
+    /// An N-channel MOSFET with its own `.model NMOS (VTO KP)`; W = L = 1.
     pub fn nmos(&mut self, name: &str, d: &str, g: &str, s: &str, vto: f64, kp: f64) -> DeviceId {
-        let m = self.element(
-            name,
-            &[d, g, s, s],
-            Kind::Nmos,
-            &[
-                PinRole::Drain,
-                PinRole::Gate,
-                PinRole::Source,
-                PinRole::Bulk,
-            ],
-        );
-        self.set(m, "vto", vto).set(m, "kp", kp);
+        let m = self.element(name, &[d, g, s, s]);
+        self.model(m, &format!("N_{name}"), "NMOS", &[("vto", vto), ("kp", kp)]);
         m
     }
 
+    /// A P-channel MOSFET; `vto` as the model card writes it (negative).
     pub fn pmos(&mut self, name: &str, d: &str, g: &str, s: &str, vto: f64, kp: f64) -> DeviceId {
-        let m = self.element(
-            name,
-            &[d, g, s, s],
-            Kind::Pmos,
-            &[
-                PinRole::Drain,
-                PinRole::Gate,
-                PinRole::Source,
-                PinRole::Bulk,
-            ],
-        );
-        self.set(m, "vto", vto).set(m, "kp", kp);
+        let m = self.element(name, &[d, g, s, s]);
+        self.model(m, &format!("P_{name}"), "PMOS", &[("vto", vto), ("kp", kp)]);
         m
     }
 
     pub fn npn(&mut self, name: &str, c: &str, b: &str, e: &str, bf: f64) -> DeviceId {
-        let q = self.element(
-            name,
-            &[c, b, e],
-            Kind::Npn,
-            &[PinRole::Collector, PinRole::Base, PinRole::Emitter],
-        );
-        self.set(q, "bf", bf).set(q, "is", 1e-14);
+        let q = self.element(name, &[c, b, e]);
+        self.model(q, &format!("Q_{name}"), "NPN", &[("bf", bf), ("is", 1e-14)]);
         q
     }
 
+    /// A diode whose model name says its kind (`DSCHOTTKY`, `DZENER`, `DTVS`).
     pub fn diode(&mut self, name: &str, kind: Kind, a: &str, k: &str) -> DeviceId {
-        self.element(name, &[a, k], kind, &[PinRole::Anode, PinRole::Cathode])
+        let d = self.element(name, &[a, k]);
+        let model = match kind {
+            Kind::Schottky => "DSCHOTTKY",
+            Kind::Zener => "DZENER",
+            Kind::Tvs => "DTVS",
+            _ => "DGEN",
+        };
+        self.model(d, &format!("{model}_{name}"), "D", &[]);
+        d
     }
 
+    /// A load part as a kept subcircuit whose name says its kind, ratings as parameters.
     pub fn load(
         &mut self,
         name: &str,
@@ -247,39 +199,41 @@ impl Board {
         neg: &str,
         data: &[(&str, f64)],
     ) -> DeviceId {
-        let d = self.element(name, &[pos, neg], kind, &[PinRole::Pos, PinRole::Neg]);
+        let d = self.element(name, &[pos, neg]);
+        let subckt = match kind {
+            Kind::RelayCoil => "RELAY",
+            Kind::Solenoid => "SOLENOID",
+            _ => "MOTOR",
+        };
+        self.kept(d, subckt);
         for (k, v) in data {
-            self.set(d, k, *v);
+            self.param(d, k, *v);
         }
         d
     }
 
     pub fn pot(&mut self, name: &str, a: &str, w: &str, b: &str, ohms: f64) -> DeviceId {
-        let d = self.element(
-            name,
-            &[a, w, b],
-            Kind::Potentiometer,
-            &[PinRole::A, PinRole::Wiper, PinRole::B],
-        );
-        self.set(d, "resistance", ohms);
+        let d = self.element(name, &[a, w, b]);
+        self.kept(d, "POT");
+        self.param(d, "r", ohms);
         d
     }
 
-    /// A bipolar 555 with its pins in DIP-8 order: gnd trig out reset ctrl thr dis vcc.
+    /// A bipolar 555 with its ports in DIP-8 order: gnd trig out reset ctrl thr dis vcc.
     pub fn timer(&mut self, name: &str, pins: [&str; 8]) -> DeviceId {
-        use PinRole::*;
-        let t = self.element(
-            name,
-            &pins,
-            Kind::Timer555,
-            &[Gnd, Trig, Out, Reset, Ctrl, Thr, Dis, Vcc],
-        );
-        self.set(t, "out_high_drop", 1.7);
+        let t = self.element(name, &pins);
+        self.kept(t, "NE555");
         t
     }
 
+    pub fn circuit(&self) -> Circuit {
+        let (circuit, findings) = Circuit::build(&self.netlist, &self.config);
+        assert!(findings.is_empty(), "circuit findings: {findings:?}");
+        circuit
+    }
+
     pub fn analyze(&self) -> (Analysis, Vec<Finding>) {
-        analysis::analyze(&self.netlist, &self.circuit, &self.config)
+        analysis::analyze(&self.netlist, &self.circuit(), &self.config)
     }
 }
 

@@ -338,7 +338,7 @@ pub fn input_timing(
             .get(input)
             .and_then(|d| cx.netlist.elements.get(d.element))
             .and_then(|e| e.source.as_ref());
-        let from = format!("PULSE of {name}");
+        let from = format!("the PULSE of {name}");
         let duty = spec
             .and_then(|s| s.duty())
             .map(|d| Range::point(d, from.clone()));
@@ -383,13 +383,19 @@ pub fn times_duty(range: &Range, duty: &Range) -> Range {
     Range {
         min: range.min * duty.min,
         max: range.max * duty.max,
-        min_state: format!(
-            "{}; at the lowest duty ({})",
-            range.min_state, duty.min_state
-        ),
-        max_state: format!(
-            "{}; at the highest duty ({})",
-            range.max_state, duty.max_state
-        ),
+        min_state: with_duty(&range.min_state, duty, false),
+        max_state: with_duty(&range.max_state, duty, true),
+    }
+}
+
+/// A state label with the duty extreme it was taken at, when the duty varies.
+pub fn with_duty(state: &str, duty: &Range, highest: bool) -> String {
+    if duty.min == duty.max {
+        return state.to_string();
+    }
+    if highest {
+        format!("{state}; at the highest duty ({})", duty.max_state)
+    } else {
+        format!("{state}; at the lowest duty ({})", duty.min_state)
     }
 }

@@ -8,7 +8,7 @@
 //! Whether each is fitted the right way round is decided later from the solved on state
 //! (see [`super::drive`]).
 
-use super::drive::OnOff;
+use super::drive::{with_duty, OnOff};
 use super::nets::{self, NetMap};
 use super::solves::ComponentSolves;
 use super::topology::SwitchTopology;
@@ -175,8 +175,8 @@ pub fn orient(
                 (Some(i), Some(d)) if carries && c.kind != FreewheelKind::Clamp => Some(Range {
                     min: (1.0 - d.max).max(0.0) * i.min.abs(),
                     max: (1.0 - d.min).max(0.0) * i.max.abs(),
-                    min_state: format!("{}; at the highest duty ({})", i.min_state, d.max_state),
-                    max_state: format!("{}; at the lowest duty ({})", i.max_state, d.min_state),
+                    min_state: with_duty(&i.min_state, d, true),
+                    max_state: with_duty(&i.max_state, d, false),
                 }),
                 _ => None,
             };

@@ -111,8 +111,8 @@ fn scaled(v: &Range, d: &Range, f: impl Fn(f64) -> f64) -> Range {
     Range {
         min: v.min * f(lo),
         max: v.max * f(hi),
-        min_state: format!("{}; at the lowest duty ({})", v.min_state, d.min_state),
-        max_state: format!("{}; at the highest duty ({})", v.max_state, d.max_state),
+        min_state: super::drive::with_duty(&v.min_state, d, false),
+        max_state: super::drive::with_duty(&v.max_state, d, true),
     }
 }
 

@@ -85,6 +85,7 @@ fn empty_facts(setup: &Setup) -> TimerFacts {
         discharge_current_a: None,
         discharge_chain: Vec::new(),
         discharge_dump: None,
+        discharge_dump_state: None,
         timing_capacitor: setup.capacitors.first().copied(),
         pots: setup.pots.clone(),
         stuck: None,
@@ -116,6 +117,7 @@ fn timer_facts(
     facts.discharge_open_v = dis.open_v;
     facts.discharge_chain = dis.chain;
     facts.discharge_dump = dis.dump;
+    facts.discharge_dump_state = dis.dump_state;
     facts.output_current_a = output_current(cx, setup);
     if setup.mode == TimerMode::Unknown {
         return facts;
@@ -177,6 +179,7 @@ fn timer_facts(
             threshold_v: stuck.threshold_v,
             bias_a: stuck.bias_a,
             bias_ohms: stuck.bias_ohms,
+            discharge_limited: stuck.discharge_limited,
             state: describe(&p.state),
         })
     });

@@ -11,7 +11,7 @@ use crate::source::Span;
 use std::collections::BTreeMap;
 
 #[derive(Default)]
-pub(crate) struct Deck {
+struct Deck {
     pub netlist: FlatNetlist,
     pub circuit: Circuit,
     nets: BTreeMap<String, NetId>,
@@ -189,7 +189,7 @@ impl Deck {
 }
 
 /// An astable in the datasheet's form: RA from VCC to DIS, RB from DIS to the capacitor.
-pub(crate) fn astable(ra: f64, rb: f64, c: f64, vcc: f64) -> Deck {
+fn astable(ra: f64, rb: f64, c: f64, vcc: f64) -> Deck {
     let mut d = Deck::default();
     d.v("V1", "vcc", "0", vcc);
     d.timer("XU1", ["0", "tc", "out", "vcc", "ctl", "tc", "dis", "vcc"]);
@@ -365,13 +365,70 @@ fn timer_driving_a_one_shot_hands_over_its_low_time() {
 }
 
 #[test]
-fn print_facts() {
-    let mut d = astable(47e3, 4.7e3, 10e-9, 12.0);
-    d.d("D1", "tc", "dis");
-    for t in d.analyze() {
-        eprintln!("{t:#?}");
-    }
-    for t in rheostat_monostable(None).analyze() {
-        eprintln!("{t:#?}");
-    }
+fn steering_diodes_and_a_duty_pot_keep_the_period_and_move_the_duty() {
+    // The common PWM astable: the pot's wiper on DIS, its ends through two diodes to the
+    // capacitor. Charge through RA and the a-side, discharge through the b-side: the period
+    // hardly moves over the travel, the duty runs from near RA/(RA + R) to near 1 (common
+    // practice).
+    let mut d = Deck::default();
+    d.v("V1", "vcc", "0", 12.0);
+    d.timer("XU1", ["0", "tc", "out", "vcc", "ctl", "tc", "dis", "vcc"]);
+    d.r("RA", "vcc", "dis", 1e3);
+    d.pot("XRV1", "na", "dis", "nb", 100e3);
+    d.d("D1", "na", "tc");
+    d.d("D2", "tc", "nb");
+    d.c("C1", "tc", "0", 10e-9);
+    let t = &d.analyze()[0];
+    let duty = t.duty.as_ref().expect("duty");
+    assert!(duty.min < 0.1 && duty.max > 0.9, "duty {duty:?}");
+    assert_eq!(duty.min_state, "XRV1 wiper at 0 %");
+    let period = t.period_s.as_ref().expect("period");
+    assert!(period.max / period.min < 1.2, "period {period:?}");
+    // Diode drops lengthen both phases a little past 0.693·101 kΩ·10 nF (555 datasheet).
+    assert!(period.min > 0.693 * 101e3 * 10e-9, "period {period:?}");
+}
+
+#[test]
+fn fifty_percent_astable_charges_from_its_output() {
+    // THR and TRIG on the capacitor, charged and discharged from OUT through one resistor.
+    let mut d = Deck::default();
+    d.v("V1", "vcc", "0", 9.0);
+    d.timer("XU1", ["0", "tc", "out", "vcc", "ctl", "tc", "dis", "vcc"]);
+    d.r("R1", "out", "tc", 10e3);
+    d.c("C1", "tc", "0", 10e-9);
+    let t = &d.analyze()[0];
+    assert_eq!(t.mode, TimerMode::Astable);
+    assert!(t.stuck.is_none());
+    let high = t.high_s.as_ref().expect("high").min;
+    // Output high at 9 V − 1.7 V: R·C·ln((7.3 − 3)/(7.3 − 6)).
+    let expect = 10e3 * 10e-9 * ((7.3f64 - 3.0) / (7.3 - 6.0)).ln();
+    assert!(rel(high, expect) < 0.01, "{high} vs {expect}");
+}
+
+#[test]
+fn a_timer_with_no_timing_capacitor_is_unknown() {
+    let mut d = Deck::default();
+    d.v("V1", "vcc", "0", 9.0);
+    d.pulse("VT", "in", 0.0, 9.0, 1e-6, 1e-6, 1e-3, 2e-3);
+    d.timer("XU1", ["0", "in", "out", "vcc", "ctl", "in", "dis", "vcc"]);
+    let t = &d.analyze()[0];
+    assert_eq!(t.mode, TimerMode::Unknown);
+    assert!(t.high_s.is_none() && t.stuck.is_none());
+}
+
+#[test]
+fn a_rheostat_ra_at_zero_leaves_the_discharge_pin_unable_to_pull_down() {
+    // With RA a bare rheostat at its zero end, the discharge pin sits at its current limit and
+    // its net stays near the supply: the low phase never reaches the trigger threshold.
+    let mut d = Deck::default();
+    d.v("V1", "vcc", "0", 9.0);
+    d.timer("XU1", ["0", "tc", "out", "vcc", "ctl", "tc", "dis", "vcc"]);
+    d.pot("XRA", "vcc", "dis", "dis", 10e3);
+    d.r("RB", "dis", "tc", 10e3);
+    d.c("C1", "tc", "0", 10e-9);
+    let t = &d.analyze()[0];
+    let stuck = t.stuck.as_ref().expect("stuck");
+    assert_eq!(stuck.phase, "low");
+    assert!(stuck.reason.contains("discharge pin"), "{}", stuck.reason);
+    assert!(stuck.state.contains("wiper at 0 %"), "{}", stuck.state);
 }
