@@ -8,7 +8,7 @@
 
 use super::switch_util::{
     drive_level, finding_at, in_conduction_sense, kind, label, load_device, load_of, mos_gain,
-    name, rated_or, rds_at,
+    name, rated_or, rds_at, saturated_current,
 };
 use super::units::format_si;
 use super::RuleContext;
@@ -52,16 +52,19 @@ fn thresholds(cx: &RuleContext<'_>, sw: &SwitchFacts) -> (Rated, Rated) {
     (th, rated)
 }
 
-/// The current the switch must carry: the larger of what the DC engine finds through the switch
-/// and through its load.
+/// The current the switch must carry: the largest of what the DC engine finds through the
+/// switch and through its load, and what the load draws with the switch fully on.
 fn load_current(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<f64> {
     let through_switch = sw.current_a.as_ref().map(|r| r.max);
     let through_load = load_of(cx, sw)
         .and_then(|l| l.current_a.as_ref())
         .map(|r| r.max);
-    through_switch
+    // A starved switch limits its own current; the load wants what it draws with the switch
+    // fully on.
+    let full_on = saturated_current(cx, sw, 0.0);
+    [through_switch, through_load, full_on]
         .into_iter()
-        .chain(through_load)
+        .flatten()
         .reduce(f64::max)
         .filter(|i| *i > 0.0)
 }

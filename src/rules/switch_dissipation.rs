@@ -49,7 +49,7 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
         .as_ref()
         .map(|r| in_conduction_sense(r, k).weakest);
     let threshold = rated(cx, sw.device, "vgs_th_max").map(|r| r.value);
-    let rds = if k.is_mos() {
+    let rds = if k.is_mos() && !sw.linear_region && !sw.follower {
         sw.rds_on_ohm
             .as_ref()
             .map(|r| r.max)
@@ -72,9 +72,10 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
             format_si(v, "V")
         ));
     }
-    if k.is_bjt() {
+    if k.is_bjt() || rds.is_none() {
         if let Some(v) = sw.vds_on_v.as_ref() {
-            how.push(format!("V_CE = {}", format_si(v.max.abs(), "V")));
+            let which = if k.is_bjt() { "V_CE" } else { "V_DS" };
+            how.push(format!("{which} = {}", format_si(v.max.abs(), "V")));
         }
     }
     if let Some(d) = &sw.duty {

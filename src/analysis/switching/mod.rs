@@ -131,14 +131,14 @@ pub fn analyze(
         let Some(c) = component_of(device) else {
             continue;
         };
-        if !solved.contains_key(&c) {
+        if let std::collections::btree_map::Entry::Vacant(slot) = solved.entry(c) {
             let Some(component) = cx.partition.components.get(c) else {
                 continue;
             };
             let inputs = cx.inputs(component);
             if let Some(s) = solves::solve_component(cx, c, &inputs, &SWITCH_WIPER_GRID) {
                 findings.extend(solves::failure_finding(cx, &s, device));
-                solved.insert(c, s);
+                slot.insert(s);
             }
         }
         let Some(s) = solved.get(&c) else { continue };
