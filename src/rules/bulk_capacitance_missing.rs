@@ -83,7 +83,7 @@ fn finding(
         .or_else(|| switches.iter().find_map(|s| rail(cx, s)).map(|r| r.v.max))
         .filter(|v| *v > 0.0)?;
     let caps = rail_capacitors(cx, index, net);
-    let total: f64 = caps.iter().map(|(_, c)| c).sum();
+    let total = caps.iter().fold(0.0, |sum, (_, c)| sum + c);
     let rail_name = super::switch_util::net_name(cx, net);
     // Energy a full bridge hands back to the rail at turn-off: the largest ½·L·I² behind it.
     let returned = switches

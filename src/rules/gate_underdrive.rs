@@ -220,7 +220,31 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
         .as_ref()
         .map(|r| r.max)
         .or_else(|| gain.as_ref().and_then(|g| rds_at(g, vgs, th.value)));
-    let (severity, message) = if vgs < need {
+    let th_min = rated_or(
+        cx,
+        sw.device,
+        "vgs_th_min",
+        2.0,
+        "standard-threshold default (common practice)",
+    );
+    let (severity, message) = if vgs < th_min.value {
+        let load = load_device(cx, sw).map_or_else(|| "its load".to_string(), |l| name(cx, l));
+        (
+            Severity::Error,
+            format!(
+                "{s}'s gate gets only {}{from} ({state}): below its lowest threshold of {}, so \
+                 {s} never turns on and {load} never runs; it needs {} ({reason_short})",
+                format_si(vgs, "V"),
+                format_si(th_min.value, "V"),
+                format_si(need, "V"),
+                reason_short = if overdrive.is_some() {
+                    "vgs_th_max + √(2·I/k) + 1 V at the load's current"
+                } else {
+                    "halfway between vgs_th_max and vgs_rated"
+                }
+            ),
+        )
+    } else if vgs < need {
         let mut m = format!(
             "{s}'s gate gets only {}{from} ({state}): {reason}",
             format_si(vgs, "V")

@@ -144,10 +144,11 @@ pub fn in_conduction_sense(range: &Range, kind: Kind) -> Drive {
             strongest_state: range.max_state.clone(),
         }
     } else {
+        // 0 − x rather than −x, so a zero reads as 0, not −0.
         Drive {
-            weakest: -range.max,
+            weakest: 0.0 - range.max,
             weakest_state: range.max_state.clone(),
-            strongest: -range.min,
+            strongest: 0.0 - range.min,
             strongest_state: range.min_state.clone(),
         }
     }
