@@ -12,9 +12,7 @@ use kickback::rules::{
     load_overvoltage, pot_wiper_overcurrent, resistor_overpower, supply_out_of_range,
     switch_dissipation, switch_voltage_margin,
 };
-use motor_rules_kit::{
-    driver, freewheel, load, point, range, rated, supply, switch, timer, value, Kit,
-};
+use motor_rules_kit::{freewheel, load, point, range, rated, supply, switch, timer, value, Kit};
 
 use PinRole::*;
 
