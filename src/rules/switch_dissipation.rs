@@ -6,7 +6,7 @@
 
 use super::switch_util::{
     duty_text, finding_at, in_conduction_sense, kind, label, load_device, mos_gain, name, rated,
-    rated_or, rds_at,
+    rated_or, rds_at, shorted_through,
 };
 use super::units::format_si;
 use super::RuleContext;
@@ -24,6 +24,9 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 }
 
 fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
+    if shorted_through(cx, sw) {
+        return None;
+    }
     let loss = sw.dissipation_w.as_ref()?;
     let p = loss.max;
     let k = kind(cx, sw.device)?;
