@@ -1,11 +1,11 @@
 //! The pipeline for one file: netlist → circuit → analysis → rules, then severity overrides and
 //! suppressions. Renderers receive the result; nothing here prints.
 
-use crate::analysis;
+use crate::analysis::{self, Analysis};
 use crate::circuit::{parts, Circuit};
 use crate::config::{Config, ConfigError};
 use crate::diagnostic::Finding;
-use crate::netlist::{self, Limits, LoadError};
+use crate::netlist::{self, FlatNetlist, Limits, LoadError};
 use crate::rules::{self, RuleContext};
 use crate::source::SourceMap;
 use std::path::{Path, PathBuf};
@@ -70,6 +70,37 @@ pub fn validate_rule_ids(config: &Config) -> Result<(), ConfigError> {
         });
     }
     Ok(())
+}
+
+/// What `kickback report` shows for one netlist: the electrical facts and what they refer to.
+#[derive(Debug)]
+pub struct FileFacts {
+    pub sources: SourceMap,
+    pub netlist: FlatNetlist,
+    pub circuit: Circuit,
+    pub analysis: Analysis,
+    /// Findings from loading, building and analysing (before rules run and before
+    /// suppressions), for a renderer that wants to say why a fact is missing.
+    pub findings: Vec<Finding>,
+}
+
+/// Loads, builds and analyses one netlist without running the rules (`kickback report`).
+pub fn report_file(path: &Path, options: &CheckOptions) -> Result<FileFacts, CheckError> {
+    let config = load_config(path, options)?;
+    let mut sources = SourceMap::new();
+    let keep = |name: &str| parts::keeps_whole(name, &config);
+    let (netlist, mut findings) = netlist::load(path, &mut sources, &options.limits, &keep)?;
+    let (circuit, circuit_findings) = Circuit::build(&netlist, &config);
+    findings.extend(circuit_findings);
+    let (analysis, analysis_findings) = analysis::analyze(&netlist, &circuit, &config);
+    findings.extend(analysis_findings);
+    Ok(FileFacts {
+        sources,
+        netlist,
+        circuit,
+        analysis,
+        findings,
+    })
 }
 
 pub fn check_file(path: &Path, options: &CheckOptions) -> FileReport {

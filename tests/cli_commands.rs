@@ -320,24 +320,35 @@ fn same_input_same_bytes() {
 // ---- the other commands ----------------------------------------------------------------------
 
 #[test]
-fn report_is_not_available_yet() {
+fn report_prints_the_facts_in_both_formats() {
     kickback()
         .args(["report"])
         .arg(testdata("divider.cir"))
         .assert()
-        .code(2)
-        .stderr("report: not available yet\n");
-    kickback()
+        .code(0)
+        .stdout(predicate::str::contains("Supplies"));
+    let output = kickback()
         .args(["report", "--format", "json"])
         .arg(testdata("divider.cir"))
-        .assert()
-        .code(2);
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(0));
+    let json: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    assert_eq!(json["version"], 1);
+    for key in ["supplies", "timers", "switches", "loads"] {
+        assert!(json[key].is_array(), "{key} missing");
+    }
     kickback()
         .args(["report", "--format", "sarif"])
         .arg(testdata("divider.cir"))
         .assert()
         .code(2)
         .stderr(predicate::str::contains("human or --format json"));
+    kickback()
+        .args(["report", "no-such-board.cir"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("no-such-board.cir"));
     kickback().arg("report").assert().code(2);
 }
 
@@ -433,7 +444,6 @@ fn completions_for_each_shell() {
 // ---- with findings from the pipeline ---------------------------------------------------------
 
 #[test]
-#[ignore = "needs the parser"]
 fn error_finding_exits_1_in_every_format() {
     let broken = testdata("syntax-error.cir");
     kickback().arg("check").arg(&broken).assert().code(1);
@@ -449,7 +459,6 @@ fn error_finding_exits_1_in_every_format() {
 }
 
 #[test]
-#[ignore = "needs the parser"]
 fn human_output_of_a_finding_through_the_program() {
     let dir = tempfile::tempdir().expect("tempdir");
     fs::copy(testdata("syntax-error.cir"), dir.path().join("valve.cir")).expect("copy");

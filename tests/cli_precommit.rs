@@ -157,7 +157,6 @@ fn pre_commit_hook_lets_a_clean_netlist_through() {
 }
 
 #[test]
-#[ignore = "needs the parser"]
 fn pre_commit_hook_blocks_a_netlist_with_an_error() {
     let Some(framework) = pre_commit() else {
         println!("skipped: pre-commit is not installed (python3 -m pip install pre-commit)");

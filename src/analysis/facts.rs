@@ -2,7 +2,7 @@
 //! every range remembers the state that produced each extreme; every part number says where it
 //! came from.
 
-use crate::circuit::{DeviceId, Kind, Rated};
+use crate::circuit::{DeviceId, Kind, NetId, Rated};
 use serde::Serialize;
 
 /// A value over states and corners, with the state that gave each extreme
@@ -92,6 +92,9 @@ pub struct StuckPhase {
     /// would reach the threshold), with the resistance it flows through.
     pub bias_a: Option<f64>,
     pub bias_ohms: Option<f64>,
+    /// The discharge pin runs at its own current limit: the supply reaches DIS through almost
+    /// nothing, so the pin cannot pull the capacitor down.
+    pub discharge_limited: bool,
     /// The state in which it was found (`V1 at min, RV1 wiper at 100 %`).
     pub state: String,
 }
@@ -127,6 +130,8 @@ pub struct TimerFacts {
     /// Peak current of a capacitor dumped into the discharge pin through a diode with no
     /// series resistor, and the diode.
     pub discharge_dump: Option<(DeviceId, f64)>,
+    /// The state in which that peak is largest (`RV1 wiper at 100 %`).
+    pub discharge_dump_state: Option<String>,
     pub timing_capacitor: Option<DeviceId>,
     pub pots: Vec<DeviceId>,
     pub stuck: Option<StuckPhase>,
@@ -174,104 +179,227 @@ pub enum FreewheelKind {
     OppositeBodyDiode,
 }
 
+/// A freewheeling path of a switched branch (see `analysis::switching::freewheel`).
 #[derive(Clone, Debug, PartialEq)]
 pub struct Freewheel {
+    /// The diode, TVS or zener; for [`FreewheelKind::OppositeBodyDiode`] the opposite switch.
     pub device: DeviceId,
     pub kind: FreewheelKind,
-    /// True when the diode is fitted so that it conducts from the rail in the on state.
+    /// True when the diode is fitted so that it conducts from the rail in the on state (a
+    /// short through the switch). For a [`FreewheelKind::Clamp`]: it conducts forward in the
+    /// off state (it holds the load on instead of clamping).
     pub reversed: bool,
-    /// Current through it in the on state when reversed (the short).
+    /// Largest forward current through it in the on state when reversed (the short), from
+    /// the solved on state at every corner.
     pub on_state_current_a: Option<f64>,
+    /// Largest forward current through a reversed clamp in the off state.
+    pub off_state_current_a: Option<f64>,
+    /// Current it takes over at turn-off: the load's largest on-state current (`None` when
+    /// reversed, or when the load current is unknown).
+    pub peak_current_a: Option<f64>,
+    /// Average freewheel current `(1−D)·I` over the duty range (PWM loads; `None` for a
+    /// clamp, which only conducts in the turn-off transient, and when D or I is unknown).
+    pub avg_current_a: Option<Range>,
 }
 
 /// What drives a switch's gate or base.
 #[derive(Clone, Debug, PartialEq)]
 pub struct DriverFacts {
-    /// The source, timer or logic output at the far end of the gate network.
+    /// The source, timer or logic output at the far end of the gate network (a pulse source
+    /// holding the gate's net, or a timer's / logic output's `out` pin); failing that, a
+    /// transistor whose drain or collector pulls the gate (a pre-driver).
     pub device: DeviceId,
+    /// The switching input the switch follows: `device` itself, or a pre-driver's own driver.
+    /// `None` when the chain ends in something that is not a switching input.
+    pub control: Option<DeviceId>,
+    /// True when the switch conducts while `control` is high (false: while it is low, as for
+    /// a P-channel switch or behind an inverting pre-driver). Found by solving both levels;
+    /// `None` when `control` is unknown or not part of the switch's sub-network.
+    pub on_when_high: Option<bool>,
     /// Resistors and other parts between driver and gate.
     pub network: Vec<DeviceId>,
     /// Other switches whose gates share this drive.
     pub shared_with: Vec<DeviceId>,
-    /// A bootstrap or charge pump lifts the drive above the rail.
+    /// A bootstrap or charge pump lifts the drive above the rail: a capacitor from the
+    /// switched node to a net a diode feeds (then `vgs_on_v` is the bootstrap estimate, feed
+    /// − 0.7 V, as a DC solve cannot see a pump), or the solved gate sits above the drain
+    /// rail by at least the threshold in every on state.
     pub boosted: bool,
-    /// Driver output can float (tri-state, reset, unpowered).
+    /// The bootstrap capacitor and diode, when that is what boosts it.
+    pub bootstrap: Option<(DeviceId, DeviceId)>,
+    /// Driver output can float: a logic output (tri-state at reset and while unpowered).
+    /// Pulse sources, timers and pre-drivers are taken as always driven.
     pub can_float: bool,
 }
 
+/// One MOSFET or BJT and what it switches (see `analysis::switching`).
+///
+/// Sign conventions: `vgs_on_v` and `vgs_off_v` are the physical V(gate) − V(source)
+/// (V(base) − V(emitter)), so a P-channel or PNP that is on shows a negative value; use
+/// [`SwitchFacts::enhancement_on`] / [`SwitchFacts::enhancement_off`] for the magnitude toward
+/// conduction. Every other number (`vds_on_v`, `current_a`, `base_current_a`...) is in the sense
+/// of normal conduction: positive when the switch conducts as intended.
+///
+/// "On states" are the solved states in which the control input is at the level that turns
+/// the switch on (and a bridge partner with a drive of its own is off); ranges over them run
+/// over every supply corner. Current-like numbers come, per corner, from the on state with the
+/// most current.
 #[derive(Clone, Debug, PartialEq)]
 pub struct SwitchFacts {
     pub device: DeviceId,
     pub kind: Kind,
     pub side: Side,
-    /// The rail net the load branch returns to (the supply's positive net for low side).
+    /// The net the switch connects to its rail (drain of a low side, source of an N-channel
+    /// high side, the shared node of a bridge leg); `None` when both terminals sit on rails.
+    pub switched_net: Option<NetId>,
+    /// The rail the switch's own source/emitter (low side) or drain/source (high side)
+    /// returns to.
+    pub anchor_net: Option<NetId>,
+    /// The positive rail feeding the branch: the branch's far end for a low side, the anchor
+    /// for a high side, the upper rail of a bridge leg. Its potential over the corners.
     pub rail_v: Option<Range>,
+    pub rail_net: Option<NetId>,
     pub rail_supply: Option<DeviceId>,
     /// Index into [`Analysis::loads`] of the load branch it interrupts.
     pub load: Option<usize>,
-    /// Every device of the interrupted branch.
+    /// Indices into [`Analysis::loads`] of further loads in parallel on the same switch.
+    pub parallel_loads: Vec<usize>,
+    /// Every device of the interrupted branch, from the switched node to the far end.
     pub branch: Vec<DeviceId>,
+    /// The branch (or a parallel load) holds an inductor, motor, relay coil or solenoid.
     pub inductive: bool,
     pub driver: Option<DriverFacts>,
+    /// Freewheel paths in the order across-load, to-rail, clamp, opposite body diode; each
+    /// with its orientation checked in the solved states.
     pub freewheel: Vec<Freewheel>,
     /// The other switch of a bridge leg.
     pub bridge_partner: Option<DeviceId>,
-    /// On-state V_GS (MOS) or V_BE (BJT), relative to the switch's own source/emitter.
+    /// On-state V_GS (MOS) or V_BE (BJT), relative to the switch's own source/emitter
+    /// (physical sign; the worst corner is the one nearest zero).
     pub vgs_on_v: Option<Range>,
+    /// Off-state V_GS / V_BE (physical sign), `None` when there is no off state (no
+    /// switching drive found).
     pub vgs_off_v: Option<Range>,
-    /// BJT base current in the on state.
+    /// BJT base current in the on state (into the base for NPN, out of it for PNP).
     pub base_current_a: Option<Range>,
-    /// On-state V_DS / V_CE.
+    /// On-state V_DS / V_CE (V_SD / V_EC for P-type).
     pub vds_on_v: Option<Range>,
-    /// On-state drain/collector current.
+    /// On-state drain/collector current. `None` when a part of the branch has no known
+    /// resistance (it was solved as a placeholder, see [`LoadFacts`]).
     pub current_a: Option<Range>,
-    /// Conduction loss over the duty range (hot-die Rds(on) for MOS).
+    /// Channel resistance at the on-state V_GS in the triode region, square law at small
+    /// V_DS: 1/(k·(V_GS − V_T)), cold die. `None` for BJTs and when not in triode.
+    pub rds_on_ohm: Option<Range>,
+    /// Conduction loss over the duty range: MOS in triode `I²·Rds(on)·D` with Rds(on) at the
+    /// actual V_GS × 1.5 for a hot die (common practice); MOS in saturation (a follower or
+    /// starved gate) and BJT `V_DS·I·D`. A duty that is unknown is taken as 100 %.
     pub dissipation_w: Option<Range>,
-    /// Duty and frequency of the drive, when known.
+    /// Fraction of time on, and frequency, of the drive when known (from the PULSE source or
+    /// the timer's facts; 1 for a switch with no switching drive that conducts).
     pub duty: Option<Range>,
     pub frequency_hz: Option<Range>,
-    /// The switch ends up a source follower (high-side N-channel with no boost).
+    /// The switch ends up a source/emitter follower: its source is the switched node (an
+    /// N-channel high side or the upper N-channel of a bridge leg) and nothing boosts its drive.
     pub follower: bool,
-    /// The on-state solve found the switch outside its triode/saturation region.
+    /// In some corner the on-state solve found the switch carrying current outside the
+    /// region a closed switch sits in: MOS in saturation instead of triode, BJT active
+    /// instead of saturated.
     pub linear_region: bool,
 }
 
+impl SwitchFacts {
+    /// True for N-channel MOSFETs and NPN transistors.
+    pub fn is_n_type(&self) -> bool {
+        matches!(self.kind, Kind::Nmos | Kind::Npn)
+    }
+
+    fn toward_conduction(&self, range: &Option<Range>) -> Option<Range> {
+        let r = range.as_ref()?;
+        if self.is_n_type() {
+            return Some(r.clone());
+        }
+        Some(Range {
+            min: -r.max,
+            max: -r.min,
+            min_state: r.max_state.clone(),
+            max_state: r.min_state.clone(),
+        })
+    }
+
+    /// On-state V_GS / V_BE toward conduction (positive when it enhances the switch, for
+    /// either polarity); `min` is the worst corner.
+    pub fn enhancement_on(&self) -> Option<Range> {
+        self.toward_conduction(&self.vgs_on_v)
+    }
+
+    /// Off-state V_GS / V_BE toward conduction; `max` is the worst state for turn-off.
+    pub fn enhancement_off(&self) -> Option<Range> {
+        self.toward_conduction(&self.vgs_off_v)
+    }
+}
+
+/// A load part (motor, relay coil, solenoid; an inductor when a switched branch has no load
+/// part) and the voltage it sees (see `analysis::switching::load`).
+///
+/// A load whose winding resistance is unknown (no `resistance`, no rated voltage with a stall
+/// or rated current) is solved as a light 1 kΩ placeholder: its voltage is then close to the
+/// full rail, the worst case for overvoltage, while its current, stored energy and time
+/// constant are `None` and the effective voltage is the RMS value.
 #[derive(Clone, Debug, PartialEq)]
 pub struct LoadFacts {
     pub device: DeviceId,
     pub kind: Kind,
     pub rated_v: Option<Rated>,
+    /// Winding resistance: stated, or rated voltage over stall (rated) current.
     pub resistance: Option<Rated>,
     pub inductance: Option<Rated>,
-    /// On-state voltage across the load.
+    /// On-state voltage across the load (magnitude), per corner from the on state with the
+    /// most current.
     pub peak_v: Option<Range>,
     /// Average `Vpk·D` over the duty range.
     pub avg_v: Option<Range>,
-    /// Average when the PWM period is short against L/R (T < τ/3), RMS `Vpk·√D` otherwise or
-    /// when τ is unknown.
+    /// Average when the PWM period is short against L/R (T < τ/3 at the lowest frequency),
+    /// RMS `Vpk·√D` otherwise or when τ or the frequency is unknown.
     pub effective_v: Option<Range>,
     /// Whether `effective_v` is the average (true) or the RMS value (false).
     pub effective_is_average: bool,
+    /// τ = L/R of the branch (its inductances over its resistances), when both are known.
+    pub time_constant_s: Option<f64>,
+    /// On-state current through the load (magnitude); `None` when its resistance is unknown.
     pub current_a: Option<Range>,
+    /// Fraction of time the load is energised: its switch's duty, the duty of the switching
+    /// input it hangs on when it has no switch, 1 when nothing switches it. A duty the drive
+    /// does not state is `None`, and the effective voltage is then the peak.
     pub duty: Option<Range>,
     pub frequency_hz: Option<Range>,
     /// ½·L·I² at the peak current.
     pub stored_energy_j: Option<f64>,
+    /// The switch that interrupts it.
     pub switch: Option<DeviceId>,
+    /// The first freewheel path of its switch that is fitted the right way round.
     pub freewheel: Option<DeviceId>,
+    /// The switching input it hangs on directly, when no switch interrupts it (a motor on a
+    /// PULSE source or a timer's output pin).
+    pub driven_by: Option<DeviceId>,
 }
 
-/// Worst-state dissipation of a resistor or pot (and the wiper current of a pot).
+/// Dissipation of a resistor or pot over its sub-network's states, with the wipers of the
+/// sub-network's pots searched for the worst position (and the wiper current of a pot).
 #[derive(Clone, Debug, PartialEq)]
 pub struct ResistorFacts {
     pub device: DeviceId,
+    /// `max` is the worst state (named in `max_state`); `min` the lightest.
     pub power_w: Range,
+    /// Current through a pot's wiper terminal (magnitude).
     pub wiper_current_a: Option<Range>,
+    /// Largest current through the part (a pot: through either half).
+    pub current_a: Option<Range>,
 }
 
 /// Voltage across a capacitor (pos − neg in the element's node order) over states.
 #[derive(Clone, Debug, PartialEq)]
 pub struct CapacitorFacts {
     pub device: DeviceId,
+    /// `min` below zero means the capacitor is reverse-biased in that state.
     pub voltage_v: Range,
 }

@@ -167,8 +167,8 @@ impl<'a> Context<'a> {
         }
     }
 
-    /// The switching inputs a component sees: pulse sources on its boundary, timers and logic
-    /// outputs whose outputs sit in it.
+    /// The switching inputs a component sees: pulse sources on its boundary or floating inside
+    /// it, timers and logic outputs whose pins sit in it.
     pub fn inputs(&self, component: &Component) -> Vec<DeviceId> {
         let mut inputs = Vec::new();
         for &device in &component.devices {
@@ -177,6 +177,10 @@ impl<'a> Context<'a> {
                 d.kind,
                 Kind::Timer555 | Kind::Timer555Cmos | Kind::LogicOutput
             ) {
+                inputs.push(device);
+            }
+            // A pulse source floating inside the component (gate to source, say).
+            if self.is_pulse_source(device) {
                 inputs.push(device);
             }
             for pin in &d.pins {
@@ -385,7 +389,15 @@ impl Built {
     }
 
     pub fn solve(self, options: &SolveOptions) -> Result<Solved, DcError> {
-        let op = dc::solve(&self.network, options)?;
+        let mut network = self.network;
+        if network.node_count() <= 1 {
+            // Nothing to solve (a capacitor straight across two rails stamps nothing), but the
+            // engine wants at least one unknown: a grounded node of its own changes nothing.
+            let spare = network.add_node("(no free net)");
+            let ground = network.ground();
+            network.add_resistor(spare, ground, 1.0);
+        }
+        let op = dc::solve(&network, options)?;
         Ok(Solved {
             op,
             nodes: self.nodes,

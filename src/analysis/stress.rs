@@ -1,11 +1,320 @@
 //! Worst-state stress on passives: resistor and pot dissipation (wipers searched), pot wiper
 //! current, capacitor voltage.
+//!
+//! Each sub-network is solved once in its states (every corner and input combination, each
+//! pot on [`STRESS_WIPER_GRID`], at most [`solves::MAX_STATES`] states; see
+//! [`crate::analysis::switching::solves`]) and every resistor, pot and capacitor in it reads
+//! those solves. Where the sub-network has pots, the worst grid state of each objective (a
+//! part's dissipation, a pot's wiper current) is refined by a search along each pot's travel
+//! ([`Context::search_wiper`]): the worst position can lie between grid points. Searches run
+//! most-stressed part first (against its rating) until [`MAX_SEARCH_SOLVES`] solves are spent
+//! in that sub-network; the rest keep their grid values. So the cost per sub-network is
+//! bounded and the total grows with the number of sub-networks.
 
-use super::facts::{CapacitorFacts, ResistorFacts};
-use super::states::Context;
+use super::facts::{CapacitorFacts, Range, ResistorFacts};
+use super::partition::Component;
+use super::states::{Context, Solved, State};
+use super::switching::solves::{self, ComponentSolves};
+use crate::circuit::{DeviceId, Kind, NetId, PinRole};
 use crate::diagnostic::Finding;
+use std::collections::BTreeMap;
+
+/// Wiper positions every pot is solved at before the search.
+pub const STRESS_WIPER_GRID: [f64; 5] = [0.0, 0.25, 0.5, 0.75, 1.0];
+/// Solves spent on wiper searches per sub-network at most (one search costs about 64).
+pub const MAX_SEARCH_SOLVES: usize = 1024;
+/// Solves one [`Context::search_wiper`] call makes (21-point grid, 20 golden-section steps of
+/// two solves, three finishing points).
+const SOLVES_PER_SEARCH: usize = 64;
+/// Rating assumed for ranking searches when a part states none (common practice: ¼ W).
+const DEFAULT_POWER_RATING_W: f64 = 0.25;
 
 pub fn analyze(cx: &Context<'_>) -> (Vec<ResistorFacts>, Vec<CapacitorFacts>, Vec<Finding>) {
-    let _ = cx;
-    (Vec::new(), Vec::new(), Vec::new())
+    let mut by_component: BTreeMap<usize, Vec<DeviceId>> = BTreeMap::new();
+    for (id, d) in cx.circuit.devices.iter().enumerate() {
+        if !matches!(
+            d.kind,
+            Kind::Resistor | Kind::Potentiometer | Kind::Capacitor
+        ) {
+            continue;
+        }
+        for &c in cx.partition.device_components.get(id).into_iter().flatten() {
+            by_component.entry(c).or_default().push(id);
+        }
+    }
+    let mut findings = Vec::new();
+    let mut solved: BTreeMap<usize, ComponentSolves> = BTreeMap::new();
+    for (&c, members) in &by_component {
+        let Some(component) = cx.partition.components.get(c) else {
+            continue;
+        };
+        let inputs = cx.inputs(component);
+        if let Some(s) = solves::solve_component(cx, c, &inputs, &STRESS_WIPER_GRID) {
+            // Sub-networks with a switch or a load report their failures from the switching
+            // analysis, which solves them too.
+            let reported_elsewhere = component.devices.iter().any(|&d| {
+                cx.circuit
+                    .devices
+                    .get(d)
+                    .is_some_and(|x| x.kind.is_switch_transistor() || x.kind.is_load())
+            });
+            if !reported_elsewhere {
+                if let Some(&first) = members.first() {
+                    findings.extend(solves::failure_finding(cx, &s, first));
+                }
+            }
+            solved.insert(c, s);
+        }
+    }
+
+    let mut resistors = Vec::new();
+    for (&c, members) in &by_component {
+        let (Some(component), Some(s)) = (cx.partition.components.get(c), solved.get(&c)) else {
+            continue;
+        };
+        let parts: Vec<DeviceId> = members
+            .iter()
+            .copied()
+            .filter(|&d| cx.circuit.devices[d].kind != Kind::Capacitor)
+            .collect();
+        resistors.extend(resistor_facts(cx, component, s, &parts));
+    }
+    resistors.sort_by_key(|r: &ResistorFacts| r.device);
+    resistors.dedup_by_key(|r| r.device);
+
+    let mut capacitors: Vec<CapacitorFacts> = cx
+        .circuit
+        .devices
+        .iter()
+        .enumerate()
+        .filter(|(_, d)| d.kind == Kind::Capacitor)
+        .filter_map(|(id, _)| capacitor_facts(cx, &solved, id))
+        .collect();
+    capacitors.sort_by_key(|c| c.device);
+    (resistors, capacitors, findings)
+}
+
+/// What is measured on a part.
+#[derive(Clone, Copy, Debug, PartialEq)]
+enum Objective {
+    Power,
+    WiperCurrent,
+}
+
+fn measure(device: DeviceId, objective: Objective, s: &Solved) -> Option<f64> {
+    let e = s.elements(device)?;
+    let main = e.main?;
+    match (objective, e.wiper_b) {
+        (Objective::Power, None) => s.power(main),
+        (Objective::Power, Some(b)) => Some(s.power(main)? + s.power(b)?),
+        // Current into the wiper node from the a half, less what leaves through the b half:
+        // what the wiper terminal carries.
+        (Objective::WiperCurrent, Some(b)) => Some((s.current(main)? - s.current(b)?).abs()),
+        (Objective::WiperCurrent, None) => None,
+    }
+}
+
+fn largest_current(device: DeviceId, s: &Solved) -> Option<f64> {
+    let e = s.elements(device)?;
+    let a = s.current(e.main?)?.abs();
+    Some(match e.wiper_b.and_then(|b| s.current(b)) {
+        Some(b) => a.max(b.abs()),
+        None => a,
+    })
+}
+
+fn sampled(
+    solves: &ComponentSolves,
+    f: &dyn Fn(&Solved) -> Option<f64>,
+) -> Option<(Range, Option<usize>)> {
+    let mut range: Option<Range> = None;
+    let mut worst: Option<usize> = None;
+    for (i, s) in solves.states.iter().enumerate() {
+        let Some(v) = s.solved.as_ref().and_then(f) else {
+            continue;
+        };
+        if !v.is_finite() {
+            continue;
+        }
+        match &mut range {
+            Some(r) => {
+                if v > r.max {
+                    worst = Some(i);
+                }
+                r.include(v, &s.label);
+            }
+            None => {
+                range = Some(Range::point(v, s.label.clone()));
+                worst = Some(i);
+            }
+        }
+    }
+    range.map(|r| (r, worst))
+}
+
+fn resistor_facts(
+    cx: &Context<'_>,
+    component: &Component,
+    s: &ComponentSolves,
+    parts: &[DeviceId],
+) -> Vec<ResistorFacts> {
+    let mut facts: Vec<ResistorFacts> = Vec::new();
+    // (device, objective, worst state index, stress against rating)
+    let mut searches: Vec<(usize, Objective, usize, f64)> = Vec::new();
+    for &device in parts {
+        let Some((power, worst)) = sampled(s, &|x| measure(device, Objective::Power, x)) else {
+            continue;
+        };
+        let data = &cx.circuit.devices[device].data;
+        let rating = data
+            .value("power_rating")
+            .filter(|r| *r > 0.0)
+            .unwrap_or(DEFAULT_POWER_RATING_W);
+        if let Some(w) = worst {
+            searches.push((facts.len(), Objective::Power, w, power.max / rating));
+        }
+        let is_pot = cx.circuit.devices[device].kind == Kind::Potentiometer;
+        let wiper = if is_pot {
+            sampled(s, &|x| measure(device, Objective::WiperCurrent, x))
+        } else {
+            None
+        };
+        if let Some((current, Some(w))) = &wiper {
+            let limit = data
+                .value("wiper_current_max")
+                .filter(|r| *r > 0.0)
+                .unwrap_or(1.0);
+            searches.push((
+                facts.len(),
+                Objective::WiperCurrent,
+                *w,
+                current.max / limit,
+            ));
+        }
+        facts.push(ResistorFacts {
+            device,
+            power_w: power,
+            wiper_current_a: wiper.map(|(r, _)| r),
+            current_a: sampled(s, &|x| largest_current(device, x)).map(|(r, _)| r),
+        });
+    }
+    let pots = cx.pots(component);
+    if pots.is_empty() {
+        return facts;
+    }
+    searches.sort_by(|a, b| b.3.total_cmp(&a.3));
+    let mut budget = MAX_SEARCH_SOLVES;
+    for (index, objective, worst, _) in searches {
+        let Some(base) = s.states.get(worst) else {
+            continue;
+        };
+        for &pot in &pots {
+            if budget < SOLVES_PER_SEARCH {
+                return facts;
+            }
+            budget -= SOLVES_PER_SEARCH;
+            let device = facts[index].device;
+            let found = cx.search_wiper(component, &base.state, pot, &|x| {
+                measure(device, objective, x)
+            });
+            let Some((x, value)) = found else { continue };
+            let mut state = base.state.clone();
+            state.wipers.insert(pot, x);
+            let label = state.describe(cx, &s.inputs);
+            let range = match objective {
+                Objective::Power => Some(&mut facts[index].power_w),
+                Objective::WiperCurrent => facts[index].wiper_current_a.as_mut(),
+            };
+            if let Some(r) = range {
+                r.include(value, &label);
+            }
+        }
+    }
+    facts
+}
+
+/// Potential of `net` in a solve of `component`: fixed nets from the state, the component's
+/// own nets from the solve; `None` for nets of another component.
+fn net_voltage(
+    cx: &Context<'_>,
+    solves: &ComponentSolves,
+    solved: &Solved,
+    state: &State,
+    net: NetId,
+) -> Option<f64> {
+    if let Some(v) = cx.fixed_voltage(net, state) {
+        return Some(v);
+    }
+    match cx.partition.net_component.get(net).copied().flatten() {
+        Some(c) if c == solves.component => solved.voltage(net),
+        _ => None,
+    }
+}
+
+fn capacitor_facts(
+    cx: &Context<'_>,
+    solved: &BTreeMap<usize, ComponentSolves>,
+    device: DeviceId,
+) -> Option<CapacitorFacts> {
+    let d = cx.circuit.devices.get(device)?;
+    let pos = d
+        .pin(PinRole::Pos)
+        .or_else(|| d.pins.first().map(|p| p.net))?;
+    let neg = d
+        .pin(PinRole::Neg)
+        .or_else(|| d.pins.get(1).map(|p| p.net))?;
+    let own = cx.partition.device_components.get(device)?;
+    let fixed = |net: NetId| cx.partition.fixed.get(net).copied().flatten().is_some();
+    if fixed(pos) && fixed(neg) {
+        // Straight across two fixed nets (bulk and decoupling capacitors): no solve needed.
+        let component = cx.partition.components.get(*own.first()?)?;
+        let inputs = cx.inputs(component);
+        let states = cx.states(component, &[0.5]);
+        let samples: Vec<(f64, String)> = states
+            .iter()
+            .filter_map(|st| {
+                let v = cx.fixed_voltage(pos, st)? - cx.fixed_voltage(neg, st)?;
+                Some((v, st.describe(cx, &inputs)))
+            })
+            .collect();
+        return Range::from_samples(samples.iter().map(|(v, l)| (*v, l.as_str())))
+            .map(|voltage_v| CapacitorFacts { device, voltage_v });
+    }
+    let components: Vec<&ComponentSolves> = own.iter().filter_map(|c| solved.get(c)).collect();
+    // Both ends seen in one solve: the exact difference, state by state.
+    for s in &components {
+        let samples: Vec<(f64, &str)> = s
+            .ok()
+            .filter_map(|(st, x)| {
+                let v =
+                    net_voltage(cx, s, x, &st.state, pos)? - net_voltage(cx, s, x, &st.state, neg)?;
+                Some((v, st.label.as_str()))
+            })
+            .collect();
+        if let Some(range) = Range::from_samples(samples) {
+            return Some(CapacitorFacts {
+                device,
+                voltage_v: range,
+            });
+        }
+    }
+    // The two ends in different sub-networks: the widest difference of their own ranges.
+    let end_range = |net: NetId| -> Option<Range> {
+        let s = components.iter().find(|s| {
+            cx.partition.net_component.get(net).copied().flatten() == Some(s.component)
+        })?;
+        Range::from_samples(s.ok().filter_map(|(st, x)| {
+            Some((net_voltage(cx, s, x, &st.state, net)?, st.label.as_str()))
+        }))
+    };
+    let (p, n) = (end_range(pos)?, end_range(neg)?);
+    Some(CapacitorFacts {
+        device,
+        voltage_v: Range {
+            min: p.min - n.max,
+            max: p.max - n.min,
+            min_state: format!("{} with {}", p.min_state, n.max_state),
+            max_state: format!("{} with {}", p.max_state, n.min_state),
+        },
+    })
 }

@@ -1,8 +1,183 @@
-//! `base-underdrive`: a bjt switch gets too little base current and runs in its active region. See `rules/base-underdrive.md`.
+//! `base-underdrive`: a BJT switch gets too little base current to saturate at its load
+//! current and runs in its active region. See `rules/base-underdrive.md`.
 
+use super::eseries::{ohms, round_down, E12};
+use super::switch_util::{
+    drive_level, finding_at, held_off, kind, label, load_device, load_of, name, rated,
+    saturated_current, shorted_through, weakest_magnitude,
+};
+use super::units::format_si;
 use super::RuleContext;
-use crate::diagnostic::Finding;
+use crate::analysis::SwitchFacts;
+use crate::circuit::{DeviceId, Kind};
+use crate::diagnostic::{Finding, Severity};
+
+const RULE: &str = "base-underdrive";
+/// Forced β for a saturated switch (common practice).
+const FORCED_BETA: f64 = 10.0;
+/// V_CE of a saturated small-signal switch (from memory: 0.1–0.3 V).
+const VCE_SAT_V: f64 = 0.2;
+/// V_BE of a silicon switch driven hard (from memory).
+const VBE_ON_V: f64 = 0.8;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
-    let _ = (cx, out);
+    for sw in &cx.analysis.switches {
+        if kind(cx, sw.device).is_some_and(Kind::is_bjt) && !held_off(cx, sw) {
+            out.extend(finding(cx, sw));
+        }
+    }
+}
+
+/// The collector current the load needs: the branch at full voltage, or what the DC engine
+/// finds through the switch and the load, whichever is larger.
+fn collector_current(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<f64> {
+    let saturated = saturated_current(cx, sw, VCE_SAT_V);
+    let through_switch = sw
+        .current_a
+        .as_ref()
+        .map(|r| r.max.abs())
+        .filter(|_| !shorted_through(cx, sw));
+    let through_load = load_of(cx, sw)
+        .and_then(|l| l.current_a.as_ref())
+        .map(|r| r.max.abs());
+    [saturated, through_switch, through_load]
+        .into_iter()
+        .flatten()
+        .reduce(f64::max)
+        .filter(|i| *i > 0.0)
+}
+
+/// The single resistor between driver and base, when that is the whole base network.
+fn base_resistor(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<DeviceId> {
+    match sw.driver.as_ref()?.network.as_slice() {
+        [r] if kind(cx, *r) == Some(Kind::Resistor) => Some(*r),
+        _ => None,
+    }
+}
+
+fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
+    let (ib, state) = weakest_magnitude(sw.base_current_a.as_ref()?);
+    let ic = collector_current(cx, sw)?;
+    let need = ic / FORCED_BETA;
+    if ib >= need {
+        return None;
+    }
+    let q = name(cx, sw.device);
+    let load = load_device(cx, sw);
+    let load_name = load.map_or_else(|| "its load".to_string(), |l| name(cx, l));
+    let mut message = format!(
+        "{q} gets {} of base current ({state}); to saturate at {load_name}'s {} it needs {} \
+         (I_C/10, a forced β of 10)",
+        format_si(ib, "A"),
+        format_si(ic, "A"),
+        format_si(need, "A")
+    );
+    let vce = sw.vds_on_v.as_ref().map(|r| r.max.abs());
+    let power = sw.dissipation_w.as_ref().map(|r| r.max);
+    let active = sw.linear_region || vce.is_some_and(|v| v > 2.0 * VCE_SAT_V);
+    if active {
+        message.push_str(": it runs in its active region");
+    } else {
+        message.push_str(
+            ": it saturates only while its gain holds, and gain falls at high current and when \
+             cold",
+        );
+        if let Some(h) = rated(cx, sw.device, "hfe_min") {
+            message.push_str(&format!(" (hfe_min {})", super::units::sig3(h.value)));
+        }
+    }
+    match (vce, power) {
+        (Some(v), Some(p)) => message.push_str(&format!(
+            ", with V_CE = {} and {} dissipated",
+            format_si(v, "V"),
+            format_si(p, "W")
+        )),
+        (Some(v), None) => message.push_str(&format!(", with V_CE = {}", format_si(v, "V"))),
+        (None, Some(p)) => message.push_str(&format!(", dissipating {}", format_si(p, "W"))),
+        (None, None) => {}
+    }
+
+    let resistor = base_resistor(cx, sw);
+    let primary = resistor.unwrap_or(sw.device);
+    let mut f = finding_at(RULE, Severity::Error, cx, primary, message)?;
+    f = label(
+        f,
+        cx,
+        sw.device,
+        &format!("needs {} of base current to saturate", format_si(need, "A")),
+    );
+    if let Some(d) = &sw.driver {
+        f = label(f, cx, d.device, &format!("drives {q}'s base"));
+    }
+    if let Some(l) = load {
+        f = label(
+            f,
+            cx,
+            l,
+            &format!("draws {} when {q} is saturated", format_si(ic, "A")),
+        );
+    }
+    f = f.with_help(help(cx, sw, &q, resistor, need));
+    f = f
+        .with_value("base_current", ib, "A", "computed")
+        .with_value("collector_current", ic, "A", "computed")
+        .with_value("required_base_current", need, "A", "computed");
+    if let Some(v) = vce {
+        f = f.with_value("vce_on", v, "V", "computed");
+    }
+    if let Some(p) = power {
+        f = f.with_value("dissipation", p, "W", "computed");
+    }
+    Some(f)
+}
+
+fn help(
+    cx: &RuleContext<'_>,
+    sw: &SwitchFacts,
+    q: &str,
+    resistor: Option<DeviceId>,
+    need: f64,
+) -> String {
+    let driver = sw.driver.as_ref().map(|d| d.device);
+    let level = driver.and_then(|d| drive_level(cx, d));
+    let vbe = sw
+        .vgs_on_v
+        .as_ref()
+        .map(|r| r.max.abs())
+        .filter(|v| *v > 0.3 && *v < 1.5)
+        .unwrap_or(VBE_ON_V);
+    let limit = driver.and_then(|d| rated(cx, d, "out_current_max"));
+    let mut text = match level.as_ref().filter(|l| l.high > vbe) {
+        Some(l) => {
+            let r = (l.high - vbe) / need;
+            match round_down(r, &E12) {
+                Some(e12) => {
+                    let what = resistor.map_or_else(
+                        || format!("put a base resistor of {}", ohms(e12)),
+                        |r| format!("set {} to {}", name(cx, r), ohms(e12)),
+                    );
+                    format!(
+                        "{what} in front of {q}'s base: from {} ({}) it gives {}; that is \
+                         ({} − V_BE {}) / (I_C/10) = {}, rounded down to E12",
+                        format_si(l.high, "V"),
+                        l.how,
+                        format_si((l.high - vbe) / e12, "A"),
+                        format_si(l.high, "V"),
+                        format_si(vbe, "V"),
+                        ohms(r)
+                    )
+                }
+                None => format!("drive {q}'s base with {}", format_si(need, "A")),
+            }
+        }
+        None => format!("drive {q}'s base with at least {}", format_si(need, "A")),
+    };
+    if let Some(max) = limit.filter(|m| m.value < need) {
+        text.push_str(&format!(
+            "; that is more than the driver's {} output rating, so use a logic-level N-channel \
+             MOSFET instead, or a Darlington",
+            format_si(max.value, "A")
+        ));
+    }
+    text
 }

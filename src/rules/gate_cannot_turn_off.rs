@@ -1,8 +1,116 @@
-//! `gate-cannot-turn-off`: the off-state gate-source voltage is too close to the threshold. See `rules/gate-cannot-turn-off.md`.
+//! `gate-cannot-turn-off`: the off-state gate-source voltage is too close to the threshold.
+//! See `rules/gate-cannot-turn-off.md`.
 
+use super::shoot_through::conducts_with_partner;
+use super::switch_util::{
+    drive_level, finding_at, in_conduction_sense, kind, label, load_device, name, rail, rated_or,
+};
+use super::units::format_si;
 use super::RuleContext;
-use crate::diagnostic::Finding;
+use crate::analysis::SwitchFacts;
+use crate::circuit::Kind;
+use crate::diagnostic::{Finding, Severity};
+
+const RULE: &str = "gate-cannot-turn-off";
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
-    let _ = (cx, out);
+    for sw in &cx.analysis.switches {
+        let Some(k) = kind(cx, sw.device).filter(|k| k.is_mos()) else {
+            continue;
+        };
+        out.extend(finding(cx, sw, k));
+    }
+}
+
+/// True when `shoot-through` already reports this switch conducting beside its bridge partner.
+fn reported_as_shoot_through(cx: &RuleContext<'_>, sw: &SwitchFacts) -> bool {
+    sw.bridge_partner
+        .and_then(|p| cx.analysis.switches.iter().find(|s| s.device == p))
+        .is_some_and(|partner| conducts_with_partner(cx, sw, partner).is_some())
+}
+
+fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding> {
+    let off = in_conduction_sense(sw.vgs_off_v.as_ref()?, k);
+    let th = rated_or(
+        cx,
+        sw.device,
+        "vgs_th_min",
+        2.0,
+        "default vgs_th_min (DESIGN default)",
+    );
+    let v = off.strongest;
+    let state = &off.strongest_state;
+    let severity = if v >= th.value {
+        if reported_as_shoot_through(cx, sw) {
+            return None;
+        }
+        Severity::Error
+    } else if v > 0.5 * th.value {
+        Severity::Warning
+    } else {
+        return None;
+    };
+    let s = name(cx, sw.device);
+    let load = load_device(cx, sw).map_or_else(|| "its load".to_string(), |l| name(cx, l));
+    let sense = if k == Kind::Pmos {
+        "below its source"
+    } else {
+        "above its source"
+    };
+    let consequence = if severity == Severity::Error {
+        format!(
+            "at or above its lowest threshold of {}: it never turns fully off and {load} stays on",
+            format_si(th.value, "V")
+        )
+    } else {
+        format!(
+            "above half its lowest threshold of {}: the threshold falls as the die heats, and a \
+             hot switch creeps back on",
+            format_si(th.value, "V")
+        )
+    };
+    let message = format!(
+        "when {s} should be off its gate still sits {} {sense} ({state}), {consequence}",
+        format_si(v, "V")
+    );
+    let mut f = finding_at(RULE, severity, cx, sw.device, message)?;
+    if let Some(d) = &sw.driver {
+        let level = drive_level(cx, d.device);
+        let text = match (&level, k) {
+            (Some(l), Kind::Pmos) => format!("its high level is only {}", format_si(l.high, "V")),
+            (Some(l), _) => format!("its low level is {}", format_si(l.low, "V")),
+            (None, _) => format!("drives {s}'s gate"),
+        };
+        f = label(f, cx, d.device, &text);
+        for &n in &d.network {
+            f = label(f, cx, n, "sets the off-state gate voltage");
+        }
+    }
+    if let Some(l) = load_device(cx, sw) {
+        f = label(f, cx, l, "stays powered");
+    }
+    let help = if k == Kind::Pmos {
+        let rail = rail(cx, sw).map(|r| r.v.max);
+        let rail_text = rail.map_or_else(
+            || "the rail".into(),
+            |v| format!("the {} rail", format_si(v, "V")),
+        );
+        format!(
+            "a P-channel switch on {rail_text} turns off only when its gate reaches its source: \
+             pull the gate up to the source with 10 kΩ and drive it down through an NPN or \
+             N-channel level shifter, so the logic level never has to reach the rail"
+        )
+    } else {
+        format!(
+            "pull {s}'s gate down to its source with 10 kΩ and drive it from an output whose low \
+             level reaches the source (below {}); a pull-up or divider on the gate must not hold \
+             it up",
+            format_si(0.5 * th.value, "V")
+        )
+    };
+    Some(
+        f.with_help(help)
+            .with_value("off_state_vgs", v, "V", "computed")
+            .with_value("vgs_th_min", th.value, "V", th.source),
+    )
 }

@@ -366,4 +366,6 @@ pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
 pub mod eseries;
 pub mod hygiene_util;
 pub mod suppress;
+pub mod switch_util;
+pub mod timer_util;
 pub mod units;

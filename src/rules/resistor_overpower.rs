@@ -1,8 +1,133 @@
-//! `resistor-overpower`: a resistor dissipates more than its power rating in some state. See `rules/resistor-overpower.md`.
+//! `resistor-overpower`: a resistor or pot dissipates more than its power rating in its worst
+//! state (pot wipers searched over their travel). See `rules/resistor-overpower.md`.
 
+use super::eseries::{ohms, round_up, E12};
+use super::switch_util::{
+    dc_resistance, finding_at, kind, label, name, next_rating, rated_or, RESISTOR_WATTS,
+};
+use super::units::format_si;
 use super::RuleContext;
-use crate::diagnostic::Finding;
+use crate::analysis::ResistorFacts;
+use crate::circuit::{DeviceId, Kind};
+use crate::diagnostic::{Finding, Severity};
+
+const RULE: &str = "resistor-overpower";
+/// Share of the rating a resistor may run at continuously (common practice derating).
+const DERATING: f64 = 0.6;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
-    let _ = (cx, out);
+    for facts in &cx.analysis.resistors {
+        out.extend(finding(cx, facts));
+    }
+}
+
+/// Pots and timers that share a net with the resistor, or whose discharge chain holds it: the
+/// parts that set its worst state.
+fn involved(cx: &RuleContext<'_>, id: DeviceId) -> Vec<(DeviceId, String)> {
+    let mut found = Vec::new();
+    for t in &cx.analysis.timers {
+        if t.discharge_chain.contains(&id) {
+            found.push((
+                t.device,
+                "its discharge pin sinks this current when on".to_string(),
+            ));
+            for &p in t.discharge_chain.iter().filter(|&&p| p != id) {
+                if kind(cx, p) == Some(Kind::Potentiometer) {
+                    found.push((p, "at its worst position".to_string()));
+                }
+            }
+        }
+    }
+    let nets: Vec<usize> = cx
+        .circuit
+        .devices
+        .get(id)
+        .map(|d| d.pins.iter().map(|p| p.net).collect())
+        .unwrap_or_default();
+    for (other, d) in cx.circuit.devices.iter().enumerate() {
+        let adjacent = d.pins.iter().any(|p| nets.contains(&p.net));
+        if other != id
+            && adjacent
+            && d.kind == Kind::Potentiometer
+            && !found.iter().any(|(f, _)| *f == other)
+        {
+            found.push((other, "at its worst position".to_string()));
+        }
+    }
+    found
+}
+
+fn finding(cx: &RuleContext<'_>, facts: &ResistorFacts) -> Option<Finding> {
+    let id = facts.device;
+    let p = facts.power_w.max;
+    let rating = rated_or(
+        cx,
+        id,
+        "power_rating",
+        0.25,
+        "default power_rating (common practice)",
+    );
+    if rating.value <= 0.0 {
+        return None;
+    }
+    let severity = if p > rating.value {
+        Severity::Error
+    } else if p > DERATING * rating.value {
+        Severity::Warning
+    } else {
+        return None;
+    };
+    let r = name(cx, id);
+    let consequence = if severity == Severity::Error {
+        "it overheats, drifts and can burn open or scorch the board"
+    } else {
+        "above the 60 % a resistor should run at continuously"
+    };
+    let message = format!(
+        "{r} dissipates {} ({}): {} of its {} rating, {consequence}",
+        format_si(p, "W"),
+        facts.power_w.max_state,
+        super::units::percent(p / rating.value),
+        format_si(rating.value, "W")
+    );
+    let mut f = finding_at(RULE, severity, cx, id, message)?;
+    for (other, text) in involved(cx, id) {
+        f = label(f, cx, other, &text);
+    }
+    let wanted = p / DERATING;
+    let watts = next_rating(&RESISTOR_WATTS, wanted);
+    let mut help = match watts {
+        Some(w) => format!(
+            "use a {} part ({} at 60 % derating)",
+            format_si(w, "W"),
+            format_si(wanted, "W")
+        ),
+        None => format!(
+            "spread {} over several parts or a power resistor on a heatsink",
+            format_si(p, "W")
+        ),
+    };
+    let plain = kind(cx, id) == Some(Kind::Resistor);
+    if !plain {
+        help.push_str(
+            ", or a fixed resistor in series that keeps the current down at the end of the travel",
+        );
+    }
+    if let Some(ohm) = dc_resistance(cx, id).filter(|r| plain && *r > 0.0) {
+        // With the same voltage across it, P = V²/R falls as R rises.
+        let volts = (p * ohm).sqrt();
+        if let Some(bigger) = round_up(volts * volts / (DERATING * rating.value), &E12) {
+            help.push_str(&format!(
+                ", or, where the {} across it is fixed, at least {} keeps it within 60 % of its \
+                 rating",
+                format_si(volts, "V"),
+                ohms(bigger)
+            ));
+        }
+    }
+    Some(
+        f.with_help(help)
+            .with_value("power", p, "W", "computed")
+            .with_value("power_rating", rating.value, "W", rating.source),
+    )
 }

@@ -1,14 +1,437 @@
 //! Switches and their loads: topology (side, load branch, freewheel paths, drivers, bridge
 //! legs), on- and off-state gate drive, currents, dissipation and load voltages.
+//!
+//! Work stays local: each switch's sub-network ([`crate::analysis::partition`]) is solved once
+//! in its states ([`solves`]) and every switch and load in it reads those solves. The cost is
+//! the number of sub-networks times their states, so it grows with the board, not its square.
 
-use super::facts::{LoadFacts, SwitchFacts, TimerFacts};
-use super::states::Context;
+pub mod drive;
+pub mod freewheel;
+pub mod gate_network;
+pub mod load;
+pub mod nets;
+pub mod solves;
+pub mod topology;
+
+use super::facts::{DriverFacts, LoadFacts, Range, SwitchFacts, TimerFacts};
+use super::states::{Context, Corner};
+use crate::circuit::{DeviceId, Kind};
 use crate::diagnostic::Finding;
+use drive::OnOff;
+use gate_network::GateDrive;
+use load::LoadSetting;
+use nets::NetMap;
+use solves::ComponentSolves;
+use std::collections::BTreeMap;
+use topology::SwitchTopology;
+
+/// Wiper positions a switch's sub-network is solved at (pots there are rare: a gate divider).
+const SWITCH_WIPER_GRID: [f64; 3] = [0.0, 0.5, 1.0];
 
 pub fn analyze(
     cx: &Context<'_>,
     timers: &[TimerFacts],
 ) -> (Vec<SwitchFacts>, Vec<LoadFacts>, Vec<Finding>) {
-    let _ = (cx, timers);
-    (Vec::new(), Vec::new(), Vec::new())
+    let nets = NetMap::new(cx);
+    let topologies = topology::classify_all(cx, &nets);
+    let drives: Vec<GateDrive> = topologies
+        .iter()
+        .map(|t| gate_network::find(cx, &nets, t))
+        .collect();
+    let mut findings = Vec::new();
+
+    let mut by_component: BTreeMap<usize, Vec<usize>> = BTreeMap::new();
+    for (i, t) in topologies.iter().enumerate() {
+        if let Some(&c) = cx
+            .partition
+            .device_components
+            .get(t.device)
+            .and_then(|v| v.first())
+        {
+            by_component.entry(c).or_default().push(i);
+        }
+    }
+    let mut solved: BTreeMap<usize, ComponentSolves> = BTreeMap::new();
+    for (&c, members) in &by_component {
+        let mut keys: Vec<DeviceId> = members.iter().filter_map(|&i| drives[i].control).collect();
+        keys.sort_unstable();
+        keys.dedup();
+        if let Some(s) = solves::solve_component(cx, c, &keys, &SWITCH_WIPER_GRID) {
+            if let Some(first) = members.first() {
+                findings.extend(solves::failure_finding(cx, &s, topologies[*first].device));
+            }
+            solved.insert(c, s);
+        }
+    }
+    let component_of = |device: DeviceId| -> Option<usize> {
+        cx.partition
+            .device_components
+            .get(device)
+            .and_then(|v| v.first())
+            .copied()
+    };
+
+    let on_levels: Vec<Option<bool>> = topologies
+        .iter()
+        .zip(&drives)
+        .map(|(t, d)| {
+            let s = solved.get(&component_of(t.device)?)?;
+            drive::on_level(cx, t, d.control, s)
+        })
+        .collect();
+
+    let mut switches = Vec::new();
+    let mut loads: Vec<LoadFacts> = Vec::new();
+    let mut load_index: BTreeMap<DeviceId, usize> = BTreeMap::new();
+    for (i, t) in topologies.iter().enumerate() {
+        let Some(s) = component_of(t.device).and_then(|c| solved.get(&c)) else {
+            switches.push(bare_switch(cx, t, &topologies));
+            continue;
+        };
+        let partner = t.partner.and_then(|p| {
+            let j = topologies.iter().position(|o| o.device == p)?;
+            Some((drives[j].control?, on_levels[j]?))
+        });
+        let states = drive::on_off(t, drives[i].control, on_levels[i], partner, s);
+        let facts = switch_facts(cx, timers, &nets, t, &topologies, &drives[i], &states, s);
+        for &load_device in t.load.iter().chain(t.parallel_loads.iter()) {
+            if load_index.contains_key(&load_device) {
+                continue;
+            }
+            let branch: Vec<DeviceId> = if Some(load_device) == t.load {
+                t.branch.devices.clone()
+            } else {
+                vec![load_device]
+            };
+            let setting = LoadSetting {
+                solves: s,
+                conducting: &states.conducting,
+                duty: facts.duty.clone(),
+                frequency_hz: facts.frequency_hz.clone(),
+                branch: &branch,
+                switch: Some(t.device),
+                freewheel: facts
+                    .freewheel
+                    .iter()
+                    .find(|f| !f.reversed)
+                    .map(|f| f.device),
+                driven_by: None,
+            };
+            load_index.insert(load_device, loads.len());
+            loads.push(load::load_facts(cx, load_device, &setting));
+        }
+        switches.push(facts);
+    }
+
+    // Loads no switch interrupts: straight on a rail, a pulse source or a timer's pin.
+    for (device, d) in cx.circuit.devices.iter().enumerate() {
+        if !d.kind.is_load() || load_index.contains_key(&device) {
+            continue;
+        }
+        let Some(c) = component_of(device) else {
+            continue;
+        };
+        if let std::collections::btree_map::Entry::Vacant(slot) = solved.entry(c) {
+            let Some(component) = cx.partition.components.get(c) else {
+                continue;
+            };
+            let inputs = cx.inputs(component);
+            if let Some(s) = solves::solve_component(cx, c, &inputs, &SWITCH_WIPER_GRID) {
+                findings.extend(solves::failure_finding(cx, &s, device));
+                slot.insert(s);
+            }
+        }
+        let Some(s) = solved.get(&c) else { continue };
+        load_index.insert(device, loads.len());
+        loads.push(unswitched_load(cx, timers, &nets, device, s));
+    }
+
+    // Loads in device order; switches point at them by index.
+    let mut order: Vec<usize> = (0..loads.len()).collect();
+    order.sort_by_key(|&i| loads[i].device);
+    let mut new_index = vec![0usize; loads.len()];
+    for (new, &old) in order.iter().enumerate() {
+        new_index[old] = new;
+    }
+    let mut sorted: Vec<Option<LoadFacts>> = loads.into_iter().map(Some).collect();
+    let loads: Vec<LoadFacts> = order.iter().filter_map(|&i| sorted[i].take()).collect();
+    for (sw, t) in switches.iter_mut().zip(&topologies) {
+        sw.load = t
+            .load
+            .and_then(|d| load_index.get(&d))
+            .map(|&i| new_index[i]);
+        sw.parallel_loads = t
+            .parallel_loads
+            .iter()
+            .filter_map(|d| load_index.get(d))
+            .map(|&i| new_index[i])
+            .collect();
+    }
+    share_drives(&mut switches);
+    (switches, loads, findings)
+}
+
+/// Notes, on each driver, the other switches driven from the same device.
+fn share_drives(switches: &mut [SwitchFacts]) {
+    let pairs: Vec<(DeviceId, DeviceId)> = switches
+        .iter()
+        .filter_map(|s| Some((s.driver.as_ref()?.device, s.device)))
+        .collect();
+    for s in switches.iter_mut() {
+        let me = s.device;
+        if let Some(driver) = &mut s.driver {
+            driver.shared_with = pairs
+                .iter()
+                .filter(|(d, sw)| *d == driver.device && *sw != me)
+                .map(|&(_, sw)| sw)
+                .collect();
+        }
+    }
+}
+
+fn rail_range(
+    cx: &Context<'_>,
+    t: &SwitchTopology,
+    all: &[SwitchTopology],
+) -> (Option<Range>, Option<nets::Rail>) {
+    let Some(rail) = t.supply_rail(cx, all) else {
+        return (None, None);
+    };
+    let name = rail.supply.map_or("ground", |d| cx.name(d)).to_string();
+    let corners: &[Corner] = if cx.supplies.iter().any(|s| s.min != s.max) {
+        &Corner::ALL
+    } else {
+        &[Corner::Nominal]
+    };
+    let labels: Vec<(f64, String)> = corners
+        .iter()
+        .map(|&c| {
+            (
+                nets::rail_at(cx, &rail, c),
+                format!("{name} at {}", c.as_str()),
+            )
+        })
+        .collect();
+    (
+        Range::from_samples(labels.iter().map(|(v, l)| (*v, l.as_str()))),
+        Some(rail),
+    )
+}
+
+/// A switch whose sub-network could not be found: topology only.
+fn bare_switch(cx: &Context<'_>, t: &SwitchTopology, all: &[SwitchTopology]) -> SwitchFacts {
+    let (rail_v, rail) = rail_range(cx, t, all);
+    SwitchFacts {
+        device: t.device,
+        kind: t.kind,
+        side: t.side,
+        switched_net: t.switched,
+        anchor_net: t.anchor.map(|a| a.net),
+        rail_v,
+        rail_net: rail.map(|r| r.net),
+        rail_supply: rail.and_then(|r| r.supply),
+        load: None,
+        parallel_loads: Vec::new(),
+        branch: t.branch.devices.clone(),
+        inductive: t.inductive,
+        driver: None,
+        freewheel: Vec::new(),
+        bridge_partner: t.partner,
+        vgs_on_v: None,
+        vgs_off_v: None,
+        base_current_a: None,
+        vds_on_v: None,
+        current_a: None,
+        rds_on_ohm: None,
+        dissipation_w: None,
+        duty: None,
+        frequency_hz: None,
+        follower: t.switched_is_source,
+        linear_region: false,
+    }
+}
+
+#[allow(clippy::too_many_arguments)]
+fn switch_facts(
+    cx: &Context<'_>,
+    timers: &[TimerFacts],
+    nets: &NetMap,
+    t: &SwitchTopology,
+    all: &[SwitchTopology],
+    gate: &GateDrive,
+    states: &OnOff,
+    s: &ComponentSolves,
+) -> SwitchFacts {
+    let branch_parts: Vec<DeviceId> = t
+        .branch
+        .devices
+        .iter()
+        .chain(t.parallel_loads.iter())
+        .copied()
+        .collect();
+    let current_known = s.ok().next().is_some_and(|(_, solved)| {
+        branch_parts
+            .iter()
+            .all(|&d| solved.elements(d).is_none_or(|e| !e.assumed))
+    });
+    let numbers = drive::numbers(cx, t, gate, states, s, current_known);
+    let conducts = match (&numbers.vgs_on_v, cx.circuit.devices.get(t.device)) {
+        (Some(v), Some(d)) => {
+            let needed = if d.kind.is_mos() {
+                crate::analysis::stand_in::mos_threshold(&d.data)
+            } else {
+                0.5
+            };
+            let worst = if t.n_type { v.min } else { -v.max };
+            worst >= needed
+        }
+        _ => false,
+    };
+    let (duty, frequency_hz) = match (gate.control, states.on_high) {
+        (Some(c), Some(on_high)) => {
+            let (d, f) = drive::input_timing(cx, timers, c);
+            (drive::switch_duty(d, on_high), f)
+        }
+        _ if conducts => (
+            Some(Range::point(1.0, "no switching drive: always on")),
+            None,
+        ),
+        _ => (None, None),
+    };
+    let dissipation_w = numbers.on_loss_w.as_ref().map(|p| match &duty {
+        Some(d) => drive::times_duty(p, d),
+        None => {
+            let mut p = p.clone();
+            p.max_state = format!("{}; duty unknown, taken as 100 %", p.max_state);
+            p.min_state = format!("{}; duty unknown, taken as 100 %", p.min_state);
+            p
+        }
+    });
+    let boosted = gate.bootstrap.is_some() || (t.switched_is_source && numbers.drive_above_rail);
+    let load_current = t.load.and_then(|l| {
+        drive::range_over(s, &states.conducting, &|_, solved| load::through(l, solved))
+    });
+    let candidates = freewheel::candidates(cx, nets, t);
+    let freewheel = freewheel::orient(&candidates, states, s, load_current.as_ref(), duty.as_ref());
+    let driver = gate.driver.map(|device| {
+        let kind_of = |d: DeviceId| cx.circuit.devices.get(d).map(|x| x.kind);
+        DriverFacts {
+            device,
+            control: gate.control,
+            on_when_high: states.on_high,
+            network: gate.network.clone(),
+            shared_with: Vec::new(),
+            boosted,
+            bootstrap: gate.bootstrap.map(|b| (b.capacitor, b.diode)),
+            can_float: kind_of(device) == Some(Kind::LogicOutput)
+                || gate.control.and_then(kind_of) == Some(Kind::LogicOutput),
+        }
+    });
+    let (rail_v, rail) = rail_range(cx, t, all);
+    SwitchFacts {
+        device: t.device,
+        kind: t.kind,
+        side: t.side,
+        switched_net: t.switched,
+        anchor_net: t.anchor.map(|a| a.net),
+        rail_v,
+        rail_net: rail.map(|r| r.net),
+        rail_supply: rail.and_then(|r| r.supply),
+        load: None,
+        parallel_loads: Vec::new(),
+        branch: t.branch.devices.clone(),
+        inductive: t.inductive,
+        driver,
+        freewheel,
+        bridge_partner: t.partner,
+        vgs_on_v: numbers.vgs_on_v,
+        vgs_off_v: numbers.vgs_off_v,
+        base_current_a: numbers.base_current_a,
+        vds_on_v: numbers.vds_on_v,
+        current_a: numbers.current_a,
+        rds_on_ohm: numbers.rds_on_ohm,
+        dissipation_w,
+        duty,
+        frequency_hz,
+        follower: t.switched_is_source && !boosted,
+        linear_region: numbers.linear_region,
+    }
+}
+
+/// A load no switch interrupts: energised while the switching input it hangs on is at the
+/// level that puts more voltage across it, or always when it hangs on none.
+fn unswitched_load(
+    cx: &Context<'_>,
+    timers: &[TimerFacts],
+    nets: &NetMap,
+    device: DeviceId,
+    s: &ComponentSolves,
+) -> LoadFacts {
+    let driven_by = cx
+        .circuit
+        .devices
+        .get(device)
+        .map(|d| d.pins.clone())
+        .unwrap_or_default()
+        .iter()
+        .find_map(|p| {
+            let (d, _) = gate_network::walk_back(cx, nets, p.net, device);
+            d.filter(|&d| gate_network::is_switching_input(cx, d))
+        });
+    let mean_across = |high: bool, input: DeviceId| -> Option<f64> {
+        let v: Vec<f64> = s
+            .ok()
+            .filter(|(st, _)| st.state.is_high(input) == high)
+            .filter_map(|(_, solved)| load::across(cx, device, solved))
+            .collect();
+        (!v.is_empty()).then(|| v.iter().sum::<f64>() / v.len() as f64)
+    };
+    let on_high = driven_by
+        .filter(|d| s.inputs.contains(d))
+        .and_then(|d| Some(mean_across(true, d)? >= mean_across(false, d)?));
+    let on: Vec<usize> = s
+        .states
+        .iter()
+        .enumerate()
+        .filter(|(_, st)| st.solved.is_some())
+        .filter(|(_, st)| match (driven_by, on_high) {
+            (Some(d), Some(level)) => st.state.is_high(d) == level,
+            _ => true,
+        })
+        .map(|(i, _)| i)
+        .collect();
+    let conducting: Vec<usize> = Corner::ALL
+        .iter()
+        .filter_map(|&corner| {
+            on.iter()
+                .copied()
+                .filter(|&i| s.states[i].state.corner == corner)
+                .filter_map(|i| Some((i, load::across(cx, device, s.states[i].solved.as_ref()?)?)))
+                .fold(None, |best: Option<(usize, f64)>, (i, v)| match best {
+                    Some((_, b)) if b >= v => best,
+                    _ => Some((i, v)),
+                })
+                .map(|(i, _)| i)
+        })
+        .collect();
+    let (duty, frequency_hz) = match (driven_by, on_high) {
+        (Some(d), Some(level)) => {
+            let (duty, f) = drive::input_timing(cx, timers, d);
+            (drive::switch_duty(duty, level), f)
+        }
+        (Some(_), None) => (None, None),
+        (None, _) => (Some(Range::point(1.0, "not switched: always on")), None),
+    };
+    let branch = [device];
+    let setting = LoadSetting {
+        solves: s,
+        conducting: &conducting,
+        duty,
+        frequency_hz,
+        branch: &branch,
+        switch: None,
+        freewheel: None,
+        driven_by,
+    };
+    load::load_facts(cx, device, &setting)
 }

@@ -151,7 +151,8 @@ pub fn recognise(cx: &Context<'_>, index: &NetIndex, id: DeviceId) -> Setup {
     setup.component = cx.partition.net_component.get(thr).copied().flatten();
 
     let charged = index.on(thr).iter().any(|&(d, _)| {
-        d != id && conducts(cx.circuit.devices[d].kind)
+        d != id
+            && conducts(cx.circuit.devices[d].kind)
             && other_net(&cx.circuit.devices[d], thr).is_some_and(|n| n != thr)
     });
     let dis_on_timing = dis.is_some_and(|d| d == thr || joined(cx, index, d, thr));

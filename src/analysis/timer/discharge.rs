@@ -5,8 +5,9 @@
 
 use super::config::{NetIndex, Setup};
 use super::sweep::{self, Point};
-use crate::analysis::dc::{self, DcError};
+use crate::analysis::dc;
 use crate::analysis::facts::Range;
+use crate::analysis::stand_in;
 use crate::analysis::states::{Context, Solved, State};
 use crate::circuit::{DeviceId, Kind, PinRole};
 
@@ -17,6 +18,7 @@ pub struct Discharge {
     pub open_v: Option<Range>,
     pub chain: Vec<DeviceId>,
     pub dump: Option<(DeviceId, f64)>,
+    pub dump_state: Option<String>,
 }
 
 /// Share of the pin's current above which a part counts as part of the chain that feeds it.
@@ -66,8 +68,15 @@ pub fn analyze(
     };
     // A discharge pin on a fixed net (tied to ground or straight to a rail) has no network of
     // its own to solve; a rail is the dead short itself.
-    if cx.partition.net_component.get(dis).copied().flatten().is_none() {
-        return out;
+    if cx
+        .partition
+        .net_component
+        .get(dis)
+        .copied()
+        .flatten()
+        .is_none()
+    {
+        return tied(cx, setup, dis, describe).unwrap_or(out);
     }
     let mut pots = setup.pots.clone();
     if let Some(c) = cx.partition.net_component.get(dis).copied().flatten() {
@@ -105,8 +114,44 @@ pub fn analyze(
             out.chain = carriers(cx, &solved, amps, dis);
         }
     }
-    out.dump = dump(cx, index, setup);
+    if let Some((diode, peak, at)) = dump(cx, index, setup, &points) {
+        out.dump = Some((diode, peak));
+        out.dump_state = Some(describe(&points[at].state));
+    }
     out
+}
+
+/// DIS wired straight to a fixed net. On a rail it is the dead short itself: nothing between
+/// the pin and the supply, and the pin sinks all it can (its own current limit).
+fn tied(
+    cx: &Context<'_>,
+    setup: &Setup,
+    dis: usize,
+    describe: &dyn Fn(&State) -> String,
+) -> Option<Discharge> {
+    let gnd = cx.circuit.devices.get(setup.device)?.pin(PinRole::Gnd);
+    let mut volts = Vec::new();
+    for &corner in sweep::corners(cx) {
+        let state = State {
+            corner,
+            high: Vec::new(),
+            wipers: Default::default(),
+        };
+        let v = cx.fixed_voltage(dis, &state)?
+            - gnd.and_then(|g| cx.fixed_voltage(g, &state)).unwrap_or(0.0);
+        volts.push((v, describe(&state)));
+    }
+    let open_v = Range::from_samples(volts.iter().map(|(v, s)| (*v, s.as_str())))?;
+    if open_v.max <= 1.0 {
+        return None;
+    }
+    let limit = Range::point(stand_in::DISCHARGE_LIMIT_A, open_v.max_state.clone());
+    Some(Discharge {
+        current_a: Some(limit),
+        source_ohms: Some(Range::point(0.0, open_v.max_state.clone())),
+        open_v: Some(open_v),
+        ..Discharge::default()
+    })
 }
 
 /// Resistors, pots and diodes carrying at least [`CHAIN_SHARE`] of the pin's current.
@@ -147,66 +192,86 @@ fn carriers(cx: &Context<'_>, solved: &Solved, amps: f64, dis: usize) -> Vec<Dev
     chain
 }
 
-/// A diode from the timing net straight onto the discharge net (no resistor in series): at
-/// each discharge the capacitor empties through it into the pin. Its peak current is the
-/// diode's current with the capacitor held at the upper threshold and the pin on, at the
-/// highest supply corner — the pin's own current limit included.
-fn dump(cx: &Context<'_>, index: &NetIndex, setup: &Setup) -> Option<(DeviceId, f64)> {
+/// Most a diode drop (and its own series resistance) can account for between the capacitor and
+/// DIS while the pin takes the dump; anything more is a resistor in the path.
+const DUMP_DROP_V: f64 = 1.5;
+
+/// A capacitor dumped into the pin through a steering diode with no resistor in series (a
+/// diode straight from the timing net onto DIS, or through a pot turned to its zero end). With
+/// the capacitor held at the upper threshold and the pin on, the pin's current runs through a
+/// diode from the timing net and the capacitor sits no more than a diode drop above DIS. The
+/// peak is the largest such pin current over pot travel and corners, the pin's own current
+/// limit included.
+fn dump(
+    cx: &Context<'_>,
+    index: &NetIndex,
+    setup: &Setup,
+    points: &[Point],
+) -> Option<(DeviceId, f64, usize)> {
     let (thr, dis) = (setup.timing_net?, setup.dis?);
     if thr == dis {
         return None;
     }
-    let diode = index.on(thr).iter().find_map(|&(d, role)| {
-        let device = &cx.circuit.devices[d];
-        (device.kind.is_diode_like()
-            && role == PinRole::Anode
-            && device.pin(PinRole::Cathode) == Some(dis))
-        .then_some(d)
-    })?;
-    let mut peak: Option<f64> = None;
-    let index_ref = index;
-    for &corner in sweep::corners(cx) {
-        let state = State {
-            corner,
-            high: Vec::new(),
-            wipers: setup.pots.iter().map(|&p| (p, 0.5)).collect(),
-        };
-        let high = sweep::with_level(&state, setup.device, true);
-        let upper = super::phase::thresholds(cx, index_ref, setup, &high)
+    let diodes: Vec<DeviceId> = index
+        .on(thr)
+        .iter()
+        .filter(|&&(d, role)| cx.circuit.devices[d].kind.is_diode_like() && role == PinRole::Anode)
+        .map(|&(d, _)| d)
+        .collect();
+    if diodes.is_empty() {
+        return None;
+    }
+    let data = &cx.circuit.devices.get(setup.device)?.data;
+    let floor = data.value("discharge_current_rated").unwrap_or(0.015);
+    let mut best: Option<(DeviceId, f64, usize)> = None;
+    for (at, point) in points.iter().enumerate() {
+        let high = sweep::with_level(&point.state, setup.device, true);
+        let Some(th) = super::phase::thresholds(cx, index, setup, &high)
             .ok()
-            .flatten()?
-            .upper;
-        let i = diode_current_held(cx, setup, &state, diode, upper).ok().flatten();
-        if let Some(i) = i {
-            peak = Some(peak.map_or(i, |p: f64| p.max(i)));
+            .flatten()
+        else {
+            continue;
+        };
+        let Some(solved) = held_low(cx, setup, &point.state, th.upper) else {
+            continue;
+        };
+        let pin = solved
+            .elements(setup.device)
+            .and_then(|e| e.discharge)
+            .and_then(|e| solved.current(e));
+        let (Some(pin), Some(vt), Some(vd)) = (pin, solved.voltage(thr), solved.voltage(dis))
+        else {
+            continue;
+        };
+        if pin <= floor || vt - vd > DUMP_DROP_V {
+            continue;
+        }
+        let carrier = diodes.iter().copied().find(|&d| {
+            solved
+                .elements(d)
+                .and_then(|e| e.main)
+                .and_then(|e| solved.current(e))
+                .is_some_and(|i| i >= 0.5 * pin)
+        });
+        if let Some(d) = carrier {
+            if best.is_none_or(|(_, p, _)| pin > p) {
+                best = Some((d, pin, at));
+            }
         }
     }
-    peak.filter(|p| *p > 0.0).map(|p| (diode, p))
+    best
 }
 
-fn diode_current_held(
-    cx: &Context<'_>,
-    setup: &Setup,
-    state: &State,
-    diode: DeviceId,
-    volts: f64,
-) -> Result<Option<f64>, DcError> {
-    let (Some(net), Some(component)) = (
-        setup.timing_net,
-        setup.component.and_then(|c| cx.partition.components.get(c)),
-    ) else {
-        return Ok(None);
-    };
+/// The timing component solved with the pin on and the capacitor held at `volts`.
+fn held_low(cx: &Context<'_>, setup: &Setup, state: &State, volts: f64) -> Option<Solved> {
+    let net = setup.timing_net?;
+    let component = setup
+        .component
+        .and_then(|c| cx.partition.components.get(c))?;
     let low = sweep::with_level(state, setup.device, false);
     let mut built = cx.build(component, &low);
-    let Some(node) = built.node(net) else {
-        return Ok(None);
-    };
+    let node = built.node(net)?;
     let ground = built.network.ground();
     built.network.add_voltage_source(node, ground, volts);
-    let solved = built.solve(&cx.options)?;
-    Ok(solved
-        .elements(diode)
-        .and_then(|e| e.main)
-        .and_then(|e| solved.current(e)))
+    built.solve(&cx.options).ok()
 }

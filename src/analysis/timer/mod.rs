@@ -85,6 +85,7 @@ fn empty_facts(setup: &Setup) -> TimerFacts {
         discharge_current_a: None,
         discharge_chain: Vec::new(),
         discharge_dump: None,
+        discharge_dump_state: None,
         timing_capacitor: setup.capacitors.first().copied(),
         pots: setup.pots.clone(),
         stuck: None,
@@ -116,6 +117,7 @@ fn timer_facts(
     facts.discharge_open_v = dis.open_v;
     facts.discharge_chain = dis.chain;
     facts.discharge_dump = dis.dump;
+    facts.discharge_dump_state = dis.dump_state;
     facts.output_current_a = output_current(cx, setup);
     if setup.mode == TimerMode::Unknown {
         return facts;
@@ -148,9 +150,8 @@ fn timer_facts(
     let values = |f: fn(&Sample) -> Option<f64>| -> Vec<Option<f64>> {
         samples.iter().map(|s| s.as_ref().and_then(f)).collect()
     };
-    let range_of = |f: fn(&Sample) -> Option<f64>| {
-        sweep::range(&points, &values(f), &eval_with(f), &describe)
-    };
+    let range_of =
+        |f: fn(&Sample) -> Option<f64>| sweep::range(&points, &values(f), &eval_with(f), &describe);
     facts.upper_threshold_v = range_of(|s| Some(s.upper));
     facts.lower_threshold_v = range_of(|s| Some(s.lower));
     facts.high_s = range_of(Sample::high_s);
@@ -178,16 +179,23 @@ fn timer_facts(
             threshold_v: stuck.threshold_v,
             bias_a: stuck.bias_a,
             bias_ohms: stuck.bias_ohms,
+            discharge_limited: stuck.discharge_limited,
             state: describe(&p.state),
         })
     });
     let mid = mid_state(cx, setup);
-    let th = phase::thresholds(cx, index, setup, &sweep::with_level(&mid, setup.device, true))
-        .ok()
-        .flatten();
+    let th = phase::thresholds(
+        cx,
+        index,
+        setup,
+        &sweep::with_level(&mid, setup.device, true),
+    )
+    .ok()
+    .flatten();
     if let Some(th) = th {
         let v = 0.5 * (th.upper + th.lower);
-        facts.charge_path = path_devices(cx, setup, &sweep::with_level(&mid, setup.device, true), v);
+        facts.charge_path =
+            path_devices(cx, setup, &sweep::with_level(&mid, setup.device, true), v);
         if setup.mode == TimerMode::Astable {
             facts.discharge_path =
                 path_devices(cx, setup, &sweep::with_level(&mid, setup.device, false), v);

@@ -11,7 +11,7 @@ use crate::source::Span;
 use std::collections::BTreeMap;
 
 #[derive(Default)]
-pub(crate) struct Deck {
+struct Deck {
     pub netlist: FlatNetlist,
     pub circuit: Circuit,
     nets: BTreeMap<String, NetId>,
@@ -189,7 +189,7 @@ impl Deck {
 }
 
 /// An astable in the datasheet's form: RA from VCC to DIS, RB from DIS to the capacitor.
-pub(crate) fn astable(ra: f64, rb: f64, c: f64, vcc: f64) -> Deck {
+fn astable(ra: f64, rb: f64, c: f64, vcc: f64) -> Deck {
     let mut d = Deck::default();
     d.v("V1", "vcc", "0", vcc);
     d.timer("XU1", ["0", "tc", "out", "vcc", "ctl", "tc", "dis", "vcc"]);
@@ -235,7 +235,11 @@ fn monostable_width_is_1_1_rc() {
     let trig = t.trigger.as_ref().expect("trigger");
     // 10 µs low plus the part of each 100 ns edge below 3 V (a third of it: the pulse swings
     // from 9 V to 0 V).
-    assert!(rel(trig.low_s.max, 10e-6 + 2.0 * 1e-7 / 3.0) < 1e-3, "{}", trig.low_s.max);
+    assert!(
+        rel(trig.low_s.max, 10e-6 + 2.0 * 1e-7 / 3.0) < 1e-3,
+        "{}",
+        trig.low_s.max
+    );
     assert!(rel(trig.period_s.min, 10e-3) < 1e-9);
     assert!(t.divided_frequency_hz.is_none());
 }
@@ -285,7 +289,9 @@ fn diode_across_rb_makes_the_low_time_a_spike() {
 }
 
 fn cx_name(d: &Deck, device: DeviceId) -> String {
-    d.netlist.elements[d.circuit.devices[device].element].path.clone()
+    d.netlist.elements[d.circuit.devices[device].element]
+        .path
+        .clone()
 }
 
 fn rheostat_monostable(series: Option<f64>) -> Deck {
@@ -341,7 +347,10 @@ fn control_voltage_moves_the_thresholds() {
 #[test]
 fn timer_driving_a_one_shot_hands_over_its_low_time() {
     let mut d = astable(1e3, 10e3, 10e-9, 9.0);
-    d.timer("XU2", ["0", "out", "out2", "vcc", "ctl2", "tc2", "tc2", "vcc"]);
+    d.timer(
+        "XU2",
+        ["0", "out", "out2", "vcc", "ctl2", "tc2", "tc2", "vcc"],
+    );
     d.r("R2", "vcc", "tc2", 10e3);
     d.c("C2", "tc2", "0", 2.2e-9);
     let facts = d.analyze();
@@ -356,13 +365,70 @@ fn timer_driving_a_one_shot_hands_over_its_low_time() {
 }
 
 #[test]
-fn print_facts() {
-    let mut d = astable(47e3, 4.7e3, 10e-9, 12.0);
-    d.d("D1", "tc", "dis");
-    for t in d.analyze() {
-        eprintln!("{t:#?}");
-    }
-    for t in rheostat_monostable(None).analyze() {
-        eprintln!("{t:#?}");
-    }
+fn steering_diodes_and_a_duty_pot_keep_the_period_and_move_the_duty() {
+    // The common PWM astable: the pot's wiper on DIS, its ends through two diodes to the
+    // capacitor. Charge through RA and the a-side, discharge through the b-side: the period
+    // hardly moves over the travel, the duty runs from near RA/(RA + R) to near 1 (common
+    // practice).
+    let mut d = Deck::default();
+    d.v("V1", "vcc", "0", 12.0);
+    d.timer("XU1", ["0", "tc", "out", "vcc", "ctl", "tc", "dis", "vcc"]);
+    d.r("RA", "vcc", "dis", 1e3);
+    d.pot("XRV1", "na", "dis", "nb", 100e3);
+    d.d("D1", "na", "tc");
+    d.d("D2", "tc", "nb");
+    d.c("C1", "tc", "0", 10e-9);
+    let t = &d.analyze()[0];
+    let duty = t.duty.as_ref().expect("duty");
+    assert!(duty.min < 0.1 && duty.max > 0.9, "duty {duty:?}");
+    assert_eq!(duty.min_state, "XRV1 wiper at 0 %");
+    let period = t.period_s.as_ref().expect("period");
+    assert!(period.max / period.min < 1.2, "period {period:?}");
+    // Diode drops lengthen both phases a little past 0.693·101 kΩ·10 nF (555 datasheet).
+    assert!(period.min > 0.693 * 101e3 * 10e-9, "period {period:?}");
+}
+
+#[test]
+fn fifty_percent_astable_charges_from_its_output() {
+    // THR and TRIG on the capacitor, charged and discharged from OUT through one resistor.
+    let mut d = Deck::default();
+    d.v("V1", "vcc", "0", 9.0);
+    d.timer("XU1", ["0", "tc", "out", "vcc", "ctl", "tc", "dis", "vcc"]);
+    d.r("R1", "out", "tc", 10e3);
+    d.c("C1", "tc", "0", 10e-9);
+    let t = &d.analyze()[0];
+    assert_eq!(t.mode, TimerMode::Astable);
+    assert!(t.stuck.is_none());
+    let high = t.high_s.as_ref().expect("high").min;
+    // Output high at 9 V − 1.7 V: R·C·ln((7.3 − 3)/(7.3 − 6)).
+    let expect = 10e3 * 10e-9 * ((7.3f64 - 3.0) / (7.3 - 6.0)).ln();
+    assert!(rel(high, expect) < 0.01, "{high} vs {expect}");
+}
+
+#[test]
+fn a_timer_with_no_timing_capacitor_is_unknown() {
+    let mut d = Deck::default();
+    d.v("V1", "vcc", "0", 9.0);
+    d.pulse("VT", "in", 0.0, 9.0, 1e-6, 1e-6, 1e-3, 2e-3);
+    d.timer("XU1", ["0", "in", "out", "vcc", "ctl", "in", "dis", "vcc"]);
+    let t = &d.analyze()[0];
+    assert_eq!(t.mode, TimerMode::Unknown);
+    assert!(t.high_s.is_none() && t.stuck.is_none());
+}
+
+#[test]
+fn a_rheostat_ra_at_zero_leaves_the_discharge_pin_unable_to_pull_down() {
+    // With RA a bare rheostat at its zero end, the discharge pin sits at its current limit and
+    // its net stays near the supply: the low phase never reaches the trigger threshold.
+    let mut d = Deck::default();
+    d.v("V1", "vcc", "0", 9.0);
+    d.timer("XU1", ["0", "tc", "out", "vcc", "ctl", "tc", "dis", "vcc"]);
+    d.pot("XRA", "vcc", "dis", "dis", 10e3);
+    d.r("RB", "dis", "tc", 10e3);
+    d.c("C1", "tc", "0", 10e-9);
+    let t = &d.analyze()[0];
+    let stuck = t.stuck.as_ref().expect("stuck");
+    assert_eq!(stuck.phase, "low");
+    assert!(stuck.reason.contains("discharge pin"), "{}", stuck.reason);
+    assert!(stuck.state.contains("wiper at 0 %"), "{}", stuck.state);
 }

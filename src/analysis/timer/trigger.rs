@@ -119,7 +119,12 @@ fn fraction_below(a: f64, b: f64, threshold: f64) -> f64 {
 
 /// Time per period a PULSE source holds the trigger below `threshold`, given the trigger's
 /// voltage at the source's `v1` and `v2` levels; and the period.
-pub fn pulse_time_below(wave: &Waveform, at_v1: f64, at_v2: f64, threshold: f64) -> Option<(f64, f64)> {
+pub fn pulse_time_below(
+    wave: &Waveform,
+    at_v1: f64,
+    at_v2: f64,
+    threshold: f64,
+) -> Option<(f64, f64)> {
     let Waveform::Pulse {
         rise,
         fall,
@@ -213,7 +218,9 @@ fn trigger_facts(
             wipers: Default::default(),
         };
         let describe = state.describe(cx, &[]);
-        let th = super::phase::thresholds(cx, index, setup, &state).ok().flatten()?;
+        let th = super::phase::thresholds(cx, index, setup, &state)
+            .ok()
+            .flatten()?;
         thresholds.push((th.lower, describe.clone()));
         let at_low = trig_level(cx, setup, drv, &state, false)?;
         let at_high = trig_level(cx, setup, drv, &state, true)?;
@@ -229,10 +236,10 @@ fn trigger_facts(
             } else {
                 (low.min, low.max, &low.min_state, &low.max_state)
             };
-            lows.push((lo_v, format!("{name} at {lo_s}")));
-            lows.push((hi_v, format!("{name} at {hi_s}")));
-            periods.push((period.min, format!("{name} at {}", period.min_state)));
-            periods.push((period.max, format!("{name} at {}", period.max_state)));
+            lows.push((lo_v, driver_state(&name, lo_s)));
+            lows.push((hi_v, driver_state(&name, hi_s)));
+            periods.push((period.min, driver_state(&name, &period.min_state)));
+            periods.push((period.max, driver_state(&name, &period.max_state)));
         } else {
             let element = cx
                 .circuit
@@ -256,6 +263,26 @@ fn trigger_facts(
     })
 }
 
+/// A driver timer's state, named after it (`U1: RV1 wiper at 0 %`).
+fn driver_state(name: &str, state: &str) -> String {
+    if state == "the steady state" {
+        state.to_string()
+    } else {
+        format!("{name}: {state}")
+    }
+}
+
+/// The state of a one-shot's output: its own (pulse) state and its trigger's.
+fn joint(pulse: &str, trigger: &str) -> String {
+    const STEADY: &str = "the steady state";
+    match (pulse == STEADY, trigger == STEADY) {
+        (true, true) => STEADY.to_string(),
+        (false, true) => pulse.to_string(),
+        (true, false) => format!("trigger at {trigger}"),
+        (false, false) => format!("{pulse}; trigger at {trigger}"),
+    }
+}
+
 /// A one-shot's output timing from its pulse width and its trigger.
 fn apply(cx: &Context<'_>, facts: &mut TimerFacts, trigger: TriggerFacts) {
     let _ = cx;
@@ -267,7 +294,7 @@ fn apply(cx: &Context<'_>, facts: &mut TimerFacts, trigger: TriggerFacts) {
         for (w, ws) in [(width.min, &width.min_state), (width.max, &width.max_state)] {
             for (p, ps) in [(t.min, &t.min_state), (t.max, &t.max_state)] {
                 if let Some((f, d, _)) = divided(w, p) {
-                    let state = format!("pulse at {ws}; trigger at {ps}");
+                    let state = joint(ws, ps);
                     periods.push((1.0 / f, state.clone()));
                     freqs.push((f, state.clone()));
                     duties.push((d, state));
@@ -283,8 +310,8 @@ fn apply(cx: &Context<'_>, facts: &mut TimerFacts, trigger: TriggerFacts) {
             facts.low_s = Some(Range {
                 min: t.min - width.max,
                 max: t.max - width.min,
-                min_state: format!("pulse at {}; trigger at {}", width.max_state, t.min_state),
-                max_state: format!("pulse at {}; trigger at {}", width.min_state, t.max_state),
+                min_state: joint(&width.max_state, &t.min_state),
+                max_state: joint(&width.min_state, &t.max_state),
             });
         }
         if width.max >= t.min {

@@ -1,0 +1,120 @@
+//! Shared pieces of the timer rules: the finding skeleton for a device, labels, names, ratings
+//! with their provenance, and the wording of states and ranges.
+
+use super::units::{format_si, sig3};
+use super::RuleContext;
+use crate::analysis::Range;
+use crate::circuit::{DeviceId, Kind, Rated};
+use crate::diagnostic::{Finding, Severity};
+use crate::netlist::FlatElement;
+
+pub fn element<'a>(cx: &RuleContext<'a>, id: DeviceId) -> Option<&'a FlatElement> {
+    cx.netlist.elements.get(cx.circuit.devices.get(id)?.element)
+}
+
+pub fn kind(cx: &RuleContext<'_>, id: DeviceId) -> Option<Kind> {
+    cx.circuit.devices.get(id).map(|d| d.kind)
+}
+
+/// The element's path as the user reads it (`XDRV.U1`, or `U1` at top level).
+pub fn name(cx: &RuleContext<'_>, id: DeviceId) -> String {
+    element(cx, id).map_or_else(|| format!("device {id}"), |e| e.path.clone())
+}
+
+/// A finding on a device's line, with its instance path and the instance lines that placed it.
+pub fn finding_at(
+    rule: &str,
+    severity: Severity,
+    cx: &RuleContext<'_>,
+    id: DeviceId,
+    message: impl Into<String>,
+) -> Option<Finding> {
+    let element = element(cx, id)?;
+    let mut finding = Finding::new(rule, severity, element.span, message)
+        .with_element(element.name.clone(), element.instance_path());
+    finding.instances = element.instances.clone();
+    Some(finding)
+}
+
+/// Adds a label on a device's line, unless it is the finding's own line or already labelled.
+pub fn label(finding: Finding, cx: &RuleContext<'_>, id: DeviceId, message: &str) -> Finding {
+    match element(cx, id) {
+        Some(e) if e.span != finding.span && !finding.labels.iter().any(|l| l.span == e.span) => {
+            finding.with_label(e.span, message)
+        }
+        _ => finding,
+    }
+}
+
+/// A timer rating with its provenance, or the kind's documented default.
+pub fn rated_or(cx: &RuleContext<'_>, id: DeviceId, key: &str, bipolar: f64, cmos: f64) -> Rated {
+    let device = cx.circuit.devices.get(id);
+    if let Some(r) = device.and_then(|d| d.data.get(key)) {
+        return r.clone();
+    }
+    let kind = device.map_or(Kind::Timer555, |d| d.kind);
+    Rated {
+        value: if kind == Kind::Timer555Cmos {
+            cmos
+        } else {
+            bipolar
+        },
+        source: format!("built-in default for {kind} (from memory)"),
+    }
+}
+
+/// ` (XRV1 wiper at 0 %)`, or nothing for a circuit with a single state.
+pub fn at_state(state: &str) -> String {
+    if state.is_empty() || state == "the steady state" {
+        String::new()
+    } else {
+        format!(" ({state})")
+    }
+}
+
+/// `4.2 V` or `4.2–5.1 V`.
+pub fn range_text(range: &Range, unit: &str) -> String {
+    let (lo, hi) = (format_si(range.min, unit), format_si(range.max, unit));
+    if lo == hi {
+        hi
+    } else {
+        format!("{lo} to {hi}")
+    }
+}
+
+/// `90 %`.
+pub fn percent(fraction: f64) -> String {
+    format!("{} %", sig3(fraction * 100.0))
+}
+
+/// A device's resistance as the netlist gives it (resistor value or pot track).
+pub fn ohms_of(cx: &RuleContext<'_>, id: DeviceId) -> Option<f64> {
+    let device = cx.circuit.devices.get(id)?;
+    device.data.value("resistance").or_else(|| {
+        let e = element(cx, id)?;
+        e.value
+            .and_then(|v| v.known())
+            .or_else(|| e.param("r").and_then(|v| v.known()))
+    })
+}
+
+/// A capacitor's value as the netlist gives it.
+pub fn farads_of(cx: &RuleContext<'_>, id: DeviceId) -> Option<f64> {
+    let device = cx.circuit.devices.get(id)?;
+    device
+        .data
+        .value("capacitance")
+        .or_else(|| element(cx, id)?.value.and_then(|v| v.known()))
+}
+
+pub fn is_pot(cx: &RuleContext<'_>, id: DeviceId) -> bool {
+    kind(cx, id) == Some(Kind::Potentiometer)
+}
+
+pub fn is_resistor(cx: &RuleContext<'_>, id: DeviceId) -> bool {
+    kind(cx, id) == Some(Kind::Resistor)
+}
+
+pub fn is_diode(cx: &RuleContext<'_>, id: DeviceId) -> bool {
+    kind(cx, id).is_some_and(Kind::is_diode_like)
+}
