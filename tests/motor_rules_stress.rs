@@ -12,9 +12,7 @@ use kickback::rules::{
     load_overvoltage, pot_wiper_overcurrent, resistor_overpower, supply_out_of_range,
     switch_dissipation, switch_voltage_margin,
 };
-use motor_rules_kit::{
-    driver, freewheel, load, point, range, rated, supply, switch, timer, value, Kit,
-};
+use motor_rules_kit::{freewheel, load, point, range, rated, supply, switch, timer, value, Kit};
 
 use PinRole::*;
 
@@ -458,22 +456,54 @@ fn a_pwm_motor_rail_with_only_decoupling_needs_bulk() {
 }
 
 #[test]
-fn a_bridge_that_pumps_its_rail_needs_more_bulk() {
-    let mut kit = pwm_pump(Some("CB vm 0 470u"));
-    kit.analysis.switches[0].side = Side::Bridge;
-    let e = kit.circuit.devices.len() - 1;
-    kit.circuit.devices[e]
-        .data
-        .values
-        .get_mut("capacitance")
-        .unwrap()
-        .value = 10e-6;
-    let l = &mut kit.analysis.loads[0];
+fn a_full_bridge_that_pumps_its_rail_needs_more_bulk() {
+    let mut kit = Kit::new();
+    let v = supply(&mut kit, "V12 v12 0 DC 12", 12.0);
+    let ha = kit.part(
+        "MHA a ga v12 v12 PCH",
+        Kind::Pmos,
+        &[(Drain, "a"), (Gate, "ga"), (Source, "v12"), (Bulk, "v12")],
+        &[],
+    );
+    let lb = kit.part(
+        "MLB b gb 0 0 NCH",
+        Kind::Nmos,
+        &[(Drain, "b"), (Gate, "gb"), (Source, "0"), (Bulk, "0")],
+        &[],
+    );
+    let hoist = kit.part(
+        "XH a b HOIST12",
+        Kind::DcMotor,
+        &[(Pos, "a"), (Neg, "b")],
+        &[],
+    );
+    kit.two("CB v12 0 22u", Kind::Capacitor, &[("capacitance", 22e-6)]);
+    let (a, b) = (kit.net("a"), kit.net("b"));
+    for (dev, k, net) in [(ha, Kind::Pmos, a), (lb, Kind::Nmos, b)] {
+        let mut sw = switch(dev, k, Side::Bridge);
+        sw.rail_supply = Some(v);
+        sw.rail_v = Some(point(12.0, "V12"));
+        sw.switched_net = Some(net);
+        sw.load = Some(0);
+        sw.branch = vec![hoist];
+        sw.inductive = true;
+        kit.analysis.switches.push(sw);
+    }
+    let mut l = load(hoist, Kind::DcMotor);
     l.inductance = rated(10e-3, "from config");
-    l.current_a = Some(point(3.0, "on"));
-    // ΔV = √(144 + 0.01 × 9 / 10.1 µF) − 12 = 85 V: far above 10 %.
+    l.current_a = Some(point(4.0, "on"));
+    kit.analysis.loads.push(l);
+    // ΔV = √(144 + 0.01 × 16 / 22 µF) − 12 = √7417 − 12 = 74.1 V: far above 10 %.
     let found = kit.show(bulk_capacitance_missing::check);
     assert_eq!(found.len(), 1, "{found:#?}");
-    assert!(value(&found[0], "rail_pump") > 80.0);
-    let _ = driver;
+    assert!(
+        (value(&found[0], "rail_pump") - 74.12).abs() < 0.05,
+        "{}",
+        value(&found[0], "rail_pump")
+    );
+    // C ≥ L·I² / ((1.1·V)² − V²) = 0.16 / 30.24 = 5.3 mF → E6 6.8 mF.
+    assert!((value(&found[0], "suggested_capacitance") - 6.8e-3).abs() < 1e-9);
+    // The same winding on a half-bridge leg to ground circulates its current: no pumping.
+    kit.analysis.switches.truncate(1);
+    assert!(kit.run(bulk_capacitance_missing::check).is_empty());
 }

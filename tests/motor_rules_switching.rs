@@ -134,7 +134,7 @@ fn a_starved_base_is_base_underdrive_with_a_base_resistor_fix() {
     assert!(f.message.contains("V_CE = 4.8 V"), "{}", f.message);
     // (3.3 − 0.75) / 50 mA = 51 Ω → E12 down 47 Ω.
     assert!(
-        f.help.as_deref().unwrap().contains("RBV at 47 Ω"),
+        f.help.as_deref().unwrap().contains("set RBV to 47 Ω"),
         "{:?}",
         f.help
     );

@@ -92,6 +92,9 @@ pub struct StuckPhase {
     /// would reach the threshold), with the resistance it flows through.
     pub bias_a: Option<f64>,
     pub bias_ohms: Option<f64>,
+    /// The discharge pin runs at its own current limit: the supply reaches DIS through almost
+    /// nothing, so the pin cannot pull the capacitor down.
+    pub discharge_limited: bool,
     /// The state in which it was found (`V1 at min, RV1 wiper at 100 %`).
     pub state: String,
 }

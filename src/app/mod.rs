@@ -58,7 +58,7 @@ where
     };
     let code = match &cli.command {
         Command::Check { paths } => check(paths, &cli.global, env, &mut console),
-        Command::Report { .. } => report_command(&cli.global, &mut console),
+        Command::Report { file } => report_command(file, &cli.global, &mut console),
         Command::Rules => {
             console.print(&catalogue::table(crate::rules::REGISTRY));
             EXIT_CLEAN
@@ -99,15 +99,7 @@ fn check(
     env: &Environment,
     console: &mut Console<'_>,
 ) -> u8 {
-    let defaults = Limits::default();
-    let options = CheckOptions {
-        limits: Limits {
-            max_elements: global.max_elements.unwrap_or(defaults.max_elements),
-            allow_outside_includes: global.allow_outside_includes,
-            ..defaults
-        },
-        config_path: global.config.clone(),
-    };
+    let options = check_options(global);
     if let Some(config) = &global.config {
         if let Err(message) = preflight_config(config) {
             console.error(&message);
@@ -205,13 +197,43 @@ fn preflight_config(path: &Path) -> Result<(), String> {
     Config::load(path).map(|_| ()).map_err(|e| e.to_string())
 }
 
-fn report_command(global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
+fn check_options(global: &GlobalArgs) -> CheckOptions {
+    let defaults = Limits::default();
+    CheckOptions {
+        limits: Limits {
+            max_elements: global.max_elements.unwrap_or(defaults.max_elements),
+            allow_outside_includes: global.allow_outside_includes,
+            ..defaults
+        },
+        config_path: global.config.clone(),
+    }
+}
+
+fn report_command(file: &Path, global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
     if !matches!(global.format, Format::Human | Format::Json) {
         console.error("report prints --format human or --format json");
         return EXIT_FAILURE;
     }
-    console.write_err("report: not available yet\n");
-    EXIT_FAILURE
+    if !file.is_file() {
+        console.error(&format!("cannot read {}: no such file", file.display()));
+        return EXIT_FAILURE;
+    }
+    match crate::check::report_file(file, &check_options(global)) {
+        Ok(facts) => {
+            let text = match global.format {
+                Format::Json => {
+                    report::facts::render_json(&facts.analysis, &facts.netlist, &facts.circuit)
+                }
+                _ => report::facts::render_human(&facts.analysis, &facts.netlist, &facts.circuit),
+            };
+            console.print(&text);
+            EXIT_CLEAN
+        }
+        Err(e) => {
+            console.error(&format!("cannot report on {}: {e}", file.display()));
+            EXIT_FAILURE
+        }
+    }
 }
 
 fn explain(rule: &str, console: &mut Console<'_>) -> u8 {

@@ -3,8 +3,8 @@
 
 use super::eseries::{ohms, round_down, E12};
 use super::switch_util::{
-    drive_level, finding_at, kind, label, load_device, load_of, name, rated, saturated_current,
-    weakest_magnitude,
+    drive_level, finding_at, held_off, kind, label, load_device, load_of, name, rated,
+    saturated_current, shorted_through, weakest_magnitude,
 };
 use super::units::format_si;
 use super::RuleContext;
@@ -22,7 +22,7 @@ const VBE_ON_V: f64 = 0.8;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     for sw in &cx.analysis.switches {
-        if kind(cx, sw.device).is_some_and(Kind::is_bjt) {
+        if kind(cx, sw.device).is_some_and(Kind::is_bjt) && !held_off(cx, sw) {
             out.extend(finding(cx, sw));
         }
     }
@@ -32,7 +32,11 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 /// finds through the switch and the load, whichever is larger.
 fn collector_current(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<f64> {
     let saturated = saturated_current(cx, sw, VCE_SAT_V);
-    let through_switch = sw.current_a.as_ref().map(|r| r.max.abs());
+    let through_switch = sw
+        .current_a
+        .as_ref()
+        .map(|r| r.max.abs())
+        .filter(|_| !shorted_through(cx, sw));
     let through_load = load_of(cx, sw)
         .and_then(|l| l.current_a.as_ref())
         .map(|r| r.max.abs());
@@ -149,17 +153,18 @@ fn help(
             match round_down(r, &E12) {
                 Some(e12) => {
                     let what = resistor.map_or_else(
-                        || format!("a base resistor of {}", ohms(e12)),
-                        |r| format!("{} at {}", name(cx, r), ohms(e12)),
+                        || format!("put a base resistor of {}", ohms(e12)),
+                        |r| format!("set {} to {}", name(cx, r), ohms(e12)),
                     );
                     format!(
-                        "{what} gives {} from the driver's {} high level ({}: ({} − V_BE {}) / \
-                         (I_C/10), rounded down to E12)",
-                        format_si((l.high - vbe) / e12, "A"),
+                        "{what} in front of {q}'s base: from {} ({}) it gives {}; that is \
+                         ({} − V_BE {}) / (I_C/10) = {}, rounded down to E12",
                         format_si(l.high, "V"),
                         l.how,
+                        format_si((l.high - vbe) / e12, "A"),
                         format_si(l.high, "V"),
-                        format_si(vbe, "V")
+                        format_si(vbe, "V"),
+                        ohms(r)
                     )
                 }
                 None => format!("drive {q}'s base with {}", format_si(need, "A")),

@@ -83,14 +83,14 @@ fn finding(
         .or_else(|| switches.iter().find_map(|s| rail(cx, s)).map(|r| r.v.max))
         .filter(|v| *v > 0.0)?;
     let caps = rail_capacitors(cx, index, net);
-    let total: f64 = caps.iter().map(|(_, c)| c).sum();
+    let total = caps.iter().fold(0.0, |sum, (_, c)| sum + c);
     let rail_name = super::switch_util::net_name(cx, net);
-    // Energy a bridge hands back to the rail at turn-off: the largest ½·L·I² behind it.
+    // Energy a full bridge hands back to the rail at turn-off: the largest ½·L·I² behind it.
     let returned = switches
         .iter()
         .filter(|s| s.side == Side::Bridge)
         .filter_map(|s| {
-            let l = load_of(cx, s)?;
+            let l = load_of(cx, s).filter(|l| between_legs(cx, l.device))?;
             let ind = l.inductance.as_ref()?.value;
             let i = l.current_a.as_ref()?.max.abs();
             Some((ind * i * i, s.device))
@@ -197,4 +197,21 @@ fn finding(
         f = f.with_value("rail_pump", dv, "V", "computed");
     }
     Some(f)
+}
+
+/// True when both ends of a load sit on bridge legs' switched nodes (a full bridge). Only then
+/// does the winding's current at turn-off flow back through the opposite switches' body diodes
+/// into the rail; across a half-bridge leg to a rail it circulates through one diode instead.
+fn between_legs(cx: &RuleContext<'_>, load: DeviceId) -> bool {
+    let legs: Vec<NetId> = cx
+        .analysis
+        .switches
+        .iter()
+        .filter(|s| s.side == Side::Bridge)
+        .filter_map(|s| s.switched_net)
+        .collect();
+    cx.circuit
+        .devices
+        .get(load)
+        .is_some_and(|d| d.pins.len() == 2 && d.pins.iter().all(|p| legs.contains(&p.net)))
 }

@@ -45,17 +45,21 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &CapacitorFacts) -> Op
         return None;
     };
     let c = name(cx, id);
-    let why = if severity == Severity::Error {
-        "above its rating: the dielectric breaks down, and an electrolytic vents or bursts"
+    let message = if severity == Severity::Error {
+        format!(
+            "{c} sees {} ({state}), above its {} rating: the dielectric breaks down, and an \
+             electrolytic vents or bursts",
+            format_si(v, "V"),
+            format_si(rating.value, "V")
+        )
     } else {
-        "above two thirds of its rating: an electrolytic ages fast and has no room left for \
-         spikes"
+        format!(
+            "{c} sees {} ({state}), above two thirds of its {} rating: an electrolytic ages fast \
+             and has no room left for spikes",
+            format_si(v, "V"),
+            format_si(rating.value, "V")
+        )
     };
-    let message = format!(
-        "{c} sees {} ({state}) against its {} rating, {why}",
-        format_si(v, "V"),
-        format_si(rating.value, "V")
-    );
     let mut f = finding_at(RULE, severity, cx, id, message)?;
     if let Some(d) = cx.circuit.devices.get(id) {
         for pin in &d.pins {

@@ -23,13 +23,19 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     }
 }
 
-/// The supply a chain of parts reaches: a voltage source from one of their nets to ground.
-fn supply_of(cx: &RuleContext<'_>, chain: &[DeviceId]) -> Option<DeviceId> {
-    let nets: Vec<usize> = chain
-        .iter()
-        .filter_map(|&d| cx.circuit.devices.get(d))
-        .flat_map(|d| d.pins.iter().map(|p| p.net))
-        .collect();
+/// The supply a chain of parts reaches (a voltage source from one of their nets to ground), or
+/// with no chain the one on the discharge pin's own net.
+fn supply_of(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<DeviceId> {
+    let nets: Vec<usize> = if t.discharge_chain.is_empty() {
+        let dis = cx.circuit.devices.get(t.device)?.pin(PinRole::Dis)?;
+        vec![dis]
+    } else {
+        t.discharge_chain
+            .iter()
+            .filter_map(|&d| cx.circuit.devices.get(d))
+            .flat_map(|d| d.pins.iter().map(|p| p.net))
+            .collect()
+    };
     let grounded = |n: usize| cx.circuit.nets.get(n).is_some_and(|n| n.is_ground);
     cx.circuit.devices.iter().enumerate().find_map(|(id, d)| {
         if d.kind != Kind::VoltageSource {
@@ -78,7 +84,7 @@ fn overcurrent(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
         (_, _, Some((r, value))) => (r, Some(value)),
         (_, None, None) => (t.discharge_chain.first().copied().unwrap_or(t.device), None),
     };
-    let supply = supply_of(cx, &t.discharge_chain);
+    let supply = supply_of(cx, t);
     let supply_v = open_v
         .map(|v| v.max)
         .or_else(|| t.supply_v.as_ref().map(|s| s.max));
@@ -136,6 +142,13 @@ fn overcurrent(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
                     format_si(rated.value, "A"),
                 ))
             }
+            None if target == t.device => {
+                let series = eseries::round_up(needed.max(1.0), &eseries::E12)?;
+                Some(format!(
+                    "DIS must not sit on the supply: connect it to the timing network, with at least {} (E12) between it and the supply ({base})",
+                    ohms(series),
+                ))
+            }
             None => {
                 let series = eseries::round_up((needed - present).max(1.0), &eseries::E12)?;
                 Some(format!(
@@ -164,15 +177,15 @@ fn overcurrent(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
     if let Some(h) = help {
         f = f.with_help(h);
     }
-    f = f.with_value(
-        "discharge_current",
-        current.max,
-        "A",
+    let current_source = if target == t.device && dead_short {
+        "the pin's own current limit (behavioural stand-in, from memory)".to_string()
+    } else {
         format!(
             "computed: DC solve with the pin on{}",
             at_state(&current.max_state)
-        ),
-    );
+        )
+    };
+    f = f.with_value("discharge_current", current.max, "A", current_source);
     f = f.with_value("discharge_current_max", max.value, "A", max.source.clone());
     f = f.with_value(
         "discharge_current_rated",

@@ -3,11 +3,11 @@
 
 use super::switch_util::{
     branch_ends, diode_hint, finding_at, is_pwm, kind, label, load_device, load_of, main_terminals,
-    name, net_name, rail, NetIndex,
+    name, net_name, rail, saturated_current, NetIndex,
 };
 use super::units::format_si;
 use super::RuleContext;
-use crate::analysis::{Side, SwitchFacts};
+use crate::analysis::{Range, Side, SwitchFacts};
 use crate::circuit::{DeviceId, Kind};
 use crate::diagnostic::{Finding, Severity};
 
@@ -54,11 +54,28 @@ fn finding(
     let inductance = facts
         .and_then(|l| l.inductance.clone())
         .or_else(|| super::switch_util::rated(cx, load, "inductance"));
-    let current = facts
+    let solved = facts
         .and_then(|l| l.current_a.as_ref())
         .or(sw.current_a.as_ref())
         .filter(|r| r.max > 0.0);
-    let energy = facts.and_then(|l| l.stored_energy_j).or_else(|| {
+    // A starved switch carries less than the load draws once it saturates: rate for that.
+    let current = match (solved, saturated_current(cx, sw, 0.0)) {
+        (Some(r), Some(full)) if full > r.max => Some(Range::point(
+            full,
+            format!("with {} fully on", name(cx, sw.device)),
+        )),
+        (Some(r), _) => Some(r.clone()),
+        (None, Some(full)) => Some(Range::point(
+            full,
+            format!("with {} fully on", name(cx, sw.device)),
+        )),
+        (None, None) => None,
+    };
+    let current = current.as_ref();
+    let energy_fact = facts
+        .and_then(|l| l.stored_energy_j)
+        .filter(|_| current.map(|c| c.max) == solved.map(|s| s.max));
+    let energy = energy_fact.or_else(|| {
         let l = inductance.as_ref()?.value;
         let i = current?.max;
         Some(0.5 * l * i * i)
@@ -166,7 +183,7 @@ fn help(
     load_name: &str,
     ends: Option<super::switch_util::BranchEnds>,
     rail: Option<&super::switch_util::Rail>,
-    current: Option<&crate::analysis::Range>,
+    current: Option<&Range>,
     across_switch: &[DeviceId],
 ) -> String {
     let rail_v = rail.map_or(0.0, |r| r.v.max);

@@ -7,8 +7,8 @@
 //! its on-resistance low.
 
 use super::switch_util::{
-    drive_level, finding_at, in_conduction_sense, kind, label, load_device, load_of, mos_gain,
-    name, rated_or, rds_at,
+    drive_level, finding_at, held_off, in_conduction_sense, kind, label, load_device, load_of,
+    mos_gain, name, rated_or, rds_at, saturated_current, shorted_through,
 };
 use super::units::format_si;
 use super::RuleContext;
@@ -19,12 +19,18 @@ use crate::diagnostic::{Finding, Severity};
 const RULE: &str = "gate-underdrive";
 /// Margin above the edge of the triode region (DESIGN: 1 V).
 const MARGIN_V: f64 = 1.0;
+/// A drive this close to `vgs_rated` counts as the rated drive (the note would only restate
+/// solver and divider rounding).
+const RATED_TOLERANCE_V: f64 = 0.1;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     for sw in &cx.analysis.switches {
         let Some(k) = kind(cx, sw.device).filter(|k| k.is_mos()) else {
             continue;
         };
+        if held_off(cx, sw) {
+            continue;
+        }
         let boosted = sw.driver.as_ref().is_some_and(|d| d.boosted);
         if sw.follower && !boosted {
             out.extend(follower(cx, sw, k));
@@ -52,16 +58,23 @@ fn thresholds(cx: &RuleContext<'_>, sw: &SwitchFacts) -> (Rated, Rated) {
     (th, rated)
 }
 
-/// The current the switch must carry: the larger of what the DC engine finds through the switch
-/// and through its load.
+/// The current the switch must carry: the largest of what the DC engine finds through the
+/// switch and through its load, and what the load draws with the switch fully on.
 fn load_current(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<f64> {
-    let through_switch = sw.current_a.as_ref().map(|r| r.max);
+    let through_switch = sw
+        .current_a
+        .as_ref()
+        .map(|r| r.max)
+        .filter(|_| !shorted_through(cx, sw));
     let through_load = load_of(cx, sw)
         .and_then(|l| l.current_a.as_ref())
         .map(|r| r.max);
-    through_switch
+    // A starved switch limits its own current; the load wants what it draws with the switch
+    // fully on.
+    let full_on = saturated_current(cx, sw, 0.0);
+    [through_switch, through_load, full_on]
         .into_iter()
-        .chain(through_load)
+        .flatten()
         .reduce(f64::max)
         .filter(|i| *i > 0.0)
 }
@@ -207,7 +220,31 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
         .as_ref()
         .map(|r| r.max)
         .or_else(|| gain.as_ref().and_then(|g| rds_at(g, vgs, th.value)));
-    let (severity, message) = if vgs < need {
+    let th_min = rated_or(
+        cx,
+        sw.device,
+        "vgs_th_min",
+        2.0,
+        "standard-threshold default (common practice)",
+    );
+    let (severity, message) = if vgs < th_min.value {
+        let load = load_device(cx, sw).map_or_else(|| "its load".to_string(), |l| name(cx, l));
+        (
+            Severity::Error,
+            format!(
+                "{s}'s gate gets only {}{from} ({state}): below its lowest threshold of {}, so \
+                 {s} never turns on and {load} never runs; it needs {} ({reason_short})",
+                format_si(vgs, "V"),
+                format_si(th_min.value, "V"),
+                format_si(need, "V"),
+                reason_short = if overdrive.is_some() {
+                    "vgs_th_max + √(2·I/k) + 1 V at the load's current"
+                } else {
+                    "halfway between vgs_th_max and vgs_rated"
+                }
+            ),
+        )
+    } else if vgs < need {
         let mut m = format!(
             "{s}'s gate gets only {}{from} ({state}): {reason}",
             format_si(vgs, "V")
@@ -219,7 +256,7 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
             ));
         }
         (Severity::Error, m)
-    } else if vgs < rated.value {
+    } else if vgs < rated.value - RATED_TOLERANCE_V {
         let mut m = format!(
             "{s}'s gate gets {}{from} ({state}), below the {} its on-resistance is rated at",
             format_si(vgs, "V"),

@@ -1,7 +1,9 @@
 //! `load-overvoltage`: a load's effective or peak voltage exceeds its rating. See
 //! `rules/load-overvoltage.md`.
 
-use super::switch_util::{duty_text, finding_at, label, name, supply_facts, timer_facts, NetIndex};
+use super::switch_util::{
+    dc_resistance, duty_text, finding_at, label, name, supply_facts, timer_facts, NetIndex,
+};
 use super::units::{format_si, percent};
 use super::RuleContext;
 use crate::analysis::LoadFacts;
@@ -29,8 +31,16 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, load: &LoadFacts) -> Option<F
     let rated = load.rated_v.as_ref().filter(|r| r.value > 0.0)?;
     let peak = load.peak_v.as_ref()?;
     let effective = load.effective_v.as_ref().unwrap_or(peak);
-    let (pk, eff) = (peak.max.abs(), effective.max.abs());
+    let (mut pk, mut eff) = (peak.max.abs(), effective.max.abs());
     let r = rated.value;
+    // A switch stuck in its linear region hides the rail from the load; once its drive is
+    // fixed the load gets the rail. Judge the load on that.
+    let starved = full_on_peak(cx, load).filter(|full| *full > pk);
+    if let Some(full) = starved {
+        let scale = if pk > 0.0 { eff / pk } else { 1.0 };
+        eff = full * scale.clamp(0.0, 1.0);
+        pk = full;
+    }
     let severity = if eff > EFFECTIVE_ERROR * r || pk > PEAK_ERROR * r {
         Severity::Error
     } else if eff > EFFECTIVE_WARNING * r || pk > PEAK_WARNING * r {
@@ -49,12 +59,21 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, load: &LoadFacts) -> Option<F
         .as_ref()
         .map_or_else(String::new, |d| format!(" at duty {}", duty_text(d)));
     let mut message = format!(
-        "{l} is rated {} but sees {} peak and {} {measure}{duty_part} ({}): ",
+        "{l} is rated {} but sees {} peak and {} {measure}{duty_part} ({}",
         format_si(r, "V"),
         format_si(pk, "V"),
         format_si(eff, "V"),
         effective.max_state
     );
+    if starved.is_some() {
+        let sw = load
+            .switch
+            .map_or_else(|| "its switch".into(), |s| name(cx, s));
+        message.push_str(&format!(
+            "; with {sw} fully on — it now runs in its linear region and drops most of the rail"
+        ));
+    }
+    message.push_str("): ");
     let ratio = |v: f64| super::units::sig3(v / r);
     let over = if severity == Severity::Error {
         if eff > EFFECTIVE_ERROR * r {
@@ -167,4 +186,24 @@ fn supply_of(cx: &RuleContext<'_>, index: &NetIndex, load: &LoadFacts) -> Option
                 .and_then(|sw| cx.analysis.switches.iter().find(|s| s.device == sw))
                 .and_then(|s| s.rail_supply)
         })
+}
+
+/// The load's peak voltage with its switch fully on, when the switch now runs in its linear
+/// region (a starved gate or base, a follower): the rail shared over the branch's resistances.
+fn full_on_peak(cx: &RuleContext<'_>, load: &LoadFacts) -> Option<f64> {
+    let sw = cx
+        .analysis
+        .switches
+        .iter()
+        .find(|s| Some(s.device) == load.switch)?;
+    if !(sw.linear_region || sw.follower) {
+        return None;
+    }
+    let rail = super::switch_util::rail(cx, sw)?.v.max;
+    let own = dc_resistance(cx, load.device);
+    let total: Option<f64> = sw.branch.iter().map(|&d| dc_resistance(cx, d)).sum();
+    match (own, total) {
+        (Some(r), Some(t)) if t > 0.0 => Some(rail * r / t),
+        _ => Some(rail),
+    }
 }

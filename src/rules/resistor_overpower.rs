@@ -108,6 +108,11 @@ fn finding(cx: &RuleContext<'_>, facts: &ResistorFacts) -> Option<Finding> {
         ),
     };
     let plain = kind(cx, id) == Some(Kind::Resistor);
+    if !plain {
+        help.push_str(
+            ", or a fixed resistor in series that keeps the current down at the end of the travel",
+        );
+    }
     if let Some(ohm) = dc_resistance(cx, id).filter(|r| plain && *r > 0.0) {
         // With the same voltage across it, P = V²/R falls as R rises.
         let volts = (p * ohm).sqrt();

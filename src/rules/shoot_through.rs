@@ -6,7 +6,7 @@
 //! drive that passes through the band where both conduct on every edge (warning).
 
 use super::switch_util::{
-    element, finding_at, in_conduction_sense, kind, label, name, rail, rated_or,
+    element, finding_at, held_off, in_conduction_sense, kind, label, name, rail, rated_or,
 };
 use super::units::format_si;
 use super::RuleContext;
@@ -26,6 +26,9 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         else {
             continue;
         };
+        if held_off(cx, sw) || held_off(cx, partner) {
+            continue;
+        }
         // Each leg once.
         if partner.device < sw.device && partner.bridge_partner == Some(sw.device) {
             continue;

@@ -6,7 +6,7 @@
 
 use super::switch_util::{
     duty_text, finding_at, in_conduction_sense, kind, label, load_device, mos_gain, name, rated,
-    rated_or, rds_at,
+    rated_or, rds_at, shorted_through,
 };
 use super::units::format_si;
 use super::RuleContext;
@@ -24,6 +24,9 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 }
 
 fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
+    if shorted_through(cx, sw) {
+        return None;
+    }
     let loss = sw.dissipation_w.as_ref()?;
     let p = loss.max;
     let k = kind(cx, sw.device)?;
@@ -49,7 +52,7 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
         .as_ref()
         .map(|r| in_conduction_sense(r, k).weakest);
     let threshold = rated(cx, sw.device, "vgs_th_max").map(|r| r.value);
-    let rds = if k.is_mos() {
+    let rds = if k.is_mos() && !sw.linear_region && !sw.follower {
         sw.rds_on_ohm
             .as_ref()
             .map(|r| r.max)
@@ -72,9 +75,10 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
             format_si(v, "V")
         ));
     }
-    if k.is_bjt() {
+    if k.is_bjt() || rds.is_none() {
         if let Some(v) = sw.vds_on_v.as_ref() {
-            how.push(format!("V_CE = {}", format_si(v.max.abs(), "V")));
+            let which = if k.is_bjt() { "V_CE" } else { "V_DS" };
+            how.push(format!("{which} = {}", format_si(v.max.abs(), "V")));
         }
     }
     if let Some(d) = &sw.duty {

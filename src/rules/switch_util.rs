@@ -144,10 +144,11 @@ pub fn in_conduction_sense(range: &Range, kind: Kind) -> Drive {
             strongest_state: range.max_state.clone(),
         }
     } else {
+        // 0 − x rather than −x, so a zero reads as 0, not −0.
         Drive {
-            weakest: -range.max,
+            weakest: 0.0 - range.max,
             weakest_state: range.max_state.clone(),
-            strongest: -range.min,
+            strongest: 0.0 - range.min,
             strongest_state: range.min_state.clone(),
         }
     }
@@ -378,7 +379,7 @@ pub fn drive_level(cx: &RuleContext<'_>, driver: DeviceId) -> Option<DriveLevel>
             Some(DriveLevel {
                 high,
                 low,
-                how: format!("{who}'s levels"),
+                how: format!("{who}'s high level"),
             })
         }
         Kind::Timer555 | Kind::Timer555Cmos => {
@@ -587,4 +588,34 @@ pub fn weakest_magnitude(range: &Range) -> (f64, String) {
     } else {
         (0.0, range.max_state.clone())
     }
+}
+
+/// True when something other than the load flows through the switch in the on state: a
+/// freewheel diode fitted backwards, or one whose reverse rating is below the rail so that it
+/// breaks down. The switch's current and loss then describe that short, which its own rule
+/// reports, not the switch's drive.
+pub fn shorted_through(cx: &RuleContext<'_>, sw: &SwitchFacts) -> bool {
+    let rail_v = rail(cx, sw).map(|r| r.v.max);
+    sw.freewheel.iter().any(|fw| {
+        let broken_down = matches!(kind(cx, fw.device), Some(Kind::Diode | Kind::Schottky))
+            && match (rated(cx, fw.device, "vrrm"), rail_v) {
+                (Some(v), Some(rail)) => v.value < rail,
+                _ => false,
+            };
+        fw.reversed || broken_down
+    })
+}
+
+/// True when a switch's gate (base) is wired straight to its own source (emitter): it is held
+/// off on purpose (an unused bridge switch) and no drive rule applies to it.
+pub fn held_off(cx: &RuleContext<'_>, sw: &SwitchFacts) -> bool {
+    let Some(d) = device(cx, sw.device) else {
+        return false;
+    };
+    let (control, reference) = if d.kind.is_bjt() {
+        (d.pin(PinRole::Base), d.pin(PinRole::Emitter))
+    } else {
+        (d.pin(PinRole::Gate), d.pin(PinRole::Source))
+    };
+    control.is_some() && control == reference
 }

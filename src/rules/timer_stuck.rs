@@ -32,26 +32,30 @@ fn stuck(cx: &RuleContext<'_>, t: &TimerFacts, s: &StuckPhase) -> Option<Finding
         (true, _) => (
             "high phase",
             "threshold",
-            "its output sticks high and it never oscillates",
+            "its output sticks high: no oscillation",
         ),
         (false, _) => (
             "low phase",
             "trigger threshold",
-            "its output sticks low and it never oscillates",
+            "its output sticks low: no oscillation",
         ),
     };
     let resistive = |d: &usize| is_resistor(cx, *d) || is_pot(cx, *d);
+    // Bias-limited: the big resistor comes first. Otherwise a pot at its end is the usual cause.
+    let pot_first = s.bias_a.is_none() || s.discharge_limited;
     let target = s
         .devices
         .iter()
         .copied()
-        .find(resistive)
+        .find(|&d| pot_first && is_pot(cx, d))
+        .or_else(|| s.devices.iter().copied().find(resistive))
         .or(t.timing_capacitor)
         .unwrap_or(t.device);
     let target_name = name(cx, target);
     let settle = format!(
-        "{cap} settles at {}, short of the {} {comparator}",
+        "{cap} settles at {}, {} the {} {comparator}",
         format_si(s.settles_v, "V"),
+        if charging { "short of" } else { "above" },
         format_si(s.threshold_v, "V"),
     );
     let message = match (s.bias_a, s.bias_ohms) {
@@ -63,7 +67,7 @@ fn stuck(cx: &RuleContext<'_>, t: &TimerFacts, s: &StuckPhase) -> Option<Finding
             ohms(r),
         ),
         _ => format!(
-            "{timer} never ends its {phase}{}: {}; {settle}, and {consequence}",
+            "{timer} never ends its {phase}{}: {}; {settle}, so {consequence}",
             at_state(&s.state),
             s.reason,
         ),
@@ -110,6 +114,9 @@ fn stuck(cx: &RuleContext<'_>, t: &TimerFacts, s: &StuckPhase) -> Option<Finding
                 ),
             }
         }
+        _ if s.discharge_limited => format!(
+            "the discharge pin needs resistance between DIS and the supply: keep {target_name} from reaching zero with a fixed resistor in series (see discharge-unprotected for its value)"
+        ),
         _ if charging => format!(
             "give {cap} a charging path that reaches above the {} threshold (a resistor from the supply, or a control voltage below what the network reaches)",
             format_si(s.threshold_v, "V")

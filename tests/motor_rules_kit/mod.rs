@@ -360,6 +360,7 @@ pub fn timer(device: DeviceId, supply_v: f64) -> TimerFacts {
         discharge_current_a: None,
         discharge_chain: Vec::new(),
         discharge_dump: None,
+        discharge_dump_state: None,
         timing_capacitor: None,
         pots: Vec::new(),
         stuck: None,

@@ -7,6 +7,7 @@ use super::config::{NetIndex, Setup};
 use super::sweep::{self, Point};
 use crate::analysis::dc;
 use crate::analysis::facts::Range;
+use crate::analysis::stand_in;
 use crate::analysis::states::{Context, Solved, State};
 use crate::circuit::{DeviceId, Kind, PinRole};
 
@@ -75,7 +76,7 @@ pub fn analyze(
         .flatten()
         .is_none()
     {
-        return out;
+        return tied(cx, setup, dis, describe).unwrap_or(out);
     }
     let mut pots = setup.pots.clone();
     if let Some(c) = cx.partition.net_component.get(dis).copied().flatten() {
@@ -118,6 +119,39 @@ pub fn analyze(
         out.dump_state = Some(describe(&points[at].state));
     }
     out
+}
+
+/// DIS wired straight to a fixed net. On a rail it is the dead short itself: nothing between
+/// the pin and the supply, and the pin sinks all it can (its own current limit).
+fn tied(
+    cx: &Context<'_>,
+    setup: &Setup,
+    dis: usize,
+    describe: &dyn Fn(&State) -> String,
+) -> Option<Discharge> {
+    let gnd = cx.circuit.devices.get(setup.device)?.pin(PinRole::Gnd);
+    let mut volts = Vec::new();
+    for &corner in sweep::corners(cx) {
+        let state = State {
+            corner,
+            high: Vec::new(),
+            wipers: Default::default(),
+        };
+        let v = cx.fixed_voltage(dis, &state)?
+            - gnd.and_then(|g| cx.fixed_voltage(g, &state)).unwrap_or(0.0);
+        volts.push((v, describe(&state)));
+    }
+    let open_v = Range::from_samples(volts.iter().map(|(v, s)| (*v, s.as_str())))?;
+    if open_v.max <= 1.0 {
+        return None;
+    }
+    let limit = Range::point(stand_in::DISCHARGE_LIMIT_A, open_v.max_state.clone());
+    Some(Discharge {
+        current_a: Some(limit),
+        source_ohms: Some(Range::point(0.0, open_v.max_state.clone())),
+        open_v: Some(open_v),
+        ..Discharge::default()
+    })
 }
 
 /// Resistors, pots and diodes carrying at least [`CHAIN_SHARE`] of the pin's current.

@@ -179,6 +179,7 @@ fn timer_facts(
             threshold_v: stuck.threshold_v,
             bias_a: stuck.bias_a,
             bias_ohms: stuck.bias_ohms,
+            discharge_limited: stuck.discharge_limited,
             state: describe(&p.state),
         })
     });

@@ -15,7 +15,6 @@
 
 use super::config::{self, NetIndex, Setup};
 use crate::analysis::dc::{self, DcError};
-use crate::analysis::partition::Fixed;
 use crate::analysis::stand_in;
 use crate::analysis::states::{Context, State};
 use crate::circuit::{DeviceId, Kind, PinRole};
@@ -96,6 +95,7 @@ pub struct Stuck {
     pub devices: Vec<DeviceId>,
     pub bias_a: Option<f64>,
     pub bias_ohms: Option<f64>,
+    pub discharge_limited: bool,
 }
 
 #[derive(Clone, Debug, PartialEq)]
@@ -295,6 +295,7 @@ fn stuck(cx: &Context<'_>, phase: &Phase<'_>) -> Result<Option<Stuck>, DcError> 
     }
     carriers.sort_by(|a, b| b.1.total_cmp(&a.1).then(a.0.cmp(&b.0)));
     let settles_v = solved.voltage(net).unwrap_or(th.v_open);
+    let limited = !charging && !reaches_without_bias && at_current_limit(&solved, setup);
     let reason = if reaches_without_bias {
         if charging {
             "the threshold input's bias current, drawn through the timing resistance, holds the capacitor below the threshold".to_string()
@@ -309,7 +310,7 @@ fn stuck(cx: &Context<'_>, phase: &Phase<'_>) -> Result<Option<Stuck>, DcError> 
         }
     } else if charging {
         "the charging network settles below the threshold".to_string()
-    } else if discharge_fights_supply(cx, setup) {
+    } else if limited {
         "the discharge pin cannot pull its own net down against the supply".to_string()
     } else {
         "the discharging network settles above the trigger threshold".to_string()
@@ -321,14 +322,16 @@ fn stuck(cx: &Context<'_>, phase: &Phase<'_>) -> Result<Option<Stuck>, DcError> 
         devices: carriers.into_iter().map(|c| c.0).collect(),
         bias_a: reaches_without_bias.then_some(bias),
         bias_ohms: reaches_without_bias.then_some(th.r_th),
+        discharge_limited: limited,
     }))
 }
 
-/// True when the discharge pin's net is held near a supply (a dead short the pin cannot pull
-/// down): its net is fixed by a source.
-fn discharge_fights_supply(cx: &Context<'_>, setup: &Setup) -> bool {
-    setup
-        .dis
-        .and_then(|n| config::fixed_by(cx, n))
-        .is_some_and(|f| matches!(f, Fixed::Source { .. }))
+/// True when the discharge pin runs at its own current limit (the supply reaches DIS through
+/// almost nothing, so the pin cannot pull its net down).
+fn at_current_limit(solved: &crate::analysis::states::Solved, setup: &Setup) -> bool {
+    solved
+        .elements(setup.device)
+        .and_then(|e| e.discharge)
+        .and_then(|e| solved.current(e))
+        .is_some_and(|i| i >= 0.9 * stand_in::DISCHARGE_LIMIT_A)
 }

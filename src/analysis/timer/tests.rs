@@ -415,3 +415,20 @@ fn a_timer_with_no_timing_capacitor_is_unknown() {
     assert_eq!(t.mode, TimerMode::Unknown);
     assert!(t.high_s.is_none() && t.stuck.is_none());
 }
+
+#[test]
+fn a_rheostat_ra_at_zero_leaves_the_discharge_pin_unable_to_pull_down() {
+    // With RA a bare rheostat at its zero end, the discharge pin sits at its current limit and
+    // its net stays near the supply: the low phase never reaches the trigger threshold.
+    let mut d = Deck::default();
+    d.v("V1", "vcc", "0", 9.0);
+    d.timer("XU1", ["0", "tc", "out", "vcc", "ctl", "tc", "dis", "vcc"]);
+    d.pot("XRA", "vcc", "dis", "dis", 10e3);
+    d.r("RB", "dis", "tc", 10e3);
+    d.c("C1", "tc", "0", 10e-9);
+    let t = &d.analyze()[0];
+    let stuck = t.stuck.as_ref().expect("stuck");
+    assert_eq!(stuck.phase, "low");
+    assert!(stuck.reason.contains("discharge pin"), "{}", stuck.reason);
+    assert!(stuck.state.contains("wiper at 0 %"), "{}", stuck.state);
+}
