@@ -253,6 +253,9 @@ fn complementary_bridge_with_shared_gate() {
     assert!(i > 0.9 && i < 1.0, "{i}");
     assert_eq!(a.loads.len(), 1);
     assert_eq!(a.loads[0].switch, Some(ph));
+    // The N-channel shorts the motor to ground (a brake): no branch of its own to interrupt.
+    assert_eq!(low.load, None);
+    assert!(low.branch.is_empty() && low.freewheel.is_empty() && !low.inductive);
 }
 
 #[test]

@@ -29,8 +29,8 @@ pub const MAX_SEARCH_SOLVES: usize = 512;
 /// Wiper positions of the shared scan along one pot's travel (every 5 %).
 pub const SCAN_POINTS: usize = 21;
 /// Golden-section steps around an objective's best scan point: the 10 % bracket shrinks to
-/// 0.03 % of the travel.
-pub const REFINE_STEPS: usize = 12;
+/// 7 ppm of the travel, fine enough for a peak a few tenths of a percent off the pot's end.
+pub const REFINE_STEPS: usize = 20;
 /// Rating assumed for ranking searches when a part states none (common practice: ¼ W).
 const DEFAULT_POWER_RATING_W: f64 = 0.25;
 

@@ -28,6 +28,10 @@ pub fn candidates(cx: &Context<'_>, nets: &NetMap, t: &SwitchTopology) -> Vec<Ca
     let Some(switched) = t.switched else {
         return out;
     };
+    if t.branch.devices.is_empty() {
+        // No branch of its own to interrupt, nothing to freewheel.
+        return out;
+    }
     let mut branch_nets: Vec<NetId> = t.branch.nets.clone();
     if branch_nets.is_empty() {
         branch_nets.push(switched);

@@ -17,7 +17,9 @@
 //!
 //! The load branch is found by a bounded depth-first walk from the switched node through
 //! resistors, inductors and load parts to a rail on the far side (above the anchor for a low
-//! side, below it for a high side, any rail or another leg's switched node for a bridge). Of
+//! side, below it for a high side, any rail but its own or another leg's switched node for a
+//! bridge: the lower switch of a half-bridge whose motor returns to ground has no branch of its
+//! own, it brakes the motor the upper switch drives). Of
 //! the complete paths, one with a load part wins, then one with an inductor, then the
 //! shortest; load parts on the other paths are loads in parallel on the same switch.
 
@@ -133,8 +135,12 @@ pub fn classify_all(cx: &Context<'_>, nets: &NetMap) -> Vec<SwitchTopology> {
         let anchor = t.anchor.map(|a| a.nominal);
         let side = t.side;
         let n_type = t.n_type;
+        let own_rail = t.anchor.map(|a| a.net);
         let accept = |net: NetId| -> bool {
-            if net == start {
+            // A path back to the switch's own rail runs in parallel with it: the switch shorts
+            // that load (a half-bridge's lower switch brakes a motor to ground), it does not
+            // interrupt it.
+            if net == start || Some(net) == own_rail {
                 return false;
             }
             match (side, nets::rail(cx, net)) {
