@@ -158,24 +158,34 @@ pub struct TimerFacts {
     pub discharge_path: Vec<DeviceId>,
 }
 
+/// Where a switch sits against its load (see `analysis::switching::topology`).
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "lowercase")]
 pub enum Side {
+    /// Returns the load to the lower rail: an N-channel source or NPN emitter on ground (or
+    /// through a sense resistor of at most 10 Ω).
     Low,
+    /// Connects the load to the upper rail: a P-channel source or PNP emitter on the rail, or
+    /// an N-channel drain on the rail with its source toward the load (a follower unless
+    /// boosted).
     High,
+    /// One switch of a leg: a high-side and a low-side switch sharing their switched node.
     Bridge,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum FreewheelKind {
-    /// A diode across the load branch (cathode toward the rail end).
+    /// A diode with both ends on the load branch (alone, or in series with one more diode,
+    /// zener or resistor through a net of their own), either way round; whether it is the
+    /// right way round is [`Freewheel::reversed`].
     AcrossLoad,
-    /// A diode from the switched node to the rail.
+    /// A diode from the switched node to a rail other than the switch's own and the branch's
+    /// far end (across the opposite switch of a leg, to another supply).
     ToRail,
-    /// A TVS or zener across the switch.
+    /// A TVS or zener from the switched node to the switch's own rail: across the switch.
     Clamp,
-    /// The body diode of the opposite switch of a bridge leg.
+    /// The body diode of the opposite switch of a bridge leg (never the switch's own).
     OppositeBodyDiode,
 }
 
