@@ -69,8 +69,17 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, load: &LoadFacts) -> Option<F
         let sw = load
             .switch
             .map_or_else(|| "its switch".into(), |s| name(cx, s));
+        let drop = cx
+            .analysis
+            .switches
+            .iter()
+            .find(|s| Some(s.device) == load.switch)
+            .and_then(|s| s.vds_on_v.as_ref())
+            .map_or_else(String::new, |v| {
+                format!(" and drops {}", format_si(v.max.abs(), "V"))
+            });
         message.push_str(&format!(
-            "; with {sw} fully on — it now runs in its linear region and drops most of the rail"
+            "; with {sw} fully on: it now runs in its linear region{drop}"
         ));
     }
     message.push_str("): ");
