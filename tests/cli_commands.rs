@@ -320,24 +320,35 @@ fn same_input_same_bytes() {
 // ---- the other commands ----------------------------------------------------------------------
 
 #[test]
-fn report_is_not_available_yet() {
+fn report_prints_the_facts_in_both_formats() {
     kickback()
         .args(["report"])
         .arg(testdata("divider.cir"))
         .assert()
-        .code(2)
-        .stderr("report: not available yet\n");
-    kickback()
+        .code(0)
+        .stdout(predicate::str::contains("Supplies"));
+    let output = kickback()
         .args(["report", "--format", "json"])
         .arg(testdata("divider.cir"))
-        .assert()
-        .code(2);
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(0));
+    let json: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    assert_eq!(json["version"], 1);
+    for key in ["supplies", "timers", "switches", "loads"] {
+        assert!(json[key].is_array(), "{key} missing");
+    }
     kickback()
         .args(["report", "--format", "sarif"])
         .arg(testdata("divider.cir"))
         .assert()
         .code(2)
         .stderr(predicate::str::contains("human or --format json"));
+    kickback()
+        .args(["report", "no-such-board.cir"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("no-such-board.cir"));
     kickback().arg("report").assert().code(2);
 }
 

@@ -42,7 +42,7 @@ fn round_trip(flat: &FlatNetlist) {
 fn clean_fixtures_round_trip() {
     for entry in std::fs::read_dir("testdata/syntax").unwrap() {
         let path = entry.unwrap().path();
-        if path.extension().map_or(true, |e| e != "cir") {
+        if path.extension().is_none_or(|e| e != "cir") {
             continue;
         }
         let mut sources = SourceMap::new();

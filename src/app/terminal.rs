@@ -40,7 +40,7 @@ impl Environment {
             ColorChoice::Never => false,
             ColorChoice::Auto => {
                 self.stdout_is_terminal
-                    && self.no_color.as_deref().map_or(true, str::is_empty)
+                    && self.no_color.as_deref().is_none_or(str::is_empty)
                     && self.term.as_deref() != Some("dumb")
             }
         }

@@ -246,7 +246,7 @@ impl<'a> Ctx<'_, 'a> {
             if out.value.is_none() {
                 if let Some(v) = self.value_item(Some(item)) {
                     if v.number.is_some()
-                        || word.map_or(true, |w| self.deck.find_model(self.def, w).is_none())
+                        || word.is_none_or(|w| self.deck.find_model(self.def, w).is_none())
                     {
                         out.value = Some(v);
                         continue;

@@ -163,7 +163,7 @@ impl<'d, 'a> Flattener<'d, 'a> {
                 }
                 if let Some((XLink::Expand(child), _, name)) = self.link(def, at) {
                     let size = self.memo[child].map_or(0, |m| m.0);
-                    if best.map_or(true, |(b, _, _)| size > b) {
+                    if best.is_none_or(|(b, _, _)| size > b) {
                         best = Some((size, child, name));
                     }
                 }

@@ -5,23 +5,58 @@
 //! Every rule builds what it needs once per call; each structure is linear in the number of pins.
 
 use super::RuleContext;
-use crate::circuit::{Device, DeviceId, Kind, NetId, PinRole};
+use crate::circuit::{Circuit, Device, DeviceId, Kind, NetId, PinRole};
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::FlatElement;
 use crate::source::Span;
-use std::collections::{HashSet, VecDeque};
+use std::collections::HashSet;
 
-/// Pins on each net, in device order: `pins[offsets[n]..offsets[n + 1]]`.
-pub struct NetIndex {
+/// Pins on each net: the circuit's own index when it has one, else one built here (circuits
+/// assembled by hand in tests have none).
+pub struct NetIndex<'c> {
+    circuit: &'c Circuit,
+    own: Option<OwnIndex>,
+}
+
+/// `pins[offsets[n]..offsets[n + 1]]` are the pins on net `n`.
+struct OwnIndex {
     offsets: Vec<usize>,
     pins: Vec<(DeviceId, usize)>,
 }
 
-impl NetIndex {
-    pub fn new(cx: &RuleContext<'_>) -> NetIndex {
-        let nets = cx.circuit.nets.len();
+impl<'c> NetIndex<'c> {
+    pub fn new(cx: &RuleContext<'c>) -> NetIndex<'c> {
+        let circuit = cx.circuit;
+        let indexed = circuit
+            .devices
+            .iter()
+            .find_map(|d| d.pins.first())
+            .is_none_or(|p| !circuit.devices_on(p.net).is_empty());
+        let own = (!indexed).then(|| OwnIndex::new(circuit));
+        NetIndex { circuit, own }
+    }
+
+    /// `(device, pin index)` of every pin on `net`.
+    pub fn on(&self, net: NetId) -> &[(DeviceId, usize)] {
+        match &self.own {
+            None => self.circuit.devices_on(net),
+            Some(own) => match (own.offsets.get(net), own.offsets.get(net + 1)) {
+                (Some(&a), Some(&b)) => own.pins.get(a..b).unwrap_or(&[]),
+                _ => &[],
+            },
+        }
+    }
+
+    pub fn degree(&self, net: NetId) -> usize {
+        self.on(net).len()
+    }
+}
+
+impl OwnIndex {
+    fn new(circuit: &Circuit) -> OwnIndex {
+        let nets = circuit.nets.len();
         let mut offsets = vec![0usize; nets + 1];
-        for device in &cx.circuit.devices {
+        for device in &circuit.devices {
             for pin in &device.pins {
                 if let Some(count) = offsets.get_mut(pin.net + 1) {
                     *count += 1;
@@ -33,7 +68,7 @@ impl NetIndex {
         }
         let mut fill = offsets.clone();
         let mut pins = vec![(0, 0); offsets.last().copied().unwrap_or(0)];
-        for (id, device) in cx.circuit.devices.iter().enumerate() {
+        for (id, device) in circuit.devices.iter().enumerate() {
             for (index, pin) in device.pins.iter().enumerate() {
                 if let Some(slot) = fill.get_mut(pin.net) {
                     if let Some(entry) = pins.get_mut(*slot) {
@@ -43,19 +78,7 @@ impl NetIndex {
                 }
             }
         }
-        NetIndex { offsets, pins }
-    }
-
-    /// `(device, pin index)` of every pin on `net`.
-    pub fn on(&self, net: NetId) -> &[(DeviceId, usize)] {
-        match (self.offsets.get(net), self.offsets.get(net + 1)) {
-            (Some(&a), Some(&b)) => self.pins.get(a..b).unwrap_or(&[]),
-            _ => &[],
-        }
-    }
-
-    pub fn degree(&self, net: NetId) -> usize {
-        self.on(net).len()
+        OwnIndex { offsets, pins }
     }
 }
 
@@ -105,6 +128,14 @@ pub fn finding_at(
         .with_element(element.name.clone(), element.instance_path());
     finding.instances = element.instances.clone();
     finding
+}
+
+/// FNV-1a over the ASCII-lower-cased bytes: a cheap case-insensitive key for large name tables
+/// (compare the names themselves when keys match; distinct names may share a key).
+pub fn fold_hash(text: &str) -> u64 {
+    text.bytes().fold(0xcbf2_9ce4_8422_2325, |h, b| {
+        (h ^ u64::from(b.to_ascii_lowercase())).wrapping_mul(0x0100_0000_01b3)
+    })
 }
 
 /// Remembers which definition lines a rule has already reported, so an element inside a
@@ -231,7 +262,8 @@ pub fn pin_drive(kind: Kind, element: &FlatElement, role: PinRole) -> PinDrive {
 /// What the resistive network around a net reaches.
 #[derive(Debug, Default)]
 pub struct Trace {
-    /// Nets reached through resistors and inductive parts, the start first.
+    /// Nets reached through resistors and inductive parts, the start first, in breadth-first
+    /// order (at most 64).
     pub nets: Vec<NetId>,
     /// Fixed nets reached: ground or a voltage source's terminal, with the source.
     pub fixed: Vec<(NetId, Option<DeviceId>)>,
@@ -255,13 +287,15 @@ impl Trace {
 /// and at `stop` nets, and after a bounded number of nets and pins so a huge rail costs little.
 pub struct Tracer<'c, 'a> {
     cx: &'c RuleContext<'a>,
-    pub index: NetIndex,
+    pub index: NetIndex<'a>,
     /// The voltage source (or `None` for ground) that fixes each net.
     fixed_by: Vec<Option<Option<DeviceId>>>,
 }
 
 const MAX_NETS: usize = 64;
 const MAX_PINS: usize = 4096;
+/// Blocking devices kept per trace: enough to name them in a message.
+const MAX_LISTED: usize = 32;
 
 impl<'c, 'a> Tracer<'c, 'a> {
     pub fn new(cx: &'c RuleContext<'a>) -> Self {
@@ -294,14 +328,15 @@ impl<'c, 'a> Tracer<'c, 'a> {
     }
 
     pub fn trace(&self, start: NetId, stop: &[NetId]) -> Trace {
-        let mut out = Trace::default();
-        let mut seen: HashSet<NetId> = HashSet::new();
-        let mut seen_devices: HashSet<DeviceId> = HashSet::new();
-        let mut queue = VecDeque::from([start]);
-        seen.insert(start);
+        // Small bounded sets: linear scans beat hashing at these sizes.
+        let mut out = Trace {
+            nets: vec![start],
+            ..Trace::default()
+        };
+        let mut next = 0;
         let mut pins_read = 0usize;
-        while let Some(net) = queue.pop_front() {
-            out.nets.push(net);
+        while let Some(&net) = out.nets.get(next) {
+            next += 1;
             if let Some(source) = self.fixed(net) {
                 out.fixed.push((net, source));
                 continue;
@@ -322,19 +357,19 @@ impl<'c, 'a> Tracer<'c, 'a> {
                 };
                 match pin_drive(device.kind, element, pin.role) {
                     PinDrive::Passes => {
-                        if seen_devices.insert(id) {
+                        if out.through.len() < MAX_LISTED && !out.through.contains(&id) {
                             out.through.push(id);
                         }
                         for other in &device.pins {
-                            if seen.len() < MAX_NETS && seen.insert(other.net) {
-                                queue.push_back(other.net);
+                            if out.nets.len() < MAX_NETS && !out.nets.contains(&other.net) {
+                                out.nets.push(other.net);
                             }
                         }
                     }
                     PinDrive::Drives => out.drivers.push((id, pin.role)),
                     PinDrive::MayFloat => out.may_float.push((id, pin.role)),
                     PinDrive::Blocks => {
-                        if seen_devices.insert(id) {
+                        if out.blocked.len() < MAX_LISTED && !out.blocked.contains(&id) {
                             out.blocked.push(id);
                         }
                     }
@@ -365,7 +400,7 @@ pub struct Monostable {
 /// Two-terminal devices of `kind` between nets `a` and `b` (either way round).
 pub fn between(
     cx: &RuleContext<'_>,
-    index: &NetIndex,
+    index: &NetIndex<'_>,
     a: NetId,
     b: NetId,
     want: impl Fn(Kind) -> bool,
@@ -392,7 +427,7 @@ pub fn between(
     found
 }
 
-pub fn astable(cx: &RuleContext<'_>, index: &NetIndex, timer: &Device) -> Option<Astable> {
+pub fn astable(cx: &RuleContext<'_>, index: &NetIndex<'_>, timer: &Device) -> Option<Astable> {
     let (vcc, dis, thr, trig) = (
         timer.pin(PinRole::Vcc)?,
         timer.pin(PinRole::Dis)?,
@@ -413,7 +448,11 @@ pub fn astable(cx: &RuleContext<'_>, index: &NetIndex, timer: &Device) -> Option
     Some(Astable { ra, rb, c })
 }
 
-pub fn monostable(cx: &RuleContext<'_>, index: &NetIndex, timer: &Device) -> Option<Monostable> {
+pub fn monostable(
+    cx: &RuleContext<'_>,
+    index: &NetIndex<'_>,
+    timer: &Device,
+) -> Option<Monostable> {
     let (vcc, dis, thr, trig) = (
         timer.pin(PinRole::Vcc)?,
         timer.pin(PinRole::Dis)?,
@@ -432,7 +471,7 @@ pub fn monostable(cx: &RuleContext<'_>, index: &NetIndex, timer: &Device) -> Opt
 
 fn timing_capacitor(
     cx: &RuleContext<'_>,
-    index: &NetIndex,
+    index: &NetIndex<'_>,
     timer: &Device,
     thr: NetId,
 ) -> Option<DeviceId> {
@@ -499,6 +538,7 @@ pub mod testkit {
         pub circuit: Circuit,
         pub config: Config,
         pub analysis: Analysis,
+        names: std::collections::HashMap<String, NetId>,
     }
 
     impl Default for Deck {
@@ -519,6 +559,7 @@ pub mod testkit {
                 circuit,
                 config: Config::default(),
                 analysis: Analysis::default(),
+                names: std::collections::HashMap::new(),
             }
         }
 
@@ -526,14 +567,11 @@ pub mod testkit {
             if name == "0" || name.eq_ignore_ascii_case("gnd") {
                 return 0;
             }
-            if let Some(i) = self
-                .circuit
-                .nets
-                .iter()
-                .position(|n| n.name.eq_ignore_ascii_case(name))
-            {
+            let key = name.to_ascii_lowercase();
+            if let Some(&i) = self.names.get(&key) {
                 return i;
             }
+            self.names.insert(key, self.circuit.nets.len());
             self.circuit.nets.push(Net {
                 name: name.into(),
                 is_ground: false,
@@ -742,5 +780,88 @@ mod tests {
         for name in ["ncount", "vcc", "sync"] {
             assert!(!super::is_no_connect_name(name), "{name}");
         }
+    }
+}
+
+/// Cost of each hygiene rule on a 550,000-element deck (50,000 fan channels, each with one
+/// dangling net). Run by hand with an optimised build:
+/// `CARGO_PROFILE_DEV_OPT_LEVEL=2 cargo test --lib scale_probe -- --ignored --nocapture`.
+#[cfg(test)]
+mod scale_probe {
+    /// This thread's CPU time in ns (Linux schedstat), so a loaded machine does not skew it.
+    fn cpu_ns() -> u64 {
+        std::fs::read_to_string("/proc/thread-self/schedstat")
+            .ok()
+            .and_then(|s| s.split_whitespace().next()?.parse().ok())
+            .unwrap_or(0)
+    }
+
+    use super::testkit::{Check, Deck};
+    use crate::rules::*;
+
+    #[test]
+    #[ignore]
+    fn probe() {
+        let mut d = Deck::new();
+        d.v("V12", "v12", "0", 12.0);
+        for i in 0..50_000 {
+            let n = |s: &str| format!("{s}{i}");
+            d.timer(
+                &n("XU"),
+                [
+                    "0",
+                    &n("tc"),
+                    &n("out"),
+                    "v12",
+                    &n("ctl"),
+                    &n("tc"),
+                    &n("dis"),
+                    "v12",
+                ],
+            );
+            d.r(&n("RA"), "v12", &n("dis"), "5.6k", 5.6e3);
+            d.r(&n("RB"), &n("dis"), &n("tc"), "27k", 27e3);
+            d.c(&n("CT"), &n("tc"), "0", 1e-9);
+            d.c(&n("CCTL"), &n("ctl"), "0", 1e-8);
+            d.c(&n("CDEC"), "v12", "0", 1e-7);
+            d.r(&n("RG"), &n("out"), &n("g"), "100", 100.0);
+            d.r(&n("RPD"), &n("g"), "0", "10k", 1e4);
+            d.mos(&n("M"), crate::circuit::Kind::Nmos, &n("d"), &n("g"), "0");
+            d.r(&n("RL"), "v12", &n("d"), "24", 24.0);
+            d.r(&n("RX"), &n("d"), &n("dangle"), "24", 24.0);
+        }
+        let checks: [(&str, Check); 13] = [
+            ("model", model_missing::check),
+            ("dup", name_duplicate::check),
+            ("short", element_shorted::check),
+            ("dangling", net_dangling::check),
+            ("pin", pin_unconnected::check),
+            ("supply-shorted", supply_shorted::check),
+            ("unref", supply_unreferenced::check),
+            ("gate", gate_floating::check),
+            ("reset", timer_reset_floating::check),
+            ("ctrl", timer_control_unbypassed::check),
+            ("decoupling", decoupling_missing::check),
+            ("pwm", pwm_audible::check),
+            ("value", value_suspicious::check),
+        ];
+        let t = std::time::Instant::now();
+        let (circuit, _) = crate::circuit::Circuit::build(&d.netlist, &d.config);
+        d.circuit = circuit;
+        println!(
+            "elements {} (graph {:?})",
+            d.netlist.elements.len(),
+            t.elapsed()
+        );
+        let total = std::time::Instant::now();
+        for (name, check) in checks {
+            let t = cpu_ns();
+            let n = d.run(check).len();
+            println!(
+                "{name}: {} ms cpu ({n} findings)",
+                (cpu_ns() - t) / 1_000_000
+            );
+        }
+        println!("all: {:?}", total.elapsed());
     }
 }

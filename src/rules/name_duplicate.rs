@@ -4,24 +4,22 @@
 //! The finding points at the later line; the earlier one is labelled. When the two come from
 //! different instance lines (two `X` lines with one name), those lines are the ones shown.
 
-use super::hygiene_util::Once;
+use super::hygiene_util::{fold_hash, Once};
 use super::RuleContext;
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::FlatElement;
 use crate::source::Span;
-use std::collections::{HashMap, HashSet};
+use std::collections::HashSet;
 
 const RULE: &str = "name-duplicate";
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let elements = &cx.netlist.elements;
-    let mut first_of: HashMap<String, usize> = HashMap::with_capacity(elements.len());
+    let pairs = duplicate_pairs(elements);
     let mut once = Once::default();
     let mut taken: Option<HashSet<String>> = None;
-    for (index, element) in elements.iter().enumerate() {
-        let key = element.path.to_ascii_lowercase();
-        let Some(&first) = first_of.get(&key) else {
-            first_of.insert(key, index);
+    for (first, later) in pairs {
+        let Some(element) = elements.get(later) else {
             continue;
         };
         let Some(earlier) = elements.get(first) else {
@@ -60,6 +58,36 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         }
         out.push(finding);
     }
+}
+
+/// `(first, later)` element indices for every element whose name an earlier one already has,
+/// in element order. Sorting hashed names keeps this fast on very large decks.
+fn duplicate_pairs(elements: &[FlatElement]) -> Vec<(usize, usize)> {
+    let mut keys: Vec<(u64, usize)> = elements
+        .iter()
+        .enumerate()
+        .map(|(i, e)| (fold_hash(&e.path), i))
+        .collect();
+    keys.sort_unstable();
+    let mut pairs = Vec::new();
+    for run in keys.chunk_by(|a, b| a.0 == b.0).filter(|run| run.len() > 1) {
+        // A run shares a key; names within it may still differ (a collision).
+        for (n, &(_, later)) in run.iter().enumerate().skip(1) {
+            let Some(name) = elements.get(later).map(|e| e.path.as_str()) else {
+                continue;
+            };
+            let first = run.get(..n).unwrap_or(&[]).iter().find(|&&(_, i)| {
+                elements
+                    .get(i)
+                    .is_some_and(|e| e.path.eq_ignore_ascii_case(name))
+            });
+            if let Some(&(_, first)) = first {
+                pairs.push((first, later));
+            }
+        }
+    }
+    pairs.sort_unstable_by_key(|&(_, later)| later);
+    pairs
 }
 
 /// The two lines that clash and the name they share: the element lines themselves when both

@@ -13,18 +13,23 @@ use super::RuleContext;
 use crate::circuit::NetId;
 use crate::diagnostic::{Finding, Severity};
 use crate::source::Span;
-use std::collections::{HashMap, HashSet};
+use std::collections::HashMap;
 
 const RULE: &str = "net-dangling";
-/// Name comparisons allowed per check, so a deck with thousands of stray nets stays linear.
-const COMPARISON_BUDGET: usize = 2_000_000;
+/// Elements either side of a dangling net's element whose nets are candidates for the name it
+/// was meant to have.
+const WINDOW: usize = 256;
+/// Candidate pins looked at, and edit distances computed, per check: a deck with thousands of
+/// stray nets stays fast, and suggestions are given while the budget lasts.
+const SCAN_BUDGET: usize = 500_000;
+const DISTANCE_BUDGET: usize = 200_000;
 
-struct Dangling {
+struct Dangling<'a> {
     net: NetId,
     device: usize,
     pin: usize,
-    /// The element's instance prefix (`XDRV.`), lower-case.
-    scope: String,
+    /// The element's instance prefix (`XDRV.`), as written.
+    scope: &'a str,
 }
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
@@ -56,8 +61,10 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     if dangling.is_empty() {
         return;
     }
-    let candidates = candidates(cx, &index, &dangling);
-    let mut budget = COMPARISON_BUDGET;
+    let mut budget = Budget {
+        scans: SCAN_BUDGET,
+        distances: DISTANCE_BUDGET,
+    };
     let mut once = Once::default();
     let repeats = repeats(cx, &dangling);
     for d in &dangling {
@@ -68,13 +75,11 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             continue;
         };
         let name = net_name(cx, d.net);
-        let local = strip_scope(name, &d.scope);
+        let local = strip_scope(name, d.scope);
         if !once.first(element.span, local.to_ascii_lowercase()) {
             continue;
         }
-        let near = candidates
-            .get(&d.scope)
-            .and_then(|list| closest(cx, &index, local, &d.scope, list, &mut budget));
+        let near = closest(cx, &index, d.device, local, d.scope, &mut budget);
         let others = repeats
             .get(&(element.span, local.to_ascii_lowercase()))
             .map_or(0, |n| n.saturating_sub(1));
@@ -98,7 +103,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         finding = match near {
             Some((net, _)) => {
                 let other = net_name(cx, net);
-                let other_local = strip_scope(other, &d.scope);
+                let other_local = strip_scope(other, d.scope);
                 finding.with_help(format!(
                     "did you mean `{other_local}` ({} connections)? Change node {} on this line",
                     index.degree(net),
@@ -114,7 +119,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 }
 
 /// How many instances share each dangling definition line and net.
-fn repeats(cx: &RuleContext<'_>, dangling: &[Dangling]) -> HashMap<(Span, String), usize> {
+fn repeats(cx: &RuleContext<'_>, dangling: &[Dangling<'_>]) -> HashMap<(Span, String), usize> {
     let mut counts = HashMap::new();
     for d in dangling {
         let Some(element) = cx
@@ -125,15 +130,15 @@ fn repeats(cx: &RuleContext<'_>, dangling: &[Dangling]) -> HashMap<(Span, String
         else {
             continue;
         };
-        let local = strip_scope(net_name(cx, d.net), &d.scope).to_ascii_lowercase();
+        let local = strip_scope(net_name(cx, d.net), d.scope).to_ascii_lowercase();
         *counts.entry((element.span, local)).or_insert(0) += 1;
     }
     counts
 }
 
-fn scope_of(path: &str, name: &str) -> String {
+fn scope_of<'a>(path: &'a str, name: &str) -> &'a str {
     let len = path.len().saturating_sub(name.len());
-    path.get(..len).unwrap_or("").to_ascii_lowercase()
+    path.get(..len).unwrap_or("")
 }
 
 fn strip_scope<'n>(net: &'n str, scope: &str) -> &'n str {
@@ -145,44 +150,21 @@ fn strip_scope<'n>(net: &'n str, scope: &str) -> &'n str {
     }
 }
 
-/// Nets with at least two connections, by the scope (instance prefix) of the elements on them,
-/// for the scopes that have a dangling net.
-fn candidates(
-    cx: &RuleContext<'_>,
-    index: &NetIndex,
-    dangling: &[Dangling],
-) -> HashMap<String, Vec<NetId>> {
-    let wanted: HashSet<&str> = dangling.iter().map(|d| d.scope.as_str()).collect();
-    let mut out: HashMap<String, Vec<NetId>> = HashMap::new();
-    let mut seen: HashSet<(usize, NetId)> = HashSet::new();
-    let mut scope_ids: HashMap<String, usize> = HashMap::new();
-    for device in &cx.circuit.devices {
-        let Some(element) = cx.netlist.elements.get(device.element) else {
-            continue;
-        };
-        let scope = scope_of(&element.path, &element.name);
-        if !wanted.contains(scope.as_str()) {
-            continue;
-        }
-        let next = scope_ids.len();
-        let id = *scope_ids.entry(scope.clone()).or_insert(next);
-        for pin in &device.pins {
-            if index.degree(pin.net) >= 2 && seen.insert((id, pin.net)) {
-                out.entry(scope.clone()).or_default().push(pin.net);
-            }
-        }
-    }
-    out
+struct Budget {
+    scans: usize,
+    distances: usize,
 }
 
-/// The candidate net whose local name is nearest to `local`, within a small edit distance.
+/// The net near `device` in the deck (the elements up to [`WINDOW`] places either side, in the
+/// same subcircuit scope, with at least two connections) whose local name is nearest to `local`,
+/// within a small edit distance.
 fn closest(
     cx: &RuleContext<'_>,
-    index: &NetIndex,
+    index: &NetIndex<'_>,
+    device: usize,
     local: &str,
     scope: &str,
-    list: &[NetId],
-    budget: &mut usize,
+    budget: &mut Budget,
 ) -> Option<(NetId, usize)> {
     let lower = local.to_ascii_lowercase();
     let length = lower.chars().count();
@@ -191,22 +173,40 @@ fn closest(
     }
     let limit = if length <= 4 { 1 } else { 2 };
     let mut best: Option<(usize, std::cmp::Reverse<usize>, String, NetId)> = None;
-    for &net in list {
-        if *budget == 0 {
-            break;
-        }
-        *budget -= 1;
-        let other = strip_scope(net_name(cx, net), scope).to_ascii_lowercase();
-        if other.chars().count().abs_diff(length) > limit {
+    let first = device.saturating_sub(WINDOW);
+    let last = device.saturating_add(WINDOW).min(cx.circuit.devices.len());
+    for near in cx.circuit.devices.get(first..last).unwrap_or(&[]) {
+        let Some(element) = cx.netlist.elements.get(near.element) else {
+            continue;
+        };
+        if !scope_of(&element.path, &element.name).eq_ignore_ascii_case(scope) {
             continue;
         }
-        let distance = strsim::osa_distance(&lower, &other);
-        if distance == 0 || distance > limit {
-            continue;
-        }
-        let key = (distance, std::cmp::Reverse(index.degree(net)), other, net);
-        if best.as_ref().is_none_or(|b| key < *b) {
-            best = Some(key);
+        for pin in &near.pins {
+            if budget.scans == 0 || budget.distances == 0 {
+                return best.map(|(distance, _, _, net)| (net, distance));
+            }
+            budget.scans -= 1;
+            let degree = index.degree(pin.net);
+            if degree < 2 {
+                continue;
+            }
+            let other = strip_scope(net_name(cx, pin.net), scope);
+            if other.len().abs_diff(lower.len()) > limit * 4
+                || other.chars().count().abs_diff(length) > limit
+            {
+                continue;
+            }
+            budget.distances -= 1;
+            let other = other.to_ascii_lowercase();
+            let distance = strsim::osa_distance(&lower, &other);
+            if distance == 0 || distance > limit {
+                continue;
+            }
+            let key = (distance, std::cmp::Reverse(degree), other, pin.net);
+            if best.as_ref().is_none_or(|b| key < *b) {
+                best = Some(key);
+            }
         }
     }
     best.map(|(distance, _, _, net)| (net, distance))

@@ -11,6 +11,7 @@ use super::hygiene_util::{
     NetIndex, Tracer,
 };
 use super::RuleContext;
+use crate::analysis::TimerMode;
 use crate::circuit::{DeviceId, Kind, NetId, PinRole};
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::Waveform;
@@ -98,7 +99,11 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 
 /// Without switch facts: every transistor with an inductive part on its switched terminals,
 /// grouped by the pulse source or timer its gate network reaches.
-fn from_topology(cx: &RuleContext<'_>, index: &NetIndex, groups: &mut BTreeMap<DeviceId, Group>) {
+fn from_topology(
+    cx: &RuleContext<'_>,
+    index: &NetIndex<'_>,
+    groups: &mut BTreeMap<DeviceId, Group>,
+) {
     if !cx
         .circuit
         .devices
@@ -166,7 +171,7 @@ fn from_topology(cx: &RuleContext<'_>, index: &NetIndex, groups: &mut BTreeMap<D
     }
 }
 
-fn frequency_of(cx: &RuleContext<'_>, index: &NetIndex, driver: DeviceId) -> Option<Drive> {
+fn frequency_of(cx: &RuleContext<'_>, index: &NetIndex<'_>, driver: DeviceId) -> Option<Drive> {
     let (device, element) = device_element(cx, driver)?;
     if let Some(spec) = &element.source {
         let f = spec.frequency()?;
@@ -220,12 +225,13 @@ fn load_noun(kind: Kind) -> &'static str {
 
 fn report(
     cx: &RuleContext<'_>,
-    index: &NetIndex,
+    index: &NetIndex<'_>,
     driver: DeviceId,
     drive: &Drive,
     group: &Group,
 ) -> Option<Finding> {
     let (setter, help) = fix(cx, index, driver, drive);
+    let (origin, _) = frequency_origin(cx, driver);
     let (_, element) = device_element(cx, setter)?;
     let mut loads = group.loads.clone();
     loads.sort_unstable();
@@ -235,7 +241,8 @@ fn report(
         .first()
         .and_then(|&l| cx.circuit.devices.get(l))
         .map_or("load", |d| load_noun(d.kind));
-    let at = if drive.max_hz > drive.min_hz {
+    let (low, high) = (format_si(drive.min_hz, "Hz"), format_si(drive.max_hz, "Hz"));
+    let at = if low != high {
         format!(
             "{}–{}",
             format_si(drive.min_hz, "Hz"),
@@ -279,64 +286,113 @@ fn report(
             finding = finding.with_label(e.span, format!("{} drives the switch", e.path));
         }
     }
+    if origin != driver && origin != setter {
+        if let Some((_, e)) = device_element(cx, origin) {
+            finding = finding.with_label(e.span, format!("{} sets the frequency", e.path));
+        }
+    }
     Some(finding)
 }
 
-/// The element whose value sets the frequency, and the change that moves it to 25 kHz.
+/// The element whose value sets the frequency, and the change that moves it to 25 kHz. A
+/// one-shot triggered by another timer or a pulse source takes its frequency from that driver,
+/// so the fix goes there, and the one-shot's capacitor is scaled to keep the duty.
 fn fix(
     cx: &RuleContext<'_>,
-    index: &NetIndex,
+    index: &NetIndex<'_>,
     driver: DeviceId,
     drive: &Drive,
 ) -> (DeviceId, String) {
     let tail = "(check the switching loss and the gate drive at the higher frequency), or below \
                 20 Hz if the load only needs on/off control";
-    let Some((device, element)) = device_element(cx, driver) else {
+    let (origin, one_shots) = frequency_origin(cx, driver);
+    let Some((device, element)) = device_element(cx, origin) else {
         return (driver, format!("move the PWM above 20 kHz {tail}"));
     };
-    if let Some(Waveform::Pulse { period, width, .. }) = element.source.as_ref().map(|s| &s.wave) {
+    let (setter, mut help, factor) = if let Some(Waveform::Pulse { period, width, .. }) =
+        element.source.as_ref().map(|s| &s.wave)
+    {
         let new_period = 1.0 / TARGET_HZ;
-        let new_width = width * new_period / period;
-        return (
-            driver,
+        (
+            origin,
             format!(
-                "set the PULSE period to {} (25 kHz) and the width to {} to keep the duty {tail}",
+                "set the PULSE period to {} (25 kHz) and the width to {} to keep the duty",
                 spice(new_period),
-                spice(new_width)
+                spice(width * new_period / period)
             ),
-        );
-    }
-    let facts = cx.analysis.timers.iter().find(|t| t.device == driver);
-    let cap = facts.and_then(|t| t.timing_capacitor).or_else(|| {
-        device
-            .kind
-            .is_timer()
-            .then(|| astable(cx, index, device))
-            .flatten()
-            .map(|a| a.c)
-    });
-    if let Some(c_id) = cap {
-        if let Some(c) = device_element(cx, c_id).and_then(|(d, e)| capacitance(d, e)) {
-            let wanted = c * drive.min_hz / TARGET_HZ;
-            if let Some(new_c) = round_down(wanted, &E12) {
-                let name = device_element(cx, c_id).map_or(String::new(), |(_, e)| e.path.clone());
-                return (
-                    c_id,
-                    format!(
-                        "the frequency goes as 1/C: reduce {name} from {} to {} (E12) to run at \
-                         about {} or more {tail}",
-                        format_si(c, "F"),
-                        format_si(new_c, "F"),
-                        format_si(drive.min_hz * c / new_c, "Hz")
-                    ),
-                );
+            new_period / period,
+        )
+    } else {
+        let facts = cx.analysis.timers.iter().find(|t| t.device == origin);
+        let cap = facts.and_then(|t| t.timing_capacitor).or_else(|| {
+            device
+                .kind
+                .is_timer()
+                .then(|| astable(cx, index, device))
+                .flatten()
+                .map(|a| a.c)
+        });
+        let value = cap.and_then(|c| device_element(cx, c).and_then(|(d, e)| capacitance(d, e)));
+        let (Some(c_id), Some(c)) = (cap, value) else {
+            return (
+                driver,
+                format!("move {}'s frequency above 20 kHz {tail}", element.path),
+            );
+        };
+        let Some(new_c) = round_down(c * drive.min_hz / TARGET_HZ, &E12) else {
+            return (driver, format!("move the PWM above 20 kHz {tail}"));
+        };
+        (
+            c_id,
+            format!(
+                "the frequency goes as 1/C: reduce {} from {} to {} (E12) to run at about {} or \
+                 more",
+                shown(cx, c_id),
+                format_si(c, "F"),
+                format_si(new_c, "F"),
+                format_si(drive.min_hz * c / new_c, "Hz")
+            ),
+            new_c / c,
+        )
+    };
+    for (shot, cap) in one_shots {
+        let value = cap.and_then(|c| device_element(cx, c).and_then(|(d, e)| capacitance(d, e)));
+        if let (Some(c_id), Some(c)) = (cap, value) {
+            if let Some(new_c) = round_down(c * factor, &E12) {
+                help.push_str(&format!(
+                    "; scale the one-shot {}'s {} by the same factor, to {}, so its pulses keep \
+                     their share of the shorter period",
+                    shown(cx, shot),
+                    shown(cx, c_id),
+                    format_si(new_c, "F")
+                ));
             }
         }
     }
-    (
-        driver,
-        format!("move {}'s frequency above 20 kHz {tail}", element.path),
-    )
+    (setter, format!("{help} {tail}"))
+}
+
+/// Follows one-shots to what triggers them: the device that sets the frequency, and the
+/// one-shots on the way (with their timing capacitors).
+fn frequency_origin(
+    cx: &RuleContext<'_>,
+    driver: DeviceId,
+) -> (DeviceId, Vec<(DeviceId, Option<DeviceId>)>) {
+    let mut at = driver;
+    let mut one_shots = Vec::new();
+    for _ in 0..4 {
+        let Some(t) = cx.analysis.timers.iter().find(|t| t.device == at) else {
+            break;
+        };
+        match (&t.mode, &t.trigger) {
+            (TimerMode::Monostable, Some(trigger)) if trigger.driver != at => {
+                one_shots.push((at, t.timing_capacitor));
+                at = trigger.driver;
+            }
+            _ => break,
+        }
+    }
+    (at, one_shots)
 }
 
 /// A value as SPICE text: `40u`, `22.5u`.

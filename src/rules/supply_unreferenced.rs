@@ -37,24 +37,20 @@ fn joins(kind: Kind, letter: char, role: PinRole) -> bool {
     }
 }
 
-/// Nets joined by DC-conducting pins. With `without_gate_networks`, passive parts on a gate or
-/// base net do not join: a pull-down from the gate to a switch's source is not a shared ground.
-fn sections(cx: &RuleContext<'_>, without_gate_networks: bool) -> UnionFind<usize> {
-    let mut sets = UnionFind::<usize>::new(cx.circuit.nets.len());
-    let mut gate_net = vec![
-        false;
-        if without_gate_networks {
-            cx.circuit.nets.len()
-        } else {
-            0
-        }
-    ];
+/// Nets joined by DC-conducting pins: `(all, apart)`, where `apart` leaves out the passive parts
+/// on a gate or base net (a pull-down from the gate to a switch's source is not a shared ground).
+/// `apart` is `None` when the circuit has no transistor switch.
+fn sections(cx: &RuleContext<'_>) -> (UnionFind<usize>, Option<UnionFind<usize>>) {
+    let nets = cx.circuit.nets.len();
+    let mut gate_net = vec![false; nets];
+    let mut any_switch = false;
     for device in cx
         .circuit
         .devices
         .iter()
         .filter(|d| d.kind.is_switch_transistor())
     {
+        any_switch = true;
         for pin in device
             .pins
             .iter()
@@ -65,39 +61,54 @@ fn sections(cx: &RuleContext<'_>, without_gate_networks: bool) -> UnionFind<usiz
             }
         }
     }
+    let mut sets = UnionFind::<usize>::new(nets);
+    let mut held_back = Vec::new();
     for device in &cx.circuit.devices {
         let passive = matches!(
             device.kind,
             Kind::Resistor | Kind::Potentiometer | Kind::Inductor
         ) || device.kind.is_diode_like();
-        if passive
+        if any_switch
+            && passive
             && device
                 .pins
                 .iter()
                 .any(|p| gate_net.get(p.net).copied().unwrap_or(false))
         {
+            held_back.push(device);
             continue;
         }
-        let letter = cx
-            .netlist
-            .elements
-            .get(device.element)
-            .map_or('?', |e| e.letter);
-        let mut first = None;
-        for pin in device
-            .pins
-            .iter()
-            .filter(|p| joins(device.kind, letter, p.role))
-        {
-            match first {
-                None => first = Some(pin.net),
-                Some(f) => {
-                    sets.union(f, pin.net);
-                }
+        join(cx, device, &mut sets);
+    }
+    if !any_switch {
+        return (sets, None);
+    }
+    let apart = sets.clone();
+    for device in held_back {
+        join(cx, device, &mut sets);
+    }
+    (sets, Some(apart))
+}
+
+fn join(cx: &RuleContext<'_>, device: &Device, sets: &mut UnionFind<usize>) {
+    let letter = cx
+        .netlist
+        .elements
+        .get(device.element)
+        .map_or('?', |e| e.letter);
+    let mut first = None;
+    for pin in device
+        .pins
+        .iter()
+        .filter(|p| joins(device.kind, letter, p.role))
+    {
+        match first {
+            None => first = Some(pin.net),
+            Some(f) => {
+                sets.union(f, pin.net);
             }
         }
     }
-    sets
 }
 
 #[derive(Default)]
@@ -121,17 +132,23 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         no_reference(cx, out);
         return;
     };
-    let sets = sections(cx, false);
-    let referenced: HashSet<usize> = cx
+    let (sets, apart) = sections(cx);
+    let mut referenced = vec![false; count];
+    for (i, _) in cx
         .circuit
         .nets
         .iter()
         .enumerate()
         .filter(|(_, n)| n.is_ground)
-        .map(|(i, _)| sets.find(i))
-        .collect();
+    {
+        if let Some(flag) = referenced.get_mut(sets.find(i)) {
+            *flag = true;
+        }
+    }
     let mut explained = HashSet::new();
-    mismatched_references(cx, &sets, &mut explained, out);
+    if let Some(apart) = &apart {
+        mismatched_references(cx, &sets, apart, &mut explained, out);
+    }
     let sections = floating_sections(cx, &sets, &referenced);
     for (root, section) in &sections {
         if explained.contains(root) || section.pins <= 1 {
@@ -172,12 +189,12 @@ fn no_reference(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 fn floating_sections(
     cx: &RuleContext<'_>,
     sets: &UnionFind<usize>,
-    referenced: &HashSet<usize>,
+    referenced: &[bool],
 ) -> BTreeMap<usize, Section> {
     let mut sections: BTreeMap<usize, Section> = BTreeMap::new();
     for net in 0..cx.circuit.nets.len() {
         let root = sets.find(net);
-        if referenced.contains(&root) {
+        if referenced.get(root).copied().unwrap_or(true) {
             continue;
         }
         let s = sections.entry(root).or_default();
@@ -185,6 +202,9 @@ fn floating_sections(
         if s.nets.len() < SHOWN_NETS {
             s.nets.push(net);
         }
+    }
+    if sections.is_empty() {
+        return sections;
     }
     for (id, device) in cx.circuit.devices.iter().enumerate() {
         let letter = cx
@@ -312,6 +332,33 @@ fn floating(cx: &RuleContext<'_>, section: &Section, ground: &str) -> Option<Fin
     ))
 }
 
+/// How many sections hold the reference or a voltage source (counting stops at two).
+fn supplied_sections(cx: &RuleContext<'_>, sets: &UnionFind<usize>) -> usize {
+    let mut first = None;
+    let grounds = cx
+        .circuit
+        .nets
+        .iter()
+        .enumerate()
+        .filter(|(_, n)| n.is_ground)
+        .map(|(i, _)| i);
+    let sources = cx
+        .circuit
+        .devices
+        .iter()
+        .filter(|d| d.kind == Kind::VoltageSource)
+        .flat_map(|d| d.pins.iter().map(|p| p.net));
+    for net in grounds.chain(sources) {
+        let root = sets.find(net);
+        match first {
+            None => first = Some(root),
+            Some(r) if r != root => return 2,
+            Some(_) => {}
+        }
+    }
+    usize::from(first.is_some())
+}
+
 /// The net a driver's output is referenced to.
 fn driver_reference(cx: &RuleContext<'_>, id: DeviceId, driven: NetId) -> Option<NetId> {
     let device = cx.circuit.devices.get(id)?;
@@ -379,19 +426,15 @@ fn gate_driver(
 fn mismatched_references(
     cx: &RuleContext<'_>,
     sets: &UnionFind<usize>,
+    apart: &UnionFind<usize>,
     explained: &mut HashSet<usize>,
     out: &mut Vec<Finding>,
 ) {
-    if !cx
-        .circuit
-        .devices
-        .iter()
-        .any(|d| d.kind.is_switch_transistor())
-    {
+    if supplied_sections(cx, apart) <= 1 {
+        // Every supply and the reference share one section: every driver does too.
         return;
     }
     let tracer = Tracer::new(cx);
-    let apart = sections(cx, true);
     for (id, device) in cx.circuit.devices.iter().enumerate() {
         if !device.kind.is_switch_transistor() {
             continue;

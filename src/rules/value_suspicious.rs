@@ -18,57 +18,79 @@ use crate::circuit::{Device, DeviceId, Kind, NetId, PinRole};
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::FlatElement;
 use crate::rules::units::format_si;
-use std::collections::HashMap;
 
 const RULE: &str = "value-suspicious";
 /// SPICE `M` is milli; `MEG` is mega: the slip multiplies by 10⁻⁹.
 const MILLI_TO_MEGA: f64 = 1e9;
 
 /// The signal pins on a net that make a resistor there part of a timing, pull or gate network.
-#[derive(Clone, Copy, Default)]
+/// Kept compact (one per net): device indices as `u32`, [`NONE`] for none.
+#[derive(Clone, Copy)]
 struct Signal {
     /// A MOSFET gate or BJT base: the switch.
-    gate: Option<DeviceId>,
-    /// A 555 pin other than its supply and output.
-    timer: Option<(DeviceId, PinRole)>,
+    gate: u32,
+    /// A 555 pin other than its supply and output, and its role.
+    timer: u32,
+    role: PinRole,
+}
+
+const NONE: u32 = u32::MAX;
+
+impl Default for Signal {
+    fn default() -> Self {
+        Signal {
+            gate: NONE,
+            timer: NONE,
+            role: PinRole::Other,
+        }
+    }
+}
+
+impl Signal {
+    fn any(&self) -> bool {
+        self.gate != NONE || self.timer != NONE
+    }
+
+    fn gate(&self) -> Option<DeviceId> {
+        (self.gate != NONE).then_some(self.gate as DeviceId)
+    }
+
+    fn timer(&self) -> Option<(DeviceId, PinRole)> {
+        (self.timer != NONE).then_some((self.timer as DeviceId, self.role))
+    }
 }
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
-    let mut signals: HashMap<NetId, Signal> = HashMap::new();
-    let mut fixed = vec![false; cx.circuit.nets.len()];
+    let mut signals: Vec<Signal> = vec![Signal::default(); cx.circuit.nets.len()];
     for (id, device) in cx.circuit.devices.iter().enumerate() {
         for pin in &device.pins {
             match (device.kind, pin.role) {
                 (k, PinRole::Gate | PinRole::Base) if k.is_switch_transistor() => {
-                    signals.entry(pin.net).or_default().gate.get_or_insert(id);
+                    if let Some(s) = signals.get_mut(pin.net) {
+                        if s.gate == NONE {
+                            s.gate = u32::try_from(id).unwrap_or(NONE);
+                        }
+                    }
                 }
                 (k, r)
                     if k.is_timer() && !matches!(r, PinRole::Vcc | PinRole::Gnd | PinRole::Out) =>
                 {
-                    signals
-                        .entry(pin.net)
-                        .or_default()
-                        .timer
-                        .get_or_insert((id, r));
-                }
-                (Kind::VoltageSource, _) => {
-                    if let Some(f) = fixed.get_mut(pin.net) {
-                        *f = true;
+                    if let Some(s) = signals.get_mut(pin.net) {
+                        if s.timer == NONE {
+                            s.timer = u32::try_from(id).unwrap_or(NONE);
+                            s.role = r;
+                        }
                     }
                 }
                 _ => {}
             }
         }
     }
-    for (net, f) in cx.circuit.nets.iter().zip(fixed.iter_mut()) {
-        *f |= net.is_ground;
-    }
     let ctx = Ctx {
         cx,
         index: &index,
         signals: &signals,
-        fixed: &fixed,
     };
     let mut once = Once::default();
     for (id, device) in cx.circuit.devices.iter().enumerate() {
@@ -81,8 +103,8 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             Kind::Capacitor => ctx.capacitor(id, device, element),
             _ => None,
         };
-        let text = element.value_text.clone().unwrap_or_default();
         if let Some(f) = finding {
+            let text = element.value_text.clone().unwrap_or_default();
             if once.first(element.span, text) {
                 out.push(f);
             }
@@ -120,12 +142,23 @@ fn is_bare_number(text: &str) -> bool {
 
 struct Ctx<'c, 'a> {
     cx: &'c RuleContext<'a>,
-    index: &'c NetIndex,
-    signals: &'c HashMap<NetId, Signal>,
-    fixed: &'c [bool],
+    index: &'c NetIndex<'a>,
+    signals: &'c [Signal],
 }
 
 impl Ctx<'_, '_> {
+    /// The reference, or a net a voltage source sets.
+    fn is_fixed(&self, net: NetId) -> bool {
+        crate::rules::hygiene_util::is_ground(self.cx, net)
+            || self.index.on(net).iter().any(|&(d, _)| {
+                self.cx
+                    .circuit
+                    .devices
+                    .get(d)
+                    .is_some_and(|x| x.kind == Kind::VoltageSource)
+            })
+    }
+
     fn value(&self, id: DeviceId) -> Option<f64> {
         let (d, e) = device_element(self.cx, id)?;
         match d.kind {
@@ -162,14 +195,14 @@ impl Ctx<'_, '_> {
         device
             .pins
             .iter()
-            .find_map(|p| self.signals.get(&p.net).and_then(|s| s.timer))
+            .find_map(|p| self.signals.get(p.net).and_then(Signal::timer))
     }
 
     fn resistor(&self, id: DeviceId, device: &Device, element: &FlatElement) -> Option<Finding> {
         let r = element
             .value
             .and_then(|v| v.known())
-            .or(device.data.value("resistance"))?;
+            .or_else(|| device.data.value("resistance"))?;
         if r.is_nan() || r >= 1.0 {
             return None;
         }
@@ -177,7 +210,7 @@ impl Ctx<'_, '_> {
         let on_signal = device
             .pins
             .iter()
-            .any(|p| self.signals.contains_key(&p.net));
+            .any(|p| self.signals.get(p.net).is_some_and(Signal::any));
         let timer = self.timer_on(device);
         let timing = matches!(
             timer,
@@ -274,13 +307,13 @@ impl Ctx<'_, '_> {
         }
         let far_of = |net: NetId| device.pins.iter().map(|p| p.net).find(|&n| n != net);
         for pin in &device.pins {
-            let Some(signal) = self.signals.get(&pin.net) else {
+            let Some(signal) = self.signals.get(pin.net).filter(|s| s.any()) else {
                 continue;
             };
             let far = far_of(pin.net);
-            let far_fixed = far.is_some_and(|n| self.fixed.get(n).copied().unwrap_or(false));
+            let far_fixed = far.is_some_and(|n| self.is_fixed(n));
             let far_name = far.map_or("?", |n| net_name(self.cx, n));
-            if let Some(switch) = signal.gate {
+            if let Some(switch) = signal.gate() {
                 let name = super::hygiene_util::shown(self.cx, switch);
                 let own_source = self
                     .cx
@@ -301,7 +334,7 @@ impl Ctx<'_, '_> {
                      linear region"
                 );
             }
-            if let Some((timer, role)) = signal.timer {
+            if let Some((timer, role)) = signal.timer() {
                 let name = super::hygiene_util::shown(self.cx, timer);
                 let pin_name = role.as_str().to_ascii_uppercase();
                 let held = match (
@@ -392,7 +425,11 @@ impl Ctx<'_, '_> {
     }
 
     fn capacitor(&self, id: DeviceId, device: &Device, element: &FlatElement) -> Option<Finding> {
-        let c = capacitance(device, element)?;
+        // The value as written is what a unit slip is about.
+        let c = element
+            .value
+            .and_then(|v| v.known())
+            .or_else(|| capacitance(device, element))?;
         if c.is_nan() || c < 1.0 {
             return None;
         }

@@ -50,7 +50,7 @@ pub(crate) fn solve_linear(
     let lu = scaled.lu();
     let u = lu.u();
     let degenerate: Vec<usize> = (0..n)
-        .filter(|&k| u.get((k, k)).map_or(true, |p| p.abs() <= PIVOT_FLOOR))
+        .filter(|&k| u.get((k, k)).is_none_or(|p| p.abs() <= PIVOT_FLOOR))
         .collect();
     if !degenerate.is_empty() {
         return Err(LinearFailure::Degenerate(degenerate));
