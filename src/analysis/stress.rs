@@ -5,11 +5,14 @@
 //! pot on [`STRESS_WIPER_GRID`], at most [`solves::MAX_STATES`] states; see
 //! [`crate::analysis::switching::solves`]) and every resistor, pot and capacitor in it reads
 //! those solves. Where the sub-network has pots, the worst grid state of each objective (a
-//! part's dissipation, a pot's wiper current) is refined by a search along each pot's travel
-//! ([`Context::search_wiper`]): the worst position can lie between grid points. Searches run
-//! most-stressed part first (against its rating) until [`MAX_SEARCH_SOLVES`] solves are spent
-//! in that sub-network; the rest keep their grid values. So the cost per sub-network is
-//! bounded and the total grows with the number of sub-networks.
+//! part's dissipation, a pot's wiper current) is refined along each pot's travel, since the
+//! worst position can lie between grid points (a pot's own dissipation peaks just off its zero
+//! end): one scan of [`SCAN_POINTS`] positions serves every objective with the same base
+//! state, then a golden-section search of [`REFINE_STEPS`] steps brackets each objective's
+//! maximum. Searches run most-stressed part first (against its rating) until
+//! [`MAX_SEARCH_SOLVES`] solves are spent in that sub-network; the rest keep their grid
+//! values. So the cost per sub-network is bounded (at most [`solves::MAX_STATES`] +
+//! [`MAX_SEARCH_SOLVES`] solves) and the total grows with the number of sub-networks.
 
 use super::facts::{CapacitorFacts, Range, ResistorFacts};
 use super::partition::Component;
@@ -19,13 +22,15 @@ use crate::circuit::{DeviceId, Kind, NetId, PinRole};
 use crate::diagnostic::Finding;
 use std::collections::BTreeMap;
 
-/// Wiper positions every pot is solved at before the search.
-pub const STRESS_WIPER_GRID: [f64; 5] = [0.0, 0.25, 0.5, 0.75, 1.0];
-/// Solves spent on wiper searches per sub-network at most (one search costs about 64).
-pub const MAX_SEARCH_SOLVES: usize = 1024;
-/// Solves one [`Context::search_wiper`] call makes (21-point grid, 20 golden-section steps of
-/// two solves, three finishing points).
-const SOLVES_PER_SEARCH: usize = 64;
+/// Wiper positions every pot is solved at before the search (which scans the whole travel).
+pub const STRESS_WIPER_GRID: [f64; 3] = [0.0, 0.5, 1.0];
+/// Solves spent on wiper searches per sub-network at most.
+pub const MAX_SEARCH_SOLVES: usize = 512;
+/// Wiper positions of the shared scan along one pot's travel (every 5 %).
+pub const SCAN_POINTS: usize = 21;
+/// Golden-section steps around an objective's best scan point: the 10 % bracket shrinks to
+/// 0.03 % of the travel.
+pub const REFINE_STEPS: usize = 12;
 /// Rating assumed for ranking searches when a part states none (common practice: ¼ W).
 const DEFAULT_POWER_RATING_W: f64 = 0.25;
 
@@ -199,38 +204,142 @@ fn resistor_facts(
         });
     }
     let pots = cx.pots(component);
-    if pots.is_empty() {
-        return facts;
+    if !pots.is_empty() {
+        searches.sort_by(|a, b| b.3.total_cmp(&a.3));
+        refine(cx, component, s, &mut facts, &searches, &pots);
     }
-    searches.sort_by(|a, b| b.3.total_cmp(&a.3));
-    let mut budget = MAX_SEARCH_SOLVES;
-    for (index, objective, worst, _) in searches {
-        let Some(base) = s.states.get(worst) else {
+    facts
+}
+
+/// Objectives that share a base state (the searched pot's own wiper aside): one scan of the
+/// pot's travel serves them all.
+struct Job {
+    base: State,
+    pot: DeviceId,
+    members: Vec<(usize, Objective)>,
+}
+
+/// Refines each objective's worst grid state along each pot's travel: a scan of
+/// [`SCAN_POINTS`] positions shared by the objectives of a base state, then a golden-section
+/// search of [`REFINE_STEPS`] steps around each objective's best scan point.
+fn refine(
+    cx: &Context<'_>,
+    component: &Component,
+    s: &ComponentSolves,
+    facts: &mut [ResistorFacts],
+    searches: &[(usize, Objective, usize, f64)],
+    pots: &[DeviceId],
+) {
+    let mut jobs: Vec<Job> = Vec::new();
+    for &(index, objective, worst, _) in searches {
+        let Some(state) = s.states.get(worst).map(|x| &x.state) else {
             continue;
         };
-        for &pot in &pots {
-            if budget < SOLVES_PER_SEARCH {
-                return facts;
+        for &pot in pots {
+            let mut base = state.clone();
+            base.wipers.remove(&pot);
+            match jobs.iter_mut().find(|j| j.pot == pot && j.base == base) {
+                Some(job) => job.members.push((index, objective)),
+                None => jobs.push(Job {
+                    base,
+                    pot,
+                    members: vec![(index, objective)],
+                }),
             }
-            budget -= SOLVES_PER_SEARCH;
+        }
+    }
+    let mut budget = MAX_SEARCH_SOLVES;
+    for job in jobs {
+        if budget < SCAN_POINTS {
+            return;
+        }
+        budget -= SCAN_POINTS;
+        let at = |x: f64| -> State {
+            let mut state = job.base.clone();
+            state.wipers.insert(job.pot, x);
+            state
+        };
+        let step = 1.0 / (SCAN_POINTS - 1) as f64;
+        let scan: Vec<(f64, Option<Solved>)> = (0..SCAN_POINTS)
+            .map(|i| {
+                let x = i as f64 * step;
+                (x, cx.solve(component, &at(x)).ok())
+            })
+            .collect();
+        for &(index, objective) in &job.members {
+            if budget < REFINE_STEPS + 2 {
+                return;
+            }
+            budget -= REFINE_STEPS + 2;
             let device = facts[index].device;
-            let found = cx.search_wiper(component, &base.state, pot, &|x| {
-                measure(device, objective, x)
-            });
-            let Some((x, value)) = found else { continue };
-            let mut state = base.state.clone();
-            state.wipers.insert(pot, x);
-            let label = state.describe(cx, &s.inputs);
+            let value = |x: f64| -> Option<f64> {
+                measure(device, objective, &cx.solve(component, &at(x)).ok()?)
+            };
+            let Some((best_x, best_v)) = scan
+                .iter()
+                .filter_map(|(x, solved)| Some((*x, measure(device, objective, solved.as_ref()?)?)))
+                .fold(None, |best: Option<(f64, f64)>, (x, v)| match best {
+                    Some((_, b)) if b >= v => best,
+                    _ => Some((x, v)),
+                })
+            else {
+                continue;
+            };
+            let (x, v) = golden(
+                &value,
+                (best_x - step).max(0.0),
+                (best_x + step).min(1.0),
+                (best_x, best_v),
+            );
+            let label = at(x).describe(cx, &s.inputs);
             let range = match objective {
                 Objective::Power => Some(&mut facts[index].power_w),
                 Objective::WiperCurrent => facts[index].wiper_current_a.as_mut(),
             };
             if let Some(r) = range {
-                r.include(value, &label);
+                r.include(v, &label);
             }
         }
     }
-    facts
+}
+
+/// Golden-section search for the maximum of `f` on `[lo, hi]`, reusing one point per step;
+/// returns the best of what it saw and `start`.
+fn golden(
+    f: &dyn Fn(f64) -> Option<f64>,
+    mut lo: f64,
+    mut hi: f64,
+    start: (f64, f64),
+) -> (f64, f64) {
+    let phi = 0.5 * (5f64.sqrt() - 1.0);
+    let mut best = start;
+    let see = |x: f64, v: Option<f64>, best: &mut (f64, f64)| {
+        if let Some(v) = v.filter(|v| v.is_finite()) {
+            if v > best.1 {
+                *best = (x, v);
+            }
+        }
+        v.unwrap_or(f64::NEG_INFINITY)
+    };
+    let (mut c, mut d) = (hi - phi * (hi - lo), lo + phi * (hi - lo));
+    let mut fc = see(c, f(c), &mut best);
+    let mut fd = see(d, f(d), &mut best);
+    for _ in 0..REFINE_STEPS {
+        if fc >= fd {
+            hi = d;
+            d = c;
+            fd = fc;
+            c = hi - phi * (hi - lo);
+            fc = see(c, f(c), &mut best);
+        } else {
+            lo = c;
+            c = d;
+            fc = fd;
+            d = lo + phi * (hi - lo);
+            fd = see(d, f(d), &mut best);
+        }
+    }
+    best
 }
 
 /// Potential of `net` in a solve of `component`: fixed nets from the state, the component's

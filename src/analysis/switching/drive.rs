@@ -15,7 +15,7 @@ use super::gate_network::GateDrive;
 use super::solves::{ComponentSolves, SolvedState};
 use super::topology::SwitchTopology;
 use crate::analysis::dc::{BjtRegion, MosRegion};
-use crate::analysis::facts::{Range, TimerFacts};
+use crate::analysis::facts::Range;
 use crate::analysis::stand_in;
 use crate::analysis::states::{Context, Corner, Solved};
 use crate::circuit::{DeviceId, PinRole};
@@ -327,7 +327,7 @@ pub fn triode_resistance(k: f64, vt: f64, vgs: f64) -> Option<f64> {
 /// Duty (fraction of the period at the `high` level) and frequency of a switching input.
 pub fn input_timing(
     cx: &Context<'_>,
-    timers: &[TimerFacts],
+    timers: &super::Timers<'_>,
     input: DeviceId,
 ) -> (Option<Range>, Option<Range>) {
     let name = cx.name(input).to_string();
@@ -347,7 +347,7 @@ pub fn input_timing(
             .map(|f| Range::point(f, from.clone()));
         return (duty, freq);
     }
-    match timers.iter().find(|t| t.device == input) {
+    match timers.get(&input) {
         Some(timer) => {
             let divided = format!("{name} divides its trigger frequency");
             let duty = match timer.divided_duty {

@@ -25,6 +25,9 @@ use solves::ComponentSolves;
 use std::collections::BTreeMap;
 use topology::SwitchTopology;
 
+/// Timer facts by timer device.
+pub type Timers<'a> = BTreeMap<DeviceId, &'a TimerFacts>;
+
 /// Wiper positions a switch's sub-network is solved at (pots there are rare: a gate divider).
 const SWITCH_WIPER_GRID: [f64; 3] = [0.0, 0.5, 1.0];
 
@@ -33,7 +36,14 @@ pub fn analyze(
     timers: &[TimerFacts],
 ) -> (Vec<SwitchFacts>, Vec<LoadFacts>, Vec<Finding>) {
     let nets = NetMap::new(cx);
+    let timers: Timers<'_> = timers.iter().map(|t| (t.device, t)).collect();
+    let timers = &timers;
     let topologies = topology::classify_all(cx, &nets);
+    let position: BTreeMap<DeviceId, usize> = topologies
+        .iter()
+        .enumerate()
+        .map(|(i, t)| (t.device, i))
+        .collect();
     let drives: Vec<GateDrive> = topologies
         .iter()
         .map(|t| gate_network::find(cx, &nets, t))
@@ -89,7 +99,7 @@ pub fn analyze(
             continue;
         };
         let partner = t.partner.and_then(|p| {
-            let j = topologies.iter().position(|o| o.device == p)?;
+            let j = *position.get(&p)?;
             Some((drives[j].control?, on_levels[j]?))
         });
         let states = drive::on_off(t, drives[i].control, on_levels[i], partner, s);
@@ -173,18 +183,19 @@ pub fn analyze(
 
 /// Notes, on each driver, the other switches driven from the same device.
 fn share_drives(switches: &mut [SwitchFacts]) {
-    let pairs: Vec<(DeviceId, DeviceId)> = switches
-        .iter()
-        .filter_map(|s| Some((s.driver.as_ref()?.device, s.device)))
-        .collect();
+    let mut by_driver: BTreeMap<DeviceId, Vec<DeviceId>> = BTreeMap::new();
+    for s in switches.iter() {
+        if let Some(d) = &s.driver {
+            by_driver.entry(d.device).or_default().push(s.device);
+        }
+    }
     for s in switches.iter_mut() {
         let me = s.device;
         if let Some(driver) = &mut s.driver {
-            driver.shared_with = pairs
-                .iter()
-                .filter(|(d, sw)| *d == driver.device && *sw != me)
-                .map(|&(_, sw)| sw)
-                .collect();
+            driver.shared_with = by_driver
+                .get(&driver.device)
+                .map(|all| all.iter().copied().filter(|&sw| sw != me).collect())
+                .unwrap_or_default();
         }
     }
 }
@@ -254,7 +265,7 @@ fn bare_switch(cx: &Context<'_>, t: &SwitchTopology, all: &[SwitchTopology]) -> 
 #[allow(clippy::too_many_arguments)]
 fn switch_facts(
     cx: &Context<'_>,
-    timers: &[TimerFacts],
+    timers: &Timers<'_>,
     nets: &NetMap,
     t: &SwitchTopology,
     all: &[SwitchTopology],
@@ -362,7 +373,7 @@ fn switch_facts(
 /// level that puts more voltage across it, or always when it hangs on none.
 fn unswitched_load(
     cx: &Context<'_>,
-    timers: &[TimerFacts],
+    timers: &Timers<'_>,
     nets: &NetMap,
     device: DeviceId,
     s: &ComponentSolves,
