@@ -40,8 +40,17 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             None => rails.push((net, supply, vec![sw])),
         }
     }
+    let mut legs: Vec<NetId> = cx
+        .analysis
+        .switches
+        .iter()
+        .filter(|s| s.side == Side::Bridge)
+        .filter_map(|s| s.switched_net)
+        .collect();
+    legs.sort_unstable();
+    legs.dedup();
     for (net, supply, switches) in rails {
-        out.extend(finding(cx, &index, net, supply, &switches));
+        out.extend(finding(cx, &index, &legs, net, supply, &switches));
     }
 }
 
@@ -74,6 +83,7 @@ fn rail_capacitors(cx: &RuleContext<'_>, index: &NetIndex, net: NetId) -> Vec<(D
 fn finding(
     cx: &RuleContext<'_>,
     index: &NetIndex,
+    legs: &[NetId],
     net: NetId,
     supply: DeviceId,
     switches: &[&SwitchFacts],
@@ -90,7 +100,7 @@ fn finding(
         .iter()
         .filter(|s| s.side == Side::Bridge)
         .filter_map(|s| {
-            let l = load_of(cx, s).filter(|l| between_legs(cx, l.device))?;
+            let l = load_of(cx, s).filter(|l| between_legs(cx, legs, l.device))?;
             let ind = l.inductance.as_ref()?.value;
             let i = l.current_a.as_ref()?.max.abs();
             Some((ind * i * i, s.device))
@@ -202,14 +212,7 @@ fn finding(
 /// True when both ends of a load sit on bridge legs' switched nodes (a full bridge). Only then
 /// does the winding's current at turn-off flow back through the opposite switches' body diodes
 /// into the rail; across a half-bridge leg to a rail it circulates through one diode instead.
-fn between_legs(cx: &RuleContext<'_>, load: DeviceId) -> bool {
-    let legs: Vec<NetId> = cx
-        .analysis
-        .switches
-        .iter()
-        .filter(|s| s.side == Side::Bridge)
-        .filter_map(|s| s.switched_net)
-        .collect();
+fn between_legs(cx: &RuleContext<'_>, legs: &[NetId], load: DeviceId) -> bool {
     cx.circuit
         .devices
         .get(load)

@@ -6,17 +6,19 @@ use super::switch_util::{drive_level, finding_at, kind, label, name, rated_or, t
 use super::units::format_si;
 use super::RuleContext;
 use crate::analysis::Range;
-use crate::circuit::{DeviceId, Kind, PinRole};
+use crate::circuit::{DeviceId, Kind, NetId, PinRole};
 use crate::diagnostic::{Finding, Severity};
+use std::collections::BTreeMap;
 
 const RULE: &str = "driver-overload";
 /// V_BE of a silicon switch driven hard (from memory).
 const VBE_ON_V: f64 = 0.8;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
+    let mut draws = all_draws(cx);
     for (id, d) in cx.circuit.devices.iter().enumerate() {
         if d.kind.is_timer() || d.kind == Kind::LogicOutput {
-            out.extend(finding(cx, id));
+            out.extend(finding(cx, id, draws.remove(&id).unwrap_or_default()));
         }
     }
 }
@@ -39,31 +41,48 @@ impl Draw {
     }
 }
 
-fn draws(cx: &RuleContext<'_>, id: DeviceId) -> Vec<Draw> {
-    let mut found = Vec::new();
-    let out_net = cx.circuit.devices.get(id).and_then(|d| d.pin(PinRole::Out));
-    if let Some(net) = out_net {
-        for load in &cx.analysis.loads {
-            let on_pin = load.driven_by == Some(id)
-                || cx
-                    .circuit
-                    .devices
-                    .get(load.device)
-                    .is_some_and(|d| d.pins.iter().any(|p| p.net == net));
-            let amps = load
-                .current_a
-                .as_ref()
-                .map(|r| r.max.abs().max(r.min.abs()));
-            if let (true, Some(a)) = (on_pin, amps) {
-                found.push(Draw::Load(load.device, a));
+/// What draws from each output pin, for every driver at once (one pass over loads and
+/// switches).
+fn all_draws(cx: &RuleContext<'_>) -> BTreeMap<DeviceId, Vec<Draw>> {
+    let mut by_out_net: BTreeMap<NetId, Vec<DeviceId>> = BTreeMap::new();
+    for (id, d) in cx.circuit.devices.iter().enumerate() {
+        if d.kind.is_timer() || d.kind == Kind::LogicOutput {
+            if let Some(net) = d.pin(PinRole::Out) {
+                by_out_net.entry(net).or_default().push(id);
             }
         }
     }
-    for sw in &cx.analysis.switches {
-        let driven = sw.driver.as_ref().filter(|d| d.device == id);
-        let (Some(driver), true) = (driven, kind(cx, sw.device).is_some_and(Kind::is_bjt)) else {
+    let mut found: BTreeMap<DeviceId, Vec<Draw>> = BTreeMap::new();
+    for load in &cx.analysis.loads {
+        let Some(amps) = load
+            .current_a
+            .as_ref()
+            .map(|r| r.max.abs().max(r.min.abs()))
+        else {
             continue;
         };
+        let mut drivers: Vec<DeviceId> = load.driven_by.into_iter().collect();
+        if let Some(d) = cx.circuit.devices.get(load.device) {
+            for pin in &d.pins {
+                drivers.extend(by_out_net.get(&pin.net).into_iter().flatten().copied());
+            }
+        }
+        drivers.sort_unstable();
+        drivers.dedup();
+        for driver in drivers {
+            found
+                .entry(driver)
+                .or_default()
+                .push(Draw::Load(load.device, amps));
+        }
+    }
+    for sw in &cx.analysis.switches {
+        let Some(driver) = sw.driver.as_ref() else {
+            continue;
+        };
+        if !kind(cx, sw.device).is_some_and(Kind::is_bjt) {
+            continue;
+        }
         let Some(amps) = sw
             .base_current_a
             .as_ref()
@@ -76,7 +95,7 @@ fn draws(cx: &RuleContext<'_>, id: DeviceId) -> Vec<Draw> {
             .iter()
             .copied()
             .find(|&n| kind(cx, n) == Some(Kind::Resistor));
-        found.push(Draw::Base {
+        found.entry(driver.device).or_default().push(Draw::Base {
             switch: sw.device,
             resistor,
             amps,
@@ -85,7 +104,7 @@ fn draws(cx: &RuleContext<'_>, id: DeviceId) -> Vec<Draw> {
     found
 }
 
-fn finding(cx: &RuleContext<'_>, id: DeviceId) -> Option<Finding> {
+fn finding(cx: &RuleContext<'_>, id: DeviceId, draws: Vec<Draw>) -> Option<Finding> {
     let default = if kind(cx, id) == Some(Kind::LogicOutput) {
         0.02
     } else {
@@ -98,7 +117,6 @@ fn finding(cx: &RuleContext<'_>, id: DeviceId) -> Option<Finding> {
         default,
         "default out_current_max (from memory)",
     );
-    let draws = draws(cx, id);
     let computed: f64 = draws.iter().map(Draw::amps).sum();
     let (amps, state) = match timer_facts(cx, id).and_then(|t| t.output_current_a.as_ref()) {
         Some(r) => worst(r),

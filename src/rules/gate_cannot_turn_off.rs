@@ -4,6 +4,7 @@
 use super::shoot_through::conducts_with_partner;
 use super::switch_util::{
     drive_level, finding_at, in_conduction_sense, kind, label, load_device, name, rail, rated_or,
+    SwitchIndex,
 };
 use super::units::format_si;
 use super::RuleContext;
@@ -14,22 +15,32 @@ use crate::diagnostic::{Finding, Severity};
 const RULE: &str = "gate-cannot-turn-off";
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
+    let index = SwitchIndex::new(cx);
     for sw in &cx.analysis.switches {
         let Some(k) = kind(cx, sw.device).filter(|k| k.is_mos()) else {
             continue;
         };
-        out.extend(finding(cx, sw, k));
+        out.extend(finding(cx, &index, sw, k));
     }
 }
 
 /// True when `shoot-through` already reports this switch conducting beside its bridge partner.
-fn reported_as_shoot_through(cx: &RuleContext<'_>, sw: &SwitchFacts) -> bool {
+fn reported_as_shoot_through(
+    cx: &RuleContext<'_>,
+    index: &SwitchIndex<'_>,
+    sw: &SwitchFacts,
+) -> bool {
     sw.bridge_partner
-        .and_then(|p| cx.analysis.switches.iter().find(|s| s.device == p))
+        .and_then(|p| index.get(p))
         .is_some_and(|partner| conducts_with_partner(cx, sw, partner).is_some())
 }
 
-fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding> {
+fn finding(
+    cx: &RuleContext<'_>,
+    index: &SwitchIndex<'_>,
+    sw: &SwitchFacts,
+    k: Kind,
+) -> Option<Finding> {
     let off = in_conduction_sense(sw.vgs_off_v.as_ref()?, k);
     let th = rated_or(
         cx,
@@ -41,7 +52,7 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding> {
     let v = off.strongest;
     let state = &off.strongest_state;
     let severity = if v >= th.value {
-        if reported_as_shoot_through(cx, sw) {
+        if reported_as_shoot_through(cx, index, sw) {
             return None;
         }
         Severity::Error

@@ -19,9 +19,9 @@ use crate::diagnostic::{Finding, Severity};
 const RULE: &str = "gate-underdrive";
 /// Margin above the edge of the triode region (DESIGN: 1 V).
 const MARGIN_V: f64 = 1.0;
-/// A drive this close to `vgs_rated` counts as the rated drive (the note would only restate
-/// solver and divider rounding).
-const RATED_TOLERANCE_V: f64 = 0.1;
+/// A drive within this share of `vgs_rated` counts as the rated drive: the on-resistance rises
+/// by well under 20 % (square law), not worth a note.
+const RATED_SHARE: f64 = 0.9;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     for sw in &cx.analysis.switches {
@@ -227,6 +227,11 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
         2.0,
         "standard-threshold default (common practice)",
     );
+    if vgs < th_min.value && sw.driver.is_none() {
+        // No DC drive reaches the gate at all (a coupling capacitor, an open pin): that is
+        // `gate-floating`'s and `pin-unconnected`'s finding, not a weak drive.
+        return None;
+    }
     let (severity, message) = if vgs < th_min.value {
         let load = load_device(cx, sw).map_or_else(|| "its load".to_string(), |l| name(cx, l));
         (
@@ -256,7 +261,7 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
             ));
         }
         (Severity::Error, m)
-    } else if vgs < rated.value - RATED_TOLERANCE_V {
+    } else if vgs < RATED_SHARE * rated.value {
         let mut m = format!(
             "{s}'s gate gets {}{from} ({state}), below the {} its on-resistance is rated at",
             format_si(vgs, "V"),

@@ -3,10 +3,11 @@
 
 use super::switch_util::{
     dc_resistance, duty_text, finding_at, label, name, supply_facts, timer_facts, NetIndex,
+    SwitchIndex,
 };
 use super::units::{format_si, percent};
 use super::RuleContext;
-use crate::analysis::LoadFacts;
+use crate::analysis::{LoadFacts, SwitchFacts};
 use crate::circuit::{PinRole, Rated};
 use crate::diagnostic::{Finding, Severity};
 
@@ -22,12 +23,18 @@ const PEAK_WARNING: f64 = 2.0;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
+    let switches = SwitchIndex::new(cx);
     for load in &cx.analysis.loads {
-        out.extend(finding(cx, &index, load));
+        out.extend(finding(cx, &index, &switches, load));
     }
 }
 
-fn finding(cx: &RuleContext<'_>, index: &NetIndex, load: &LoadFacts) -> Option<Finding> {
+fn finding(
+    cx: &RuleContext<'_>,
+    index: &NetIndex,
+    switches: &SwitchIndex<'_>,
+    load: &LoadFacts,
+) -> Option<Finding> {
     let rated = load.rated_v.as_ref().filter(|r| r.value > 0.0)?;
     let peak = load.peak_v.as_ref()?;
     let effective = load.effective_v.as_ref().unwrap_or(peak);
@@ -35,7 +42,8 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, load: &LoadFacts) -> Option<F
     let r = rated.value;
     // A switch stuck in its linear region hides the rail from the load; once its drive is
     // fixed the load gets the rail. Judge the load on that.
-    let starved = full_on_peak(cx, load).filter(|full| *full > pk);
+    let own_switch = load.switch.and_then(|s| switches.get(s));
+    let starved = full_on_peak(cx, own_switch, load).filter(|full| *full > pk);
     if let Some(full) = starved {
         let scale = if pk > 0.0 { eff / pk } else { 1.0 };
         eff = full * scale.clamp(0.0, 1.0);
@@ -69,8 +77,13 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, load: &LoadFacts) -> Option<F
         let sw = load
             .switch
             .map_or_else(|| "its switch".into(), |s| name(cx, s));
+        let drop = own_switch
+            .and_then(|s| s.vds_on_v.as_ref())
+            .map_or_else(String::new, |v| {
+                format!(" and drops {}", format_si(v.max.abs(), "V"))
+            });
         message.push_str(&format!(
-            "; with {sw} fully on — it now runs in its linear region and drops most of the rail"
+            "; with {sw} fully on: it now runs in its linear region{drop}"
         ));
     }
     message.push_str("): ");
@@ -103,23 +116,20 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, load: &LoadFacts) -> Option<F
     let mut f = finding_at(RULE, severity, cx, load.device, message)?;
     if let Some(sw) = load.switch {
         f = label(f, cx, sw, &format!("switches {l}"));
-        let driver = cx
-            .analysis
-            .switches
-            .iter()
-            .find(|s| s.device == sw)
-            .and_then(|s| s.driver.as_ref())
-            .map(|d| d.device);
-        if let Some(d) = driver {
-            f = label(f, cx, d, "sets the duty");
-            if let Some(t) = timer_facts(cx, d) {
-                for &pot in &t.pots {
-                    f = label(f, cx, pot, "sets the duty range");
-                }
+    }
+    let driver = own_switch
+        .and_then(|s| s.driver.as_ref())
+        .map(|d| d.control.unwrap_or(d.device))
+        .or(load.driven_by);
+    if let Some(d) = driver {
+        f = label(f, cx, d, "sets the duty");
+        if let Some(t) = timer_facts(cx, d) {
+            for &pot in &t.pots {
+                f = label(f, cx, pot, "sets the duty range");
             }
         }
     }
-    if let Some(s) = supply_of(cx, index, load) {
+    if let Some(s) = supply_of(cx, index, own_switch, load) {
         let text = supply_facts(cx, s).map_or_else(
             || "the rail it runs from".to_string(),
             |v| format!("the {} rail it runs from", format_si(v.max, "V")),
@@ -174,28 +184,25 @@ fn duty_limit(load: &LoadFacts, rated: &Rated, peak: f64) -> Option<f64> {
 }
 
 /// The supply on either end of the load, when one end sits on a rail.
-fn supply_of(cx: &RuleContext<'_>, index: &NetIndex, load: &LoadFacts) -> Option<usize> {
+fn supply_of(
+    cx: &RuleContext<'_>,
+    index: &NetIndex,
+    own_switch: Option<&SwitchFacts>,
+    load: &LoadFacts,
+) -> Option<usize> {
     let d = cx.circuit.devices.get(load.device)?;
     [PinRole::Pos, PinRole::Neg]
         .into_iter()
         .filter_map(|r| d.pin(r))
         .find_map(|n| index.supply_on(cx, n))
         .map(|s| s.device)
-        .or_else(|| {
-            load.switch
-                .and_then(|sw| cx.analysis.switches.iter().find(|s| s.device == sw))
-                .and_then(|s| s.rail_supply)
-        })
+        .or_else(|| own_switch.and_then(|s| s.rail_supply))
 }
 
 /// The load's peak voltage with its switch fully on, when the switch now runs in its linear
 /// region (a starved gate or base, a follower): the rail shared over the branch's resistances.
-fn full_on_peak(cx: &RuleContext<'_>, load: &LoadFacts) -> Option<f64> {
-    let sw = cx
-        .analysis
-        .switches
-        .iter()
-        .find(|s| Some(s.device) == load.switch)?;
+fn full_on_peak(cx: &RuleContext<'_>, sw: Option<&SwitchFacts>, load: &LoadFacts) -> Option<f64> {
+    let sw = sw?;
     if !(sw.linear_region || sw.follower) {
         return None;
     }

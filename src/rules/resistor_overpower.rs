@@ -3,7 +3,7 @@
 
 use super::eseries::{ohms, round_up, E12};
 use super::switch_util::{
-    dc_resistance, finding_at, kind, label, name, next_rating, rated_or, RESISTOR_WATTS,
+    dc_resistance, finding_at, kind, label, name, next_rating, rated_or, NetIndex, RESISTOR_WATTS,
 };
 use super::units::format_si;
 use super::RuleContext;
@@ -16,14 +16,15 @@ const RULE: &str = "resistor-overpower";
 const DERATING: f64 = 0.6;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
+    let index = NetIndex::new(cx);
     for facts in &cx.analysis.resistors {
-        out.extend(finding(cx, facts));
+        out.extend(finding(cx, &index, facts));
     }
 }
 
 /// Pots and timers that share a net with the resistor, or whose discharge chain holds it: the
 /// parts that set its worst state.
-fn involved(cx: &RuleContext<'_>, id: DeviceId) -> Vec<(DeviceId, String)> {
+fn involved(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> Vec<(DeviceId, String)> {
     let mut found = Vec::new();
     for t in &cx.analysis.timers {
         if t.discharge_chain.contains(&id) {
@@ -38,26 +39,21 @@ fn involved(cx: &RuleContext<'_>, id: DeviceId) -> Vec<(DeviceId, String)> {
             }
         }
     }
-    let nets: Vec<usize> = cx
-        .circuit
-        .devices
-        .get(id)
-        .map(|d| d.pins.iter().map(|p| p.net).collect())
-        .unwrap_or_default();
-    for (other, d) in cx.circuit.devices.iter().enumerate() {
-        let adjacent = d.pins.iter().any(|p| nets.contains(&p.net));
-        if other != id
-            && adjacent
-            && d.kind == Kind::Potentiometer
-            && !found.iter().any(|(f, _)| *f == other)
-        {
-            found.push((other, "at its worst position".to_string()));
+    let Some(d) = cx.circuit.devices.get(id) else {
+        return found;
+    };
+    for pin in &d.pins {
+        for &(other, _) in index.on(pin.net) {
+            let pot = cx.circuit.devices.get(other).map(|o| o.kind) == Some(Kind::Potentiometer);
+            if other != id && pot && !found.iter().any(|(f, _)| *f == other) {
+                found.push((other, "at its worst position".to_string()));
+            }
         }
     }
     found
 }
 
-fn finding(cx: &RuleContext<'_>, facts: &ResistorFacts) -> Option<Finding> {
+fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Option<Finding> {
     let id = facts.device;
     let p = facts.power_w.max;
     let rating = rated_or(
@@ -91,7 +87,7 @@ fn finding(cx: &RuleContext<'_>, facts: &ResistorFacts) -> Option<Finding> {
         format_si(rating.value, "W")
     );
     let mut f = finding_at(RULE, severity, cx, id, message)?;
-    for (other, text) in involved(cx, id) {
+    for (other, text) in involved(cx, index, id) {
         f = label(f, cx, other, &text);
     }
     let wanted = p / DERATING;

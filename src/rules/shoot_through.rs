@@ -7,6 +7,7 @@
 
 use super::switch_util::{
     element, finding_at, held_off, in_conduction_sense, kind, label, name, rail, rated_or,
+    SwitchIndex,
 };
 use super::units::format_si;
 use super::RuleContext;
@@ -18,12 +19,9 @@ use crate::netlist::Waveform;
 const RULE: &str = "shoot-through";
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
-    let switches = &cx.analysis.switches;
-    for sw in switches {
-        let Some(partner) = sw
-            .bridge_partner
-            .and_then(|p| switches.iter().find(|s| s.device == p))
-        else {
+    let index = SwitchIndex::new(cx);
+    for sw in &cx.analysis.switches {
+        let Some(partner) = sw.bridge_partner.and_then(|p| index.get(p)) else {
             continue;
         };
         if held_off(cx, sw) || held_off(cx, partner) {
