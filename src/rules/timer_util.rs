@@ -5,7 +5,6 @@ use super::units::{format_si, sig3};
 use super::RuleContext;
 use crate::analysis::Range;
 use crate::circuit::{DeviceId, Kind, Rated};
-use crate::diagnostic::{Finding, Severity};
 use crate::netlist::FlatElement;
 
 pub fn element<'a>(cx: &RuleContext<'a>, id: DeviceId) -> Option<&'a FlatElement> {
@@ -21,30 +20,8 @@ pub fn name(cx: &RuleContext<'_>, id: DeviceId) -> String {
     element(cx, id).map_or_else(|| format!("device {id}"), |e| e.path.clone())
 }
 
-/// A finding on a device's line, with its instance path and the instance lines that placed it.
-pub fn finding_at(
-    rule: &str,
-    severity: Severity,
-    cx: &RuleContext<'_>,
-    id: DeviceId,
-    message: impl Into<String>,
-) -> Option<Finding> {
-    let element = element(cx, id)?;
-    let mut finding = Finding::new(rule, severity, element.span, message)
-        .with_element(element.name.clone(), element.instance_path());
-    finding.instances = element.instances.clone();
-    Some(finding)
-}
-
-/// Adds a label on a device's line, unless it is the finding's own line or already labelled.
-pub fn label(finding: Finding, cx: &RuleContext<'_>, id: DeviceId, message: &str) -> Finding {
-    match element(cx, id) {
-        Some(e) if e.span != finding.span && !finding.labels.iter().any(|l| l.span == e.span) => {
-            finding.with_label(e.span, message)
-        }
-        _ => finding,
-    }
-}
+/// Findings and labels on device lines are built the same way for every rule family.
+pub use super::switch_util::{finding_at, label};
 
 /// A timer rating with its provenance, or the kind's documented default.
 pub fn rated_or(cx: &RuleContext<'_>, id: DeviceId, key: &str, bipolar: f64, cmos: f64) -> Rated {
