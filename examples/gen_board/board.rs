@@ -1,0 +1,119 @@
+//! Generated motor-drive boards for benchmarks: repeated dosing channels, each a 555 one-shot
+//! with a pot, a low-side MOSFET, a pump with its freewheel diode and passives, with the
+//! mistakes real boards carry on a few channels (an unprotected discharge pin, a missing diode).
+//! Shared by the `gen_board` example and the criterion benches.
+
+use std::io::{self, Write};
+
+/// Elements in one channel.
+pub const CHANNEL_ELEMENTS: usize = 10;
+
+/// One channel in fifty is wired wrong, as on a board nobody has reviewed.
+const FAULT_EVERY: usize = 50;
+
+/// Part data the generated boards need, as `kickback.toml` beside them.
+pub const CONFIG: &str = "\
+# Part data for the generated benchmark boards.
+[parts.TIMER555]
+kind = \"timer-555\"
+
+[parts.POT]
+kind = \"potentiometer\"
+
+[parts.PUMP12]
+kind = \"dc-motor\"
+rated_voltage = 12
+resistance = 8
+inductance = \"1m\"
+";
+
+fn channel(out: &mut impl Write, tag: &str, faulty: bool) -> io::Result<()> {
+    writeln!(
+        out,
+        "XU{tag} 0 trig ctl_{tag} v12 ctl_{tag} tc_{tag} tc_{tag} v12 TIMER555"
+    )?;
+    if faulty {
+        writeln!(out, "XRV{tag} v12 tc_{tag} tc_{tag} POT r=10k")?;
+    } else {
+        writeln!(out, "RS{tag} v12 rs_{tag} 1k")?;
+        writeln!(out, "XRV{tag} rs_{tag} tc_{tag} tc_{tag} POT r=10k")?;
+    }
+    writeln!(out, "C{tag} tc_{tag} 0 100n")?;
+    writeln!(out, "CC{tag} ctl_{tag} 0 10n")?;
+    writeln!(out, "RG{tag} ctl_{tag} g_{tag} 100")?;
+    writeln!(out, "M{tag} d_{tag} g_{tag} 0 0 NCH")?;
+    writeln!(out, "XP{tag} v12 d_{tag} PUMP12")?;
+    if !faulty {
+        writeln!(out, "D{tag} d_{tag} v12 DSW")?;
+    }
+    writeln!(out, "CD{tag} v12 0 100n")?;
+    Ok(())
+}
+
+fn header(out: &mut impl Write, title: &str) -> io::Result<()> {
+    writeln!(out, "{title}")?;
+    writeln!(out, "V12 v12 0 DC 12")?;
+    writeln!(out, "VTRIG trig 0 PULSE(12 0 0 1u 1u 10u 1m)")
+}
+
+fn footer(out: &mut impl Write) -> io::Result<()> {
+    writeln!(out, ".model NCH NMOS (VTO=2.5 KP=4 W=1 L=1)")?;
+    writeln!(out, ".model DSW D (IS=30u N=1.05 RS=0.05 BV=40)")?;
+    writeln!(out, ".end")
+}
+
+/// A flat board of `channels` channels.
+pub fn write_flat(out: &mut impl Write, channels: usize) -> io::Result<()> {
+    header(out, &format!("Generated dosing rack - {channels} channels"))?;
+    for i in 0..channels {
+        channel(out, &i.to_string(), i % FAULT_EVERY == 7)?;
+    }
+    footer(out)
+}
+
+/// How many times each level instantiates the one below, so that the product comes as close
+/// to `target` as whole numbers allow: every fan is ⌊target^(1/levels)⌋ or one more.
+pub fn fans(target: usize, levels: usize) -> Vec<usize> {
+    let levels = levels.max(1);
+    let base = ((target.max(1) as f64).powf(1.0 / levels as f64).floor() as usize).max(1);
+    let mut fans = vec![base; levels];
+    let product = |f: &[usize]| f.iter().fold(1usize, |p, &x| p.saturating_mul(x));
+    for i in 0..levels {
+        let mut bumped = fans.clone();
+        bumped[i] += 1;
+        let closer = product(&bumped).abs_diff(target) < product(&fans).abs_diff(target);
+        if closer {
+            fans = bumped;
+        }
+    }
+    fans
+}
+
+/// A board of about `channels` channels in `levels` levels of subcircuits: level 1 is a bank of
+/// fifty channels (one of them faulty), every level above instantiates the one below.
+pub fn write_nested(out: &mut impl Write, channels: usize, levels: usize) -> io::Result<()> {
+    let levels = levels.max(1);
+    let banks = channels.div_ceil(FAULT_EVERY).max(1);
+    let fans = fans(banks, levels - 1);
+    let total = fans.iter().product::<usize>() * FAULT_EVERY;
+    header(
+        out,
+        &format!("Generated dosing rack - {total} channels in {levels} levels"),
+    )?;
+    writeln!(out, ".subckt LEVEL1 v12 trig")?;
+    for i in 0..FAULT_EVERY {
+        channel(out, &i.to_string(), i == 7)?;
+    }
+    writeln!(out, ".ends LEVEL1")?;
+    let mut top = 1;
+    for (level, fan) in (2..=levels).zip(fans.iter().copied()) {
+        writeln!(out, ".subckt LEVEL{level} v12 trig")?;
+        for k in 0..fan {
+            writeln!(out, "X{k} v12 trig LEVEL{}", level - 1)?;
+        }
+        writeln!(out, ".ends LEVEL{level}")?;
+        top = level;
+    }
+    writeln!(out, "XTOP v12 trig LEVEL{top}")?;
+    footer(out)
+}
