@@ -3,7 +3,7 @@
 
 use super::eseries::{ohms, round_down, E12};
 use super::switch_util::{
-    drive_level, finding_at, held_off, kind, label, load_device, load_of, name, rated,
+    drive_level, finding_at, held_off, is_switched, kind, label, load_device, load_of, name, rated,
     saturated_current, shorted_through, weakest_magnitude,
 };
 use super::units::format_si;
@@ -22,7 +22,8 @@ const VBE_ON_V: f64 = 0.8;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     for sw in &cx.analysis.switches {
-        if kind(cx, sw.device).is_some_and(Kind::is_bjt) && !held_off(cx, sw) {
+        if kind(cx, sw.device).is_some_and(Kind::is_bjt) && !held_off(cx, sw) && is_switched(cx, sw)
+        {
             out.extend(finding(cx, sw));
         }
     }

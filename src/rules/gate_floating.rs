@@ -3,8 +3,8 @@
 //!
 //! The gate network is everything reached from the gate through resistors and inductive parts.
 //! It is held when it reaches ground, a voltage source's terminal (a rail, a pulse source), the
-//! switch's own source/emitter, or an output that is always driven (a 555's OUT, another
-//! transistor, a controlled source, a part of unknown kind). It can float when the only drive
+//! switch's own source/emitter, an independent current source, or an output that is always
+//! driven (a 555's OUT, another transistor, a controlled source, a part of unknown kind). It can float when the only drive
 //! is a logic output (high-impedance during reset and while unpowered), or when the gate is
 //! reached only through capacitors, diodes, switches or connectors, or by nothing at all.
 
@@ -43,7 +43,12 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             continue;
         }
         let trace = tracer.trace(gate, &[source]);
-        let held = trace.is_driven() || trace.nets.contains(&source);
+        // A current source (bias, or a current-output controlled source) sets the base current
+        // at every instant: the base is driven, however odd that is for a gate.
+        let fed = trace.blocked.iter().any(|&d| {
+            cx.circuit.devices.get(d).is_some_and(|d| d.kind == Kind::CurrentSource)
+        });
+        let held = trace.is_driven() || trace.nets.contains(&source) || fed;
         let analysis_says_float = cx
             .analysis
             .switches

@@ -7,8 +7,8 @@
 //! its on-resistance low.
 
 use super::switch_util::{
-    drive_level, finding_at, held_off, in_conduction_sense, kind, label, load_device, load_of,
-    mos_gain, name, rated_or, rds_at, saturated_current, shorted_through,
+    drive_level, finding_at, held_off, in_conduction_sense, is_switched, kind, label, load_device,
+    load_of, mos_gain, name, rated_or, rds_at, saturated_current, shorted_through,
 };
 use super::units::format_si;
 use super::RuleContext;
@@ -28,7 +28,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         let Some(k) = kind(cx, sw.device).filter(|k| k.is_mos()) else {
             continue;
         };
-        if held_off(cx, sw) {
+        if held_off(cx, sw) || !is_switched(cx, sw) {
             continue;
         }
         let boosted = sw.driver.as_ref().is_some_and(|d| d.boosted);
