@@ -3,7 +3,7 @@
 
 use super::eseries::{ohms, round_up, E12};
 use super::switch_util::{
-    dc_resistance, finding_at, kind, label, name, next_rating, rated_or, NetIndex, RESISTOR_WATTS,
+    dc_resistance, element, finding_at, kind, label, name, next_rating, rated_or, NetIndex, RESISTOR_WATTS,
 };
 use super::units::format_si;
 use super::RuleContext;
@@ -53,8 +53,33 @@ fn involved(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> Vec<(Device
     found
 }
 
+/// True when the resistor is the copper of a winding model: inside a subcircuit instance, in
+/// series with an inductor of the same instance through a net nothing else touches. Exported
+/// motor and coil models draw a winding that way; its dissipation is the load's own copper
+/// loss, not a discrete resistor's.
+fn is_winding_copper(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> bool {
+    let (Some(device), Some(own)) = (cx.circuit.devices.get(id), element(cx, id)) else {
+        return false;
+    };
+    if own.instances.is_empty() {
+        return false;
+    }
+    device.pins.iter().any(|pin| match index.on(pin.net) {
+        [(a, _), (b, _)] => {
+            let other = if *a == id { *b } else { *a };
+            other != id
+                && kind(cx, other).is_some_and(Kind::is_inductive)
+                && element(cx, other).is_some_and(|e| e.instances == own.instances)
+        }
+        _ => false,
+    })
+}
+
 fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Option<Finding> {
     let id = facts.device;
+    if is_winding_copper(cx, index, id) {
+        return None;
+    }
     let p = facts.power_w.max;
     let rating = rated_or(
         cx,
