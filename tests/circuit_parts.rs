@@ -513,3 +513,24 @@ rated_voltage = 12
         Some("from config [parts.\"pump*\"]")
     );
 }
+
+/// A model card's VTO is a typical threshold; with no datasheet limits given, the limits are
+/// taken about 1 V either side of it (from memory: the usual spread of a datasheet's
+/// V_GS(th) min/max around its typical value).
+#[test]
+fn threshold_limits_follow_the_model_vto() {
+    let deck = "vto\nM1 d g 0 0 NLL\nR1 d 0 1k\nR2 g 0 1k\n.model NLL NMOS (VTO=1.1 KP=30)\n.end\n";
+    let (netlist, _, _) = kickback::netlist::parse_str("vto.cir", deck);
+    let (circuit, _) = kickback::circuit::Circuit::build(&netlist, &Config::default());
+    let m1 = device(&circuit, "M1");
+    let max = m1.data.value("vgs_th_max").unwrap_or(0.0);
+    let min = m1.data.value("vgs_th_min").unwrap_or(0.0);
+    assert!((max - 2.1).abs() < 1e-12, "vgs_th_max {max}");
+    assert!((min - 0.55).abs() < 1e-12, "vgs_th_min {min}");
+    assert!(m1
+        .data
+        .get("vgs_th_max")
+        .is_some_and(|r| r.source.contains("VTO")));
+    // A logic-level threshold gets logic-level drive defaults too.
+    assert_eq!(m1.data.value("vgs_rated"), Some(4.5));
+}

@@ -102,9 +102,27 @@ pub(crate) fn apply_defaults(data: &mut PartData, kind: Kind) {
     }
 }
 
+/// Datasheet threshold limits from a model card's `VTO` when the user gave none: the model
+/// simulates a typical part, and datasheets spread the threshold about 1 V either side of
+/// typical (from memory: 2–4 V around a typical 3 V for standard power MOSFETs, 1–2 V for
+/// logic-level ones).
+fn model_thresholds(data: &mut PartData) {
+    let Some(vto) = data.value("vto").map(f64::abs).filter(|v| *v > 0.0) else {
+        return;
+    };
+    let why = "the model's VTO ± 1 V (a datasheet's usual threshold spread)";
+    if data.value("vgs_th_max").is_none() {
+        data.set_if_absent("vgs_th_max", vto + 1.0, why);
+    }
+    if data.value("vgs_th_min").is_none() {
+        data.set_if_absent("vgs_th_min", (vto - 1.0).max(vto / 2.0), why);
+    }
+}
+
 /// MOSFET defaults; a logic-level part (flagged, or `vgs_th_max` ≤ 2.5 V) gets logic-level ones.
 /// Thresholds and limits are magnitudes, for P-channel parts too.
 fn mos_defaults(data: &mut PartData, kind: Kind) {
+    model_thresholds(data);
     let flagged = data.value("logic_level").is_some_and(|v| v != 0.0);
     let low_threshold = data
         .value("vgs_th_max")

@@ -46,7 +46,10 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         // A current source (bias, or a current-output controlled source) sets the base current
         // at every instant: the base is driven, however odd that is for a gate.
         let fed = trace.blocked.iter().any(|&d| {
-            cx.circuit.devices.get(d).is_some_and(|d| d.kind == Kind::CurrentSource)
+            cx.circuit
+                .devices
+                .get(d)
+                .is_some_and(|d| d.kind == Kind::CurrentSource)
         });
         let held = trace.is_driven() || trace.nets.contains(&source) || fed;
         let analysis_says_float = cx

@@ -3,7 +3,8 @@
 
 use super::eseries::{ohms, round_up, E12};
 use super::switch_util::{
-    dc_resistance, element, finding_at, kind, label, name, next_rating, rated_or, NetIndex, RESISTOR_WATTS,
+    dc_resistance, element, finding_at, kind, label, name, next_rating, rated_or, NetIndex,
+    RESISTOR_WATTS,
 };
 use super::units::format_si;
 use super::RuleContext;
