@@ -201,14 +201,33 @@ pub(crate) fn element_kind(element: &FlatElement, model: Option<&Model>) -> Kind
     }
 }
 
+/// `PMOS`, `PCH` or `PFET` starting a word of the name (`PCH_SW`, `Q3-PFET`, `2301PCH`): inside
+/// a word the letters mean nothing (`PUMPFET`, `LAMPCHAIN`).
 fn p_channel_name(name: &str) -> bool {
     let upper = name.to_ascii_uppercase();
-    upper.contains("PMOS") || upper.contains("PCH") || upper.contains("PFET")
+    ["PMOS", "PCH", "PFET"].iter().any(|mark| {
+        upper.match_indices(mark).any(|(at, _)| {
+            upper[..at]
+                .chars()
+                .next_back()
+                .is_none_or(|c| !c.is_ascii_alphabetic())
+        })
+    })
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn p_channel_marks_start_a_word() {
+        for name in ["PMOS1", "PCH_SW", "Q3-PFET", "2301PCH", "pfet"] {
+            assert!(p_channel_name(name), "{name}");
+        }
+        for name in ["PUMPFET", "LAMPCHAIN", "NFET", "SWITCH"] {
+            assert!(!p_channel_name(name), "{name}");
+        }
+    }
 
     #[test]
     fn recognizes_generic_names() {
