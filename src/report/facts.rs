@@ -209,7 +209,8 @@ pub fn render_json(analysis: &Analysis, netlist: &FlatNetlist, circuit: &Circuit
     text
 }
 
-/// `kickback report` for a person: a table per supply, timer, switch and load.
+/// `kickback report` for a person: a table per supply, timer, switch and load, then the
+/// resistors' dissipation and the capacitors' voltages.
 pub fn render_human(analysis: &Analysis, netlist: &FlatNetlist, circuit: &Circuit) -> String {
     render_human_with(analysis, netlist, circuit, false)
 }
@@ -237,6 +238,8 @@ pub fn render_human_with(
     for l in sorted(&analysis.loads, |l| l.device) {
         table.load(&mut out, l);
     }
+    table.resistors(&mut out, analysis);
+    table.capacitors(&mut out, analysis);
     if out.is_empty() {
         out.push_str("no supplies, timers, switches or loads found\n");
     }
@@ -558,6 +561,45 @@ impl Table<'_> {
             .freewheel
             .map_or_else(|| "none".to_string(), |d| self.name(d));
         self.row(out, "freewheel", &freewheel, "");
+        out.push('\n');
+    }
+
+    /// A rating the part data holds, with where it came from; the rules' defaults otherwise.
+    fn rating_note(&self, device: DeviceId, key: &str, unit: &str) -> String {
+        let rated = self.circuit.devices.get(device).and_then(|d| d.data.get(key));
+        match rated {
+            Some(r) => format!("{key} {} {}", self.q(r.value, unit), r.source),
+            None => format!("no {key} given"),
+        }
+    }
+
+    /// One row per resistor and pot: dissipation over states, and a pot's wiper current.
+    fn resistors(&self, out: &mut String, analysis: &Analysis) {
+        if analysis.resistors.is_empty() {
+            return;
+        }
+        out.push_str("Resistors and pots (dissipation)\n");
+        for r in sorted(&analysis.resistors, |r| r.device) {
+            let note = self.rating_note(r.device, "power_rating", "W");
+            self.range(out, &self.name(r.device), &Some(r.power_w.clone()), "W", &note);
+            if let Some(wiper) = &r.wiper_current_a {
+                let note = self.rating_note(r.device, "wiper_current_max", "A");
+                self.range(out, "  wiper", &Some(wiper.clone()), "A", &note);
+            }
+        }
+        out.push('\n');
+    }
+
+    /// One row per capacitor: the voltage across it over states.
+    fn capacitors(&self, out: &mut String, analysis: &Analysis) {
+        if analysis.capacitors.is_empty() {
+            return;
+        }
+        out.push_str("Capacitors (voltage, + to − in node order)\n");
+        for c in sorted(&analysis.capacitors, |c| c.device) {
+            let note = self.rating_note(c.device, "voltage_rating", "V");
+            self.range(out, &self.name(c.device), &Some(c.voltage_v.clone()), "V", &note);
+        }
         out.push('\n');
     }
 
