@@ -58,6 +58,7 @@ const CLEAN: &[&str] = &[
     "instance_params.cir",
     "lib_sections.cir",
     "micro_sign.cir",
+    "node_pairs_in_parens.cir",
     "micro_sign_latin1.cir",
     "missing_include.cir",
     "nested_subckt_params.cir",
@@ -620,4 +621,15 @@ fn foreign_decks_get_one_finding() {
     assert_eq!(findings.len(), 1);
     assert!(flat.elements.is_empty());
     assert!(findings[0].help.is_some());
+}
+
+/// `E1 (out 0) (in 0) -10`: the parentheses around node pairs are separators.
+#[test]
+fn node_pairs_in_parentheses_connect_like_plain_nodes() {
+    let (flat, _, _) = fixture("node_pairs_in_parens.cir");
+    assert_eq!(element(&flat, "E1").nodes, ["out", "0", "in", "0"]);
+    assert!(close(value(&flat, "E1"), -10.0));
+    assert_eq!(element(&flat, "G1").nodes, ["sink", "0", "in", "0"]);
+    assert_eq!(element(&flat, "F1").nodes, ["mir", "0"]);
+    assert_eq!(element(&flat, "E2").nodes, ["poly", "0", "in", "0"]);
 }

@@ -145,7 +145,30 @@ impl<'a> Ctx<'_, 'a> {
         true
     }
 
+    /// Node pairs written in parentheses, `E1 (out 0) (in 0) 10`, as plain nodes: simulators
+    /// take the parentheses as separators there. Only leading groups of exactly two names are
+    /// opened, so `POLY(2)` and value expressions keep theirs.
+    fn open_node_pairs(&self, pos: &[Item], pairs: usize) -> Vec<Item> {
+        let mut opened = Vec::with_capacity(pos.len() + 2 * pairs);
+        let mut rest = pos.iter();
+        for _ in 0..pairs {
+            let Some(&Item::Group(open, close)) = rest.clone().next() else {
+                break;
+            };
+            let names = (open + 1..close).all(|i| self.view.kind(i) == Some(TokKind::Word));
+            if close != open + 3 || !names {
+                break;
+            }
+            rest.next();
+            opened.extend([Item::Tok(open + 1), Item::Tok(open + 2)]);
+        }
+        opened.extend(rest.copied());
+        opened
+    }
+
     pub(super) fn voltage_controlled(&self, pos: &[Item], mut out: Parsed<'a>) -> Parse<'a> {
+        let opened = self.open_node_pairs(pos, 2);
+        let pos = opened.as_slice();
         out.nodes = self.nodes(pos, 2, "2 output nodes")?;
         if let Some(n) = self.poly(pos, 2) {
             let controls = self.count_words(&pos[4..]);
@@ -209,6 +232,8 @@ impl<'a> Ctx<'_, 'a> {
     }
 
     pub(super) fn current_controlled(&self, pos: &[Item], mut out: Parsed<'a>) -> Parse<'a> {
+        let opened = self.open_node_pairs(pos, 1);
+        let pos = opened.as_slice();
         out.nodes = self.nodes(pos, 2, "2 output nodes")?;
         if let Some(n) = self.poly(pos, 2) {
             let refs: Vec<&'a str> = pos

@@ -566,7 +566,11 @@ impl Table<'_> {
 
     /// A rating the part data holds, with where it came from; the rules' defaults otherwise.
     fn rating_note(&self, device: DeviceId, key: &str, unit: &str) -> String {
-        let rated = self.circuit.devices.get(device).and_then(|d| d.data.get(key));
+        let rated = self
+            .circuit
+            .devices
+            .get(device)
+            .and_then(|d| d.data.get(key));
         match rated {
             Some(r) => format!("{key} {} {}", self.q(r.value, unit), r.source),
             None => format!("no {key} given"),
@@ -581,7 +585,13 @@ impl Table<'_> {
         out.push_str("Resistors and pots (dissipation)\n");
         for r in sorted(&analysis.resistors, |r| r.device) {
             let note = self.rating_note(r.device, "power_rating", "W");
-            self.range(out, &self.name(r.device), &Some(r.power_w.clone()), "W", &note);
+            self.range(
+                out,
+                &self.name(r.device),
+                &Some(r.power_w.clone()),
+                "W",
+                &note,
+            );
             if let Some(wiper) = &r.wiper_current_a {
                 let note = self.rating_note(r.device, "wiper_current_max", "A");
                 self.range(out, "  wiper", &Some(wiper.clone()), "A", &note);
@@ -598,7 +608,13 @@ impl Table<'_> {
         out.push_str("Capacitors (voltage, + to − in node order)\n");
         for c in sorted(&analysis.capacitors, |c| c.device) {
             let note = self.rating_note(c.device, "voltage_rating", "V");
-            self.range(out, &self.name(c.device), &Some(c.voltage_v.clone()), "V", &note);
+            self.range(
+                out,
+                &self.name(c.device),
+                &Some(c.voltage_v.clone()),
+                "V",
+                &note,
+            );
         }
         out.push('\n');
     }
