@@ -80,6 +80,54 @@ fn rail_capacitors(cx: &RuleContext<'_>, index: &NetIndex, net: NetId) -> Vec<(D
     found
 }
 
+/// Capacitor stacks from the rail to ground through one middle net (two electrolytics in series
+/// for voltage rating, with or without balancing resistors): each stack as its first top
+/// capacitor and the series capacitance of its tops and bottoms.
+fn series_stacks(cx: &RuleContext<'_>, index: &NetIndex, net: NetId) -> Vec<(DeviceId, f64)> {
+    let other_end = |d: DeviceId, from: NetId| -> Option<NetId> {
+        let dev = cx.circuit.devices.get(d)?;
+        (dev.kind == Kind::Capacitor && dev.pins.len() == 2)
+            .then(|| dev.pins.iter().map(|p| p.net).find(|&n| n != from))
+            .flatten()
+    };
+    let mut middles: Vec<NetId> = index
+        .on(net)
+        .iter()
+        .filter_map(|&(d, _)| other_end(d, net))
+        .filter(|&m| !is_ground(cx, m))
+        .collect();
+    middles.sort_unstable();
+    middles.dedup();
+    let mut stacks = Vec::new();
+    for middle in middles {
+        let on_middle = index.on(middle);
+        let passive = on_middle.iter().all(|&(d, _)| {
+            cx.circuit
+                .devices
+                .get(d)
+                .is_some_and(|x| matches!(x.kind, Kind::Capacitor | Kind::Resistor))
+        });
+        if !passive {
+            continue;
+        }
+        let (mut top, mut bottom, mut first) = (0.0, 0.0, None);
+        for &(d, _) in on_middle {
+            match (other_end(d, middle), capacitance(cx, d)) {
+                (Some(end), Some(c)) if end == net => {
+                    top += c;
+                    first = Some(first.map_or(d, |f: DeviceId| f.min(d)));
+                }
+                (Some(end), Some(c)) if is_ground(cx, end) => bottom += c,
+                _ => {}
+            }
+        }
+        if let Some(d) = first.filter(|_| top > 0.0 && bottom > 0.0) {
+            stacks.push((d, top * bottom / (top + bottom)));
+        }
+    }
+    stacks
+}
+
 fn finding(
     cx: &RuleContext<'_>,
     index: &NetIndex,
@@ -92,7 +140,8 @@ fn finding(
         .map(|s| s.max)
         .or_else(|| switches.iter().find_map(|s| rail(cx, s)).map(|r| r.v.max))
         .filter(|v| *v > 0.0)?;
-    let caps = rail_capacitors(cx, index, net);
+    let mut caps = rail_capacitors(cx, index, net);
+    caps.extend(series_stacks(cx, index, net));
     let total = caps.iter().fold(0.0, |sum, (_, c)| sum + c);
     let rail_name = super::switch_util::net_name(cx, net);
     // Energy a full bridge hands back to the rail at turn-off: the largest ½·L·I² behind it.
