@@ -21,9 +21,14 @@ const VCE_SAT_V: f64 = 0.2;
 const VBE_ON_V: f64 = 0.8;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
+    if cx.analysis.switches.is_empty() {
+        return;
+    }
+    let unreferenced = super::supply_unreferenced::switches_without_reference(cx);
     for sw in &cx.analysis.switches {
-        if kind(cx, sw.device).is_some_and(Kind::is_bjt) && !held_off(cx, sw) && is_switched(cx, sw)
-        {
+        let bjt = kind(cx, sw.device).is_some_and(Kind::is_bjt);
+        let referenced = unreferenced.binary_search(&sw.device).is_err();
+        if bjt && !held_off(cx, sw) && is_switched(cx, sw) && referenced {
             out.extend(finding(cx, sw));
         }
     }

@@ -24,11 +24,18 @@ const MARGIN_V: f64 = 1.0;
 const RATED_SHARE: f64 = 0.9;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
+    if cx.analysis.switches.is_empty() {
+        return;
+    }
+    let unreferenced = super::supply_unreferenced::switches_without_reference(cx);
     for sw in &cx.analysis.switches {
         let Some(k) = kind(cx, sw.device).filter(|k| k.is_mos()) else {
             continue;
         };
-        if held_off(cx, sw) || !is_switched(cx, sw) {
+        if held_off(cx, sw)
+            || !is_switched(cx, sw)
+            || unreferenced.binary_search(&sw.device).is_ok()
+        {
             continue;
         }
         let boosted = sw.driver.as_ref().is_some_and(|d| d.boosted);

@@ -423,18 +423,17 @@ fn gate_driver(
         .filter(|(_, net)| *net != source)
 }
 
-fn mismatched_references(
-    cx: &RuleContext<'_>,
-    sets: &UnionFind<usize>,
-    apart: &UnionFind<usize>,
-    explained: &mut HashSet<usize>,
-    out: &mut Vec<Finding>,
-) {
-    if supplied_sections(cx, apart) <= 1 {
-        // Every supply and the reference share one section: every driver does too.
-        return;
-    }
+/// A switch whose gate driver is referenced to a net its own source never meets at DC.
+struct Unreferenced {
+    switch: DeviceId,
+    driver: DeviceId,
+    source: NetId,
+    reference: NetId,
+}
+
+fn unreferenced_drives(cx: &RuleContext<'_>, apart: &UnionFind<usize>) -> Vec<Unreferenced> {
     let tracer = Tracer::new(cx);
+    let mut found = Vec::new();
     for (id, device) in cx.circuit.devices.iter().enumerate() {
         if !device.kind.is_switch_transistor() {
             continue;
@@ -448,9 +447,57 @@ fn mismatched_references(
         let Some(reference) = driver_reference(cx, driver, driven) else {
             continue;
         };
-        if apart.find(source) == apart.find(reference) {
-            continue;
+        if apart.find(source) != apart.find(reference) {
+            found.push(Unreferenced {
+                switch: id,
+                driver,
+                source,
+                reference,
+            });
         }
+    }
+    found
+}
+
+/// Switches whose drive has no return path to their own source (this rule's finding): the
+/// gate voltage the DC engine finds for them means nothing, so the drive-strength rules leave
+/// them to this one.
+pub fn switches_without_reference(cx: &RuleContext<'_>) -> Vec<DeviceId> {
+    let (_, Some(apart)) = sections(cx) else {
+        return Vec::new();
+    };
+    if supplied_sections(cx, &apart) <= 1 {
+        return Vec::new();
+    }
+    let mut ids: Vec<DeviceId> = unreferenced_drives(cx, &apart)
+        .into_iter()
+        .map(|u| u.switch)
+        .collect();
+    ids.sort_unstable();
+    ids
+}
+
+fn mismatched_references(
+    cx: &RuleContext<'_>,
+    sets: &UnionFind<usize>,
+    apart: &UnionFind<usize>,
+    explained: &mut HashSet<usize>,
+    out: &mut Vec<Finding>,
+) {
+    if supplied_sections(cx, apart) <= 1 {
+        // Every supply and the reference share one section: every driver does too.
+        return;
+    }
+    for Unreferenced {
+        switch: id,
+        driver,
+        source,
+        reference,
+    } in unreferenced_drives(cx, apart)
+    {
+        let Some(device) = cx.circuit.devices.get(id) else {
+            continue;
+        };
         explained.insert(sets.find(source));
         explained.insert(sets.find(reference));
         let (Some((_, element)), Some((_, driver_element))) =
