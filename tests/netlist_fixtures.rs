@@ -58,6 +58,7 @@ const CLEAN: &[&str] = &[
     "instance_params.cir",
     "lib_sections.cir",
     "micro_sign.cir",
+    "net_names_with_parens.cir",
     "node_pairs_in_parens.cir",
     "micro_sign_latin1.cir",
     "missing_include.cir",
@@ -632,4 +633,21 @@ fn node_pairs_in_parentheses_connect_like_plain_nodes() {
     assert_eq!(element(&flat, "G1").nodes, ["sink", "0", "in", "0"]);
     assert_eq!(element(&flat, "F1").nodes, ["mir", "0"]);
     assert_eq!(element(&flat, "E2").nodes, ["poly", "0", "in", "0"]);
+}
+
+/// `Net-(U1-DIS)`: a group right after a dash is part of the net name; `PULSE(` and `POLY(1)`
+/// stay groups.
+#[test]
+fn net_names_keep_their_parentheses() {
+    let (flat, _, _) = fixture("net_names_with_parens.cir");
+    assert_eq!(element(&flat, "R2").nodes, ["Net-(U1-DIS)", "Net-(U1-THR)"]);
+    assert_eq!(
+        element(&flat, "R3").nodes,
+        ["Net-(U1-THR)", "unconnected-(J1-Pad3)"]
+    );
+    assert!(matches!(
+        element(&flat, "V2").source.as_ref().map(|s| &s.wave),
+        Some(Waveform::Pulse { .. })
+    ));
+    assert_eq!(element(&flat, "E1").nodes, ["ctl", "GND", "pwm", "GND"]);
 }

@@ -162,6 +162,10 @@ pub fn word_len(rest: &str) -> (usize, bool) {
     let mut slash = false;
     while let Some(&b) = bytes.get(i) {
         match b {
+            b'(' if i > 0 && bytes[i - 1] == b'-' => match net_name_group(&bytes[i..]) {
+                Some(len) => i += len,
+                None => break,
+            },
             b' ' | b'\t' | b'\r' | 0x0b | 0x0c | b'=' | b'(' | b')' | b',' | b'{' | b'}'
             | b'\'' | b'"' | b';' => break,
             0xC2 if bytes.get(i + 1) == Some(&0xA0) => break,
@@ -173,6 +177,21 @@ pub fn word_len(rest: &str) -> (usize, bool) {
         }
     }
     (i, slash)
+}
+
+/// Length of `(...)` in a net name as schematic tools write it after a dash (`Net-(U1-DIS)`,
+/// `unconnected-(J1-Pad3)`): no blank, `=`, `,` or other bracket inside. Keyword groups such as
+/// `PULSE(` or `POLY(2)` never follow a dash, so they stay groups.
+fn net_name_group(bytes: &[u8]) -> Option<usize> {
+    for (i, &b) in bytes.iter().enumerate().skip(1) {
+        match b {
+            b')' => return (i > 1).then_some(i + 1),
+            b' ' | b'\t' | b'\r' | 0x0b | 0x0c | b'=' | b'(' | b',' | b'{' | b'}' | b'\''
+            | b'"' | b';' => return None,
+            _ => {}
+        }
+    }
+    None
 }
 
 /// Byte length of the whitespace at the start of `rest`.
