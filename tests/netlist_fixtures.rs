@@ -651,3 +651,12 @@ fn net_names_keep_their_parentheses() {
     ));
     assert_eq!(element(&flat, "E1").nodes, ["ctl", "GND", "pwm", "GND"]);
 }
+
+/// `$` opens a comment only as a word of its own; `$N_0001` is a node name.
+#[test]
+fn dollar_node_names_are_not_comments() {
+    let (flat, _, _) = fixture("comments_dollar_slash.cir");
+    assert_eq!(element(&flat, "R3").nodes, ["vbat", "$N_0001"]);
+    assert!(close(value(&flat, "R3"), 1e3));
+    assert_eq!(element(&flat, "R4").nodes, ["$N_0001", "0"]);
+}

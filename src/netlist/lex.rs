@@ -317,7 +317,12 @@ impl Lexer<'_> {
             let Some(c) = rest.chars().next() else {
                 break;
             };
-            if c == ';' || rest.starts_with("//") || (c == '$' && after_ws) {
+            // `$` opens a comment only as a word of its own: `$N_0001` and `$G_DPWR` are
+            // node names in exports.
+            let dollar_comment = c == '$'
+                && after_ws
+                && rest[1..].chars().next().is_none_or(|n| n.is_whitespace());
+            if c == ';' || rest.starts_with("//") || dollar_comment {
                 comment = Some(at);
                 break;
             }
