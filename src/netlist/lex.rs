@@ -319,9 +319,8 @@ impl Lexer<'_> {
             };
             // `$` opens a comment only as a word of its own: `$N_0001` and `$G_DPWR` are
             // node names in exports.
-            let dollar_comment = c == '$'
-                && after_ws
-                && rest[1..].chars().next().is_none_or(|n| n.is_whitespace());
+            let dollar_comment =
+                c == '$' && after_ws && rest[1..].chars().next().is_none_or(|n| n.is_whitespace());
             if c == ';' || rest.starts_with("//") || dollar_comment {
                 comment = Some(at);
                 break;

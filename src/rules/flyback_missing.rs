@@ -12,6 +12,13 @@ use crate::circuit::{DeviceId, Kind};
 use crate::diagnostic::{Finding, Severity};
 
 const RULE: &str = "flyback-missing";
+/// Below this a plain inductor is a parasitic (a lead, a trace, a model's package): its
+/// turn-off spike is part of every switching edge, not a missing diode (common practice: real
+/// chokes and windings start in the microhenries).
+const PARASITIC_H: f64 = 1e-6;
+/// Stored energy below which no junction is hurt by the spike (from memory: small-signal
+/// transistors absorb microjoules in avalanche; a nanojoule is far below that).
+const HARMLESS_J: f64 = 1e-9;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
@@ -80,6 +87,11 @@ fn finding(
         let i = current?.max;
         Some(0.5 * l * i * i)
     });
+    let parasitic = load_kind == Kind::Inductor
+        && inductance.as_ref().is_some_and(|l| l.value < PARASITIC_H);
+    if parasitic || energy.is_some_and(|e| e < HARMLESS_J) {
+        return None;
+    }
     let rail = rail(cx, sw);
     let ends = branch_ends(cx, sw);
 

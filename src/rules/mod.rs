@@ -352,7 +352,8 @@ pub fn find(id: &str) -> Option<&'static RuleInfo> {
     REGISTRY.iter().find(|r| r.id.eq_ignore_ascii_case(id))
 }
 
-/// Runs every enabled rule.
+/// Runs every enabled rule; findings inside behavioural part models are left out
+/// ([`part_models`]).
 pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
     let mut out = Vec::new();
     for rule in REGISTRY {
@@ -360,11 +361,14 @@ pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
             check(cx, &mut out);
         }
     }
+    let models = part_models::model_instances(cx.netlist);
+    out.retain(|f| !part_models::inside_model(f, &models));
     out
 }
 
 pub mod eseries;
 pub mod hygiene_util;
+pub mod part_models;
 pub mod suppress;
 pub mod switch_util;
 pub mod timer_util;
