@@ -106,27 +106,27 @@ pub(crate) fn solve_raw(
     let outcome = Solver::new(network, &layout, options).solve(start);
     match outcome.result {
         Ok((converged, fallback)) => Ok((layout, converged, outcome.iterations, fallback)),
-        Err(Failure::Singular(unknowns)) => Err(topology::singular(names(&layout, &unknowns))),
+        Err(Failure::Singular(unknowns)) => {
+            Err(topology::singular(names(network, &layout, &unknowns)))
+        }
         Err(Failure::Diverged(unknowns)) => Err(DcError::NoConvergence {
-            nodes: names_in_order(&layout, &unknowns),
+            nodes: names_in_order(network, &layout, &unknowns),
             iterations: outcome.iterations,
         }),
     }
 }
 
 /// Net names for a set of unknowns.
-fn names(layout: &Layout, unknowns: &[usize]) -> Vec<String> {
+fn names(network: &Network, layout: &Layout, unknowns: &[usize]) -> Vec<String> {
     unknowns
         .iter()
-        .filter_map(|&k| layout.labels.get(k))
-        .flatten()
-        .cloned()
+        .flat_map(|&k| layout.label(network, k))
         .collect()
 }
 
 /// Net names for unknowns in the given order (first occurrence kept), at most ten. Node
 /// voltages are named in preference to branch currents, which only point at their nodes.
-fn names_in_order(layout: &Layout, unknowns: &[usize]) -> Vec<String> {
+fn names_in_order(network: &Network, layout: &Layout, unknowns: &[usize]) -> Vec<String> {
     let voltages: Vec<usize> = unknowns
         .iter()
         .copied()
@@ -138,7 +138,7 @@ fn names_in_order(layout: &Layout, unknowns: &[usize]) -> Vec<String> {
         &voltages
     };
     let mut out: Vec<String> = Vec::new();
-    for name in names(layout, chosen) {
+    for name in chosen.iter().flat_map(|&k| layout.label(network, k)) {
         if !out.contains(&name) {
             out.push(name);
         }

@@ -1,8 +1,6 @@
 //! The Thevenin equivalent a network presents at one node, for analyses that attach a load
 //! (a timing capacitor, a gate) and need its source voltage and resistance.
 
-use nalgebra::DVector;
-
 use super::linear::{solve_linear, LinearFailure};
 use super::mna::{assemble, device_voltages, StepSettings};
 use super::network::{Network, Node};
@@ -67,7 +65,7 @@ pub fn thevenin(
         vt: options.thermal_voltage(),
     };
     let jacobian = assemble(network, &layout, &at_solution, step).a;
-    let mut injection = DVector::zeros(layout.size);
+    let mut injection = vec![0.0; layout.size];
     if let Some(entry) = injection.get_mut(slot) {
         *entry = 1.0;
     }
