@@ -4,7 +4,7 @@
 //! and logic output high or low, and each pot's wiper. The parts become behavioural stand-ins
 //! (see [`super::stand_in`]) and the DC engine solves the sub-network.
 
-use super::dc::{self, DcError, ElementId, Network, Node, OperatingPoint, SolveOptions};
+use super::dc::{self, DcError, ElementId, Network, Node, OperatingPoint, SolveCache, SolveOptions};
 use super::partition::{Component, Fixed, Partition};
 use super::stand_in::{self, DeviceElements};
 use crate::circuit::{Circuit, DeviceId, Kind, NetId, PinRole};
@@ -105,6 +105,10 @@ pub struct Context<'a> {
     pub partition: Partition,
     pub supplies: Vec<SupplyCorners>,
     pub options: SolveOptions,
+    /// Every DC solve of the analyses goes through this memo (see [`dc::solve_cached`]):
+    /// analyses that solve the same sub-network in the same state, and channels built alike,
+    /// share one Newton run.
+    pub cache: SolveCache,
 }
 
 impl<'a> Context<'a> {
@@ -118,6 +122,7 @@ impl<'a> Context<'a> {
             partition,
             supplies,
             options: SolveOptions::default(),
+            cache: SolveCache::new(),
         }
     }
 
@@ -278,7 +283,18 @@ impl<'a> Context<'a> {
 
     /// Solves one component in one state.
     pub fn solve(&self, component: &Component, state: &State) -> Result<Solved, DcError> {
-        self.build(component, state).solve(&self.options)
+        self.build(component, state).solve_in(self)
+    }
+
+    /// Solves a network built from a component (with elements of the caller's own), through
+    /// the memo.
+    pub fn solve_network(&self, network: &Network) -> Result<OperatingPoint, DcError> {
+        dc::solve_cached(network, &self.options, &self.cache)
+    }
+
+    /// The Thevenin equivalent of a built network at `node`, through the memo.
+    pub fn thevenin(&self, network: &Network, node: Node) -> Result<dc::Thevenin, DcError> {
+        dc::thevenin_cached(network, node, &self.options, &self.cache)
     }
 
     /// The network of one component in one state, before it is solved, so that a caller can
@@ -389,6 +405,18 @@ impl Built {
     }
 
     pub fn solve(self, options: &SolveOptions) -> Result<Solved, DcError> {
+        self.solve_by(|network| dc::solve(network, options))
+    }
+
+    /// As [`Built::solve`], through the context's memo.
+    pub fn solve_in(self, cx: &Context<'_>) -> Result<Solved, DcError> {
+        self.solve_by(|network| cx.solve_network(network))
+    }
+
+    fn solve_by(
+        self,
+        solve: impl FnOnce(&Network) -> Result<OperatingPoint, DcError>,
+    ) -> Result<Solved, DcError> {
         let mut network = self.network;
         if network.node_count() <= 1 {
             // Nothing to solve (a capacitor straight across two rails stamps nothing), but the
@@ -397,7 +425,7 @@ impl Built {
             let ground = network.ground();
             network.add_resistor(spare, ground, 1.0);
         }
-        let op = dc::solve(&network, options)?;
+        let op = solve(&network)?;
         Ok(Solved {
             op,
             nodes: self.nodes,

@@ -6,6 +6,7 @@ use super::mna::{assemble, device_voltages, StepSettings};
 use super::network::{Network, Node};
 use super::options::{DcError, SolveOptions};
 use super::topology::singular;
+use super::SolveCache;
 
 /// A voltage source `v_open` behind a resistance `r_th`, as seen from a node to ground.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -46,10 +47,33 @@ pub fn thevenin(
     node: Node,
     options: &SolveOptions,
 ) -> Result<Thevenin, DcError> {
+    thevenin_with(network, node, options, None)
+}
+
+/// As [`thevenin`], with the operating point from `cache` when the same network was solved
+/// before (see [`super::solve_cached`]).
+///
+/// # Errors
+/// As [`thevenin`].
+pub fn thevenin_cached(
+    network: &Network,
+    node: Node,
+    options: &SolveOptions,
+    cache: &SolveCache,
+) -> Result<Thevenin, DcError> {
+    thevenin_with(network, node, options, Some(cache))
+}
+
+fn thevenin_with(
+    network: &Network,
+    node: Node,
+    options: &SolveOptions,
+    cache: Option<&SolveCache>,
+) -> Result<Thevenin, DcError> {
     if node.index() >= network.node_count() {
         return Err(singular(vec![network.node_name(node).to_string()]));
     }
-    let (layout, converged, _, _) = super::solve_raw(network, options, None)?;
+    let (layout, converged, _, _) = super::solve_raw(network, options, None, cache)?;
     let Some(slot) = layout.node(node) else {
         return Ok(Thevenin {
             v_open: 0.0,

@@ -321,7 +321,7 @@ fn path_devices(cx: &Context<'_>, setup: &Setup, state: &State, v: f64) -> Vec<D
     };
     let ground = built.network.ground();
     let hold = built.network.add_voltage_source(node, ground, v);
-    let Ok(solved) = built.solve(&cx.options) else {
+    let Ok(solved) = built.solve_in(cx) else {
         return Vec::new();
     };
     let Some(total) = solved.current(hold).map(f64::abs).filter(|i| *i > 0.0) else {
