@@ -4,7 +4,9 @@
 //! and logic output high or low, and each pot's wiper. The parts become behavioural stand-ins
 //! (see [`super::stand_in`]) and the DC engine solves the sub-network.
 
-use super::dc::{self, DcError, ElementId, Network, Node, OperatingPoint, SolveCache, SolveOptions};
+use super::dc::{
+    self, DcError, ElementId, Network, Node, OperatingPoint, SolveCache, SolveOptions,
+};
 use super::partition::{Component, Fixed, Partition};
 use super::stand_in::{self, DeviceElements};
 use crate::circuit::{Circuit, DeviceId, Kind, NetId, PinRole};

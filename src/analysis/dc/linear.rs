@@ -67,6 +67,8 @@ pub(crate) struct LinearSolver {
     /// Row swapped with row `i` at elimination step `i`.
     swaps: Vec<usize>,
     rhs: Vec<f64>,
+    /// Whether the scaled matrix is finite, which makes skipping zero multipliers exact.
+    skip_zeros: bool,
 }
 
 impl LinearSolver {
@@ -144,6 +146,8 @@ impl LinearSolver {
                 *v *= c;
             }
         }
+        // A scale of 1/(subnormal) can overflow; then 0·∞ must stay the NaN it was.
+        self.skip_zeros = self.lu.iter().all(|v| v.is_finite());
     }
 
     /// In-place LU with partial pivoting: the first row holding the column's largest
@@ -151,6 +155,7 @@ impl LinearSolver {
     /// shows up as a zero pivot.
     fn factor(&mut self, n: usize) {
         self.swaps.clear();
+        let skip_zeros = self.skip_zeros;
         let lu = &mut self.lu;
         for i in 0..n {
             let mut piv = i;
@@ -178,12 +183,19 @@ impl LinearSolver {
             }
             let inv_diag = 1.0 / diag;
             let (top, below) = lu.split_at_mut((i + 1) * n);
-            let pivot_row = top.get(i * n..).unwrap_or(&[]);
+            let pivot_row = top.get(i * n + i + 1..(i + 1) * n).unwrap_or(&[]);
             for row in below.chunks_mut(n) {
                 let Some(l) = row.get_mut(i) else { continue };
                 *l *= inv_diag;
                 let l = *l;
-                for (v, &u) in row.iter_mut().zip(pivot_row).skip(i + 1) {
+                // MNA rows are mostly zeros. A zero multiplier would add a signed zero to
+                // each entry, which leaves every entry as it is (no entry is ever −0 here:
+                // stamped sums start at +0), so skipping it changes no bit.
+                if l == 0.0 && skip_zeros {
+                    continue;
+                }
+                let rest = row.get_mut(i + 1..).unwrap_or(&mut []);
+                for (v, &u) in rest.iter_mut().zip(pivot_row) {
                     *v += -u * l;
                 }
             }
@@ -202,8 +214,12 @@ impl LinearSolver {
         }
         let lu = &self.lu;
         let at = |r: usize, c: usize| lu.get(r * n + c).copied().unwrap_or(0.0);
+        // Zero coefficients are skipped for the reason given in `factor`.
         for i in 0..n.saturating_sub(1) {
             let coeff = y.get(i).copied().unwrap_or(0.0);
+            if coeff == 0.0 && self.skip_zeros {
+                continue;
+            }
             for j in i + 1..n {
                 if let Some(v) = y.get_mut(j) {
                     *v += -coeff * at(j, i);
@@ -214,6 +230,9 @@ impl LinearSolver {
             let Some(v) = y.get_mut(i) else { continue };
             *v /= at(i, i);
             let coeff = *v;
+            if coeff == 0.0 && self.skip_zeros {
+                continue;
+            }
             for j in 0..i {
                 if let Some(v) = y.get_mut(j) {
                     *v += -coeff * at(j, i);

@@ -40,11 +40,11 @@ mod topology;
 #[cfg(test)]
 mod tests;
 
+pub use cache::SolveCache;
 pub use models::MosRegion;
 pub use network::{
     BjtParams, BjtPolarity, DiodeParams, ElementId, MosParams, MosPolarity, Network, Node,
 };
-pub use cache::SolveCache;
 pub use newton::Fallback;
 pub use options::{DcError, SolveOptions};
 pub use result::{BjtRegion, OperatingPoint};
