@@ -111,6 +111,8 @@ pub struct Context<'a> {
     /// analyses that solve the same sub-network in the same state, and channels built alike,
     /// share one Newton run.
     pub cache: SolveCache,
+    /// Work bound of one timer's analysis, in solves ([`super::budget::TIMER_SOLVES`]).
+    pub timer_solves: usize,
 }
 
 impl<'a> Context<'a> {
@@ -125,6 +127,7 @@ impl<'a> Context<'a> {
             supplies,
             options: SolveOptions::default(),
             cache: SolveCache::new(),
+            timer_solves: super::budget::TIMER_SOLVES,
         }
     }
 
@@ -285,24 +288,51 @@ impl<'a> Context<'a> {
 
     /// Solves one component in one state.
     pub fn solve(&self, component: &Component, state: &State) -> Result<Solved, DcError> {
+        if let Some(e) = self.oversized(component) {
+            return Err(e);
+        }
         self.build(component, state).solve_in(self)
     }
 
     /// Solves a network built from a component (with elements of the caller's own), through
-    /// the memo.
+    /// the memo, charged to the open work budget ([`super::budget`]).
     pub fn solve_network(&self, network: &Network) -> Result<OperatingPoint, DcError> {
+        super::budget::charge()?;
         dc::solve_cached(network, &self.options, &self.cache)
     }
 
-    /// The Thevenin equivalent of a built network at `node`, through the memo.
+    /// The Thevenin equivalent of a built network at `node`, through the memo and charged to
+    /// the open work budget.
     pub fn thevenin(&self, network: &Network, node: Node) -> Result<dc::Thevenin, DcError> {
+        super::budget::charge()?;
         dc::thevenin_cached(network, node, &self.options, &self.cache)
+    }
+
+    /// Why a component cannot be solved at all: more free nets than the DC engine's dense
+    /// limit. Checked before a network is built, so a huge sub-network costs nothing per
+    /// state.
+    pub fn oversized(&self, component: &Component) -> Option<DcError> {
+        (component.nets.len() > dc::DENSE_LIMIT).then_some(DcError::TooLarge {
+            unknowns: component.nets.len(),
+            limit: dc::DENSE_LIMIT,
+        })
     }
 
     /// The network of one component in one state, before it is solved, so that a caller can
     /// add elements of its own (a source holding a node, a probe) and solve it, or take a
     /// Thevenin equivalent.
+    ///
+    /// An [oversized](Context::oversized) component builds an empty network that refuses to
+    /// solve.
     pub fn build(&self, component: &Component, state: &State) -> Built {
+        if let Some(e) = self.oversized(component) {
+            return Built {
+                network: Network::new(),
+                nodes: BTreeMap::new(),
+                devices: BTreeMap::new(),
+                refused: Some(e),
+            };
+        }
         let mut network = Network::new();
         let mut nodes: BTreeMap<NetId, Node> = BTreeMap::new();
         let ground = network.ground();
@@ -343,6 +373,7 @@ impl<'a> Context<'a> {
             network,
             nodes,
             devices,
+            refused: None,
         }
     }
 
@@ -399,6 +430,8 @@ pub struct Built {
     pub network: Network,
     pub nodes: BTreeMap<NetId, Node>,
     pub devices: BTreeMap<DeviceId, DeviceElements>,
+    /// Why the component was not built (too large to solve); solving reports it.
+    pub refused: Option<DcError>,
 }
 
 impl Built {
@@ -419,6 +452,9 @@ impl Built {
         self,
         solve: impl FnOnce(&Network) -> Result<OperatingPoint, DcError>,
     ) -> Result<Solved, DcError> {
+        if let Some(e) = self.refused {
+            return Err(e);
+        }
         let mut network = self.network;
         if network.node_count() <= 1 {
             // Nothing to solve (a capacitor straight across two rails stamps nothing), but the

@@ -52,6 +52,13 @@ pub use thevenin::{thevenin, thevenin_cached, Thevenin};
 
 use std::sync::Arc;
 
+/// Most unknowns the engine solves with its dense matrix. The sub-networks of a motor drive
+/// between its rails have tens of unknowns; a thousand keeps one matrix at 8 MB (two live
+/// copies: the system and its factors) and one factorisation near 0.3 G multiply-adds, while
+/// a network past it (a generated ladder, a flattened array) is refused with
+/// [`DcError::TooLarge`] before anything of its size is allocated.
+pub const DENSE_LIMIT: usize = 1000;
+
 use mna::Layout;
 use newton::{Converged, Failure, Solver};
 
@@ -60,7 +67,8 @@ use newton::{Converged, Failure, Solver};
 /// # Errors
 /// [`DcError::InvalidElement`] for unusable values, [`DcError::Singular`] for floating nodes,
 /// voltage-source loops or a degenerate matrix, [`DcError::NoConvergence`] when Newton and its
-/// fallbacks all fail within the iteration budget.
+/// fallbacks all fail within the iteration budget, [`DcError::NoFreeNode`] for a network
+/// that is all ground, [`DcError::TooLarge`] past [`DENSE_LIMIT`] unknowns.
 pub fn solve(network: &Network, options: &SolveOptions) -> Result<OperatingPoint, DcError> {
     solve_with_start(network, options, None, None)
 }
@@ -123,6 +131,14 @@ pub(crate) fn solve_raw(
     start: Option<&[f64]>,
     cache: Option<&SolveCache>,
 ) -> Result<(Layout, Converged, usize, Fallback), DcError> {
+    // Refused before anything of the network's size is built (a memo key included).
+    let free_nodes = network.node_count().saturating_sub(1);
+    if free_nodes > DENSE_LIMIT {
+        return Err(DcError::TooLarge {
+            unknowns: free_nodes,
+            limit: DENSE_LIMIT,
+        });
+    }
     let memo = cache.filter(|_| start.is_none());
     let key = memo.map(|_| cache::key(network, options));
     let known = memo.zip(key.as_ref()).and_then(|(c, k)| c.get(k));
@@ -173,6 +189,15 @@ fn fresh(
     topology::validate(network)?;
     topology::check_structure(network)?;
     let layout = Layout::new(network);
+    if layout.size == 0 {
+        return Err(DcError::NoFreeNode);
+    }
+    if layout.size > DENSE_LIMIT {
+        return Err(DcError::TooLarge {
+            unknowns: layout.size,
+            limit: DENSE_LIMIT,
+        });
+    }
     let outcome = Solver::new(network, &layout, options).solve(start);
     Ok(match outcome.result {
         Ok((converged, fallback)) => cache::Outcome::Solved {
