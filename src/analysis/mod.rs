@@ -6,7 +6,6 @@
 pub mod budget;
 pub mod dc;
 pub mod facts;
-pub mod memo;
 pub mod partition;
 pub mod stand_in;
 pub mod states;

@@ -7,14 +7,12 @@
 use super::dc::{
     self, DcError, ElementId, Network, Node, OperatingPoint, SolveCache, SolveOptions,
 };
-use super::memo::{Memo, StateKey};
 use super::partition::{Component, Fixed, Partition};
 use super::stand_in::{self, DeviceElements};
 use crate::circuit::{Circuit, DeviceId, Kind, NetId, PinRole};
 use crate::config::Config;
 use crate::netlist::{FlatNetlist, Waveform};
 use std::collections::BTreeMap;
-use std::sync::Arc;
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash)]
 pub enum Corner {
@@ -115,16 +113,7 @@ pub struct Context<'a> {
     pub cache: SolveCache,
     /// Work bound of one timer's analysis, in solves ([`super::budget::TIMER_SOLVES`]).
     pub timer_solves: usize,
-    /// Solves of a component in a state ([`Context::solve`]).
-    solved: Memo<StateKey, Result<Solved, DcError>>,
-    /// Currents into a held node ([`Context::held_current`]).
-    held: Memo<(StateKey, NetId, u64), Result<Option<f64>, DcError>>,
 }
-
-/// Entries per generation of the solve memo (a solve with its maps is a few kB).
-const SOLVED_GENERATION: usize = 2048;
-/// Entries per generation of the held-current memo (a key and a number).
-const HELD_GENERATION: usize = 16384;
 
 impl<'a> Context<'a> {
     pub fn new(netlist: &'a FlatNetlist, circuit: &'a Circuit, config: &'a Config) -> Self {
@@ -139,8 +128,6 @@ impl<'a> Context<'a> {
             options: SolveOptions::default(),
             cache: SolveCache::new(),
             timer_solves: super::budget::TIMER_SOLVES,
-            solved: Memo::new(SOLVED_GENERATION),
-            held: Memo::new(HELD_GENERATION),
         }
     }
 
@@ -304,57 +291,7 @@ impl<'a> Context<'a> {
         if let Some(e) = self.oversized(component) {
             return Err(e);
         }
-        super::budget::charge()?;
-        let key = StateKey::new(component, state);
-        if let Some(known) = self.solved.get(&key) {
-            return (*known).clone();
-        }
-        let result = self
-            .build(component, state)
-            .solve_by(|network| dc::solve_cached(network, &self.options, &self.cache));
-        self.solved.put(key, Arc::new(result.clone()));
-        result
-    }
-
-    /// The current the component delivers into `net` held at `volts` by an ideal source (what
-    /// a timing capacitor at that voltage receives); `None` when `net` is not the component's.
-    pub fn held_current(
-        &self,
-        component: &Component,
-        state: &State,
-        net: NetId,
-        volts: f64,
-    ) -> Result<Option<f64>, DcError> {
-        super::budget::charge()?;
-        let key = (StateKey::new(component, state), net, volts.to_bits());
-        if let Some(known) = self.held.get(&key) {
-            return (*known).clone();
-        }
-        let result = self.hold(component, state, net, volts);
-        self.held.put(key, Arc::new(result.clone()));
-        result
-    }
-
-    fn hold(
-        &self,
-        component: &Component,
-        state: &State,
-        net: NetId,
-        volts: f64,
-    ) -> Result<Option<f64>, DcError> {
-        let mut built = self.build(component, state);
-        if let Some(e) = built.refused {
-            return Err(e);
-        }
-        let Some(node) = built.node(net) else {
-            return Ok(None);
-        };
-        let ground = built.network.ground();
-        let hold = built.network.add_voltage_source(node, ground, volts);
-        let op = dc::solve_cached(&built.network, &self.options, &self.cache)?;
-        // A source's current is the current into its positive terminal: what the network
-        // pushes into the node.
-        Ok(op.current(hold))
+        self.build(component, state).solve_in(self)
     }
 
     /// Solves a network built from a component (with elements of the caller's own), through
@@ -537,7 +474,6 @@ impl Built {
 
 /// The operating point of one component in one state, with the map from nets and devices to
 /// the engine's nodes and elements.
-#[derive(Clone, Debug)]
 pub struct Solved {
     pub op: OperatingPoint,
     pub nodes: BTreeMap<NetId, Node>,

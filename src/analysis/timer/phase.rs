@@ -136,7 +136,16 @@ pub fn held_current(
     ) else {
         return Ok(None);
     };
-    cx.held_current(component, state, net, volts)
+    let mut built = cx.build(component, state);
+    let Some(node) = built.node(net) else {
+        return Ok(None);
+    };
+    let ground = built.network.ground();
+    let hold = built.network.add_voltage_source(node, ground, volts);
+    let op = cx.solve_network(&built.network)?;
+    // A source's current is the current into its positive terminal: what the network pushes
+    // into the node.
+    Ok(op.current(hold))
 }
 
 /// Relative agreement under which a straight line or a constant is taken as exact.
