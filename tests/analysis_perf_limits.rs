@@ -41,7 +41,10 @@ fn a_million_resistor_chain_is_refused_with_one_finding() {
     let front_end = started.elapsed();
     let (facts, findings) = analysis::analyze(&netlist, &circuit, &config);
     let analysis_time = started.elapsed() - front_end;
-    println!("front end {front_end:?}, analyses {analysis_time:?}, peak {:?} kB", peak_rss_kb());
+    println!(
+        "front end {front_end:?}, analyses {analysis_time:?}, peak {:?} kB",
+        peak_rss_kb()
+    );
     let failed: Vec<_> = findings
         .iter()
         .filter(|f| f.rule == "solve-failed")

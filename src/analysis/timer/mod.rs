@@ -24,6 +24,7 @@ use crate::circuit::{DeviceId, Kind};
 use crate::diagnostic::{Finding, Severity};
 use config::{NetIndex, Setup};
 use phase::{Outcome, Phase, Thresholds};
+use rayon::prelude::*;
 
 pub fn analyze(cx: &Context<'_>) -> (Vec<TimerFacts>, Vec<Finding>) {
     let index = NetIndex::new(cx);
@@ -35,11 +36,23 @@ pub fn analyze(cx: &Context<'_>) -> (Vec<TimerFacts>, Vec<Finding>) {
         .filter(|(_, d)| d.kind.is_timer())
         .map(|(id, _)| config::recognise(cx, &index, id))
         .collect();
-    let mut findings = Vec::new();
-    let mut facts: Vec<TimerFacts> = setups
-        .iter()
-        .map(|s| bounded_timer_facts(cx, &index, s, &mut findings))
+    // Timers are independent of one another and a solve's answer does not depend on which
+    // thread asks or what the memo holds, so they run in parallel; an indexed collect keeps
+    // their order, and their findings follow in timer order.
+    let each: Vec<(TimerFacts, Vec<Finding>)> = setups
+        .par_iter()
+        .map(|s| {
+            let mut own = Vec::new();
+            let facts = bounded_timer_facts(cx, &index, s, &mut own);
+            (facts, own)
+        })
         .collect();
+    let mut findings = Vec::new();
+    let mut facts = Vec::with_capacity(each.len());
+    for (f, own) in each {
+        facts.push(f);
+        findings.extend(own);
+    }
     trigger::resolve(cx, &index, &setups, &mut facts);
     (facts, findings)
 }
