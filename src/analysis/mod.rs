@@ -3,6 +3,7 @@
 //! ([`partition`]); [`states`] enumerates states and corners and solves them with the [`dc`]
 //! engine through the parts' behavioural stand-ins ([`stand_in`]).
 
+pub mod budget;
 pub mod dc;
 pub mod facts;
 pub mod partition;

@@ -4,7 +4,9 @@
 //! and logic output high or low, and each pot's wiper. The parts become behavioural stand-ins
 //! (see [`super::stand_in`]) and the DC engine solves the sub-network.
 
-use super::dc::{self, DcError, ElementId, Network, Node, OperatingPoint, SolveOptions};
+use super::dc::{
+    self, DcError, ElementId, Network, Node, OperatingPoint, SolveCache, SolveOptions,
+};
 use super::partition::{Component, Fixed, Partition};
 use super::stand_in::{self, DeviceElements};
 use crate::circuit::{Circuit, DeviceId, Kind, NetId, PinRole};
@@ -105,6 +107,12 @@ pub struct Context<'a> {
     pub partition: Partition,
     pub supplies: Vec<SupplyCorners>,
     pub options: SolveOptions,
+    /// Every DC solve of the analyses goes through this memo (see [`dc::solve_cached`]):
+    /// analyses that solve the same sub-network in the same state, and channels built alike,
+    /// share one Newton run.
+    pub cache: SolveCache,
+    /// Work bound of one timer's analysis, in solves ([`super::budget::TIMER_SOLVES`]).
+    pub timer_solves: usize,
 }
 
 impl<'a> Context<'a> {
@@ -118,6 +126,8 @@ impl<'a> Context<'a> {
             partition,
             supplies,
             options: SolveOptions::default(),
+            cache: SolveCache::new(),
+            timer_solves: super::budget::TIMER_SOLVES,
         }
     }
 
@@ -278,13 +288,51 @@ impl<'a> Context<'a> {
 
     /// Solves one component in one state.
     pub fn solve(&self, component: &Component, state: &State) -> Result<Solved, DcError> {
-        self.build(component, state).solve(&self.options)
+        if let Some(e) = self.oversized(component) {
+            return Err(e);
+        }
+        self.build(component, state).solve_in(self)
+    }
+
+    /// Solves a network built from a component (with elements of the caller's own), through
+    /// the memo, charged to the open work budget ([`super::budget`]).
+    pub fn solve_network(&self, network: &Network) -> Result<OperatingPoint, DcError> {
+        super::budget::charge()?;
+        dc::solve_cached(network, &self.options, &self.cache)
+    }
+
+    /// The Thevenin equivalent of a built network at `node`, through the memo and charged to
+    /// the open work budget.
+    pub fn thevenin(&self, network: &Network, node: Node) -> Result<dc::Thevenin, DcError> {
+        super::budget::charge()?;
+        dc::thevenin_cached(network, node, &self.options, &self.cache)
+    }
+
+    /// Why a component cannot be solved at all: more free nets than the DC engine's dense
+    /// limit. Checked before a network is built, so a huge sub-network costs nothing per
+    /// state.
+    pub fn oversized(&self, component: &Component) -> Option<DcError> {
+        (component.nets.len() > dc::DENSE_LIMIT).then_some(DcError::TooLarge {
+            unknowns: component.nets.len(),
+            limit: dc::DENSE_LIMIT,
+        })
     }
 
     /// The network of one component in one state, before it is solved, so that a caller can
     /// add elements of its own (a source holding a node, a probe) and solve it, or take a
     /// Thevenin equivalent.
+    ///
+    /// An [oversized](Context::oversized) component builds an empty network that refuses to
+    /// solve.
     pub fn build(&self, component: &Component, state: &State) -> Built {
+        if let Some(e) = self.oversized(component) {
+            return Built {
+                network: Network::new(),
+                nodes: BTreeMap::new(),
+                devices: BTreeMap::new(),
+                refused: Some(e),
+            };
+        }
         let mut network = Network::new();
         let mut nodes: BTreeMap<NetId, Node> = BTreeMap::new();
         let ground = network.ground();
@@ -325,6 +373,7 @@ impl<'a> Context<'a> {
             network,
             nodes,
             devices,
+            refused: None,
         }
     }
 
@@ -381,6 +430,8 @@ pub struct Built {
     pub network: Network,
     pub nodes: BTreeMap<NetId, Node>,
     pub devices: BTreeMap<DeviceId, DeviceElements>,
+    /// Why the component was not built (too large to solve); solving reports it.
+    pub refused: Option<DcError>,
 }
 
 impl Built {
@@ -389,6 +440,21 @@ impl Built {
     }
 
     pub fn solve(self, options: &SolveOptions) -> Result<Solved, DcError> {
+        self.solve_by(|network| dc::solve(network, options))
+    }
+
+    /// As [`Built::solve`], through the context's memo.
+    pub fn solve_in(self, cx: &Context<'_>) -> Result<Solved, DcError> {
+        self.solve_by(|network| cx.solve_network(network))
+    }
+
+    fn solve_by(
+        self,
+        solve: impl FnOnce(&Network) -> Result<OperatingPoint, DcError>,
+    ) -> Result<Solved, DcError> {
+        if let Some(e) = self.refused {
+            return Err(e);
+        }
         let mut network = self.network;
         if network.node_count() <= 1 {
             // Nothing to solve (a capacitor straight across two rails stamps nothing), but the
@@ -397,7 +463,7 @@ impl Built {
             let ground = network.ground();
             network.add_resistor(spare, ground, 1.0);
         }
-        let op = dc::solve(&network, options)?;
+        let op = solve(&network)?;
         Ok(Solved {
             op,
             nodes: self.nodes,

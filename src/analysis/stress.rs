@@ -20,6 +20,7 @@ use super::states::{Context, Solved, State};
 use super::switching::solves::{self, ComponentSolves};
 use crate::circuit::{DeviceId, Kind, NetId, PinRole};
 use crate::diagnostic::Finding;
+use rayon::prelude::*;
 use std::collections::BTreeMap;
 
 /// Wiper positions every pot is solved at before the search (which scans the whole travel).
@@ -47,14 +48,17 @@ pub fn analyze(cx: &Context<'_>) -> (Vec<ResistorFacts>, Vec<CapacitorFacts>, Ve
             by_component.entry(c).or_default().push(id);
         }
     }
-    let mut findings = Vec::new();
-    let mut solved: BTreeMap<usize, ComponentSolves> = BTreeMap::new();
-    for (&c, members) in &by_component {
-        let Some(component) = cx.partition.components.get(c) else {
-            continue;
-        };
-        let inputs = cx.inputs(component);
-        if let Some(s) = solves::solve_component(cx, c, &inputs, &STRESS_WIPER_GRID) {
+    // Sub-networks are independent and a solve's answer does not depend on the thread or the
+    // memo, so they are solved in parallel; the indexed collect keeps component order, which
+    // is the order findings and facts were always gathered in.
+    let work: Vec<(usize, &Vec<DeviceId>)> = by_component.iter().map(|(&c, m)| (c, m)).collect();
+    type Done = (usize, ComponentSolves, Option<Finding>, Vec<ResistorFacts>);
+    let done: Vec<Option<Done>> = work
+        .par_iter()
+        .map(|&(c, members)| -> Option<Done> {
+            let component = cx.partition.components.get(c)?;
+            let inputs = cx.inputs(component);
+            let s = solves::solve_component(cx, c, &inputs, &STRESS_WIPER_GRID)?;
             // Sub-networks with a switch or a load report their failures from the switching
             // analysis, which solves them too.
             let reported_elsewhere = component.devices.iter().any(|&d| {
@@ -63,26 +67,29 @@ pub fn analyze(cx: &Context<'_>) -> (Vec<ResistorFacts>, Vec<CapacitorFacts>, Ve
                     .get(d)
                     .is_some_and(|x| x.kind.is_switch_transistor() || x.kind.is_load())
             });
-            if !reported_elsewhere {
-                if let Some(&first) = members.first() {
-                    findings.extend(solves::failure_finding(cx, &s, first));
-                }
-            }
-            solved.insert(c, s);
-        }
-    }
-
+            let finding = if reported_elsewhere {
+                None
+            } else {
+                members
+                    .first()
+                    .and_then(|&first| solves::failure_finding(cx, &s, first))
+            };
+            let parts: Vec<DeviceId> = members
+                .iter()
+                .copied()
+                .filter(|&d| cx.circuit.devices[d].kind != Kind::Capacitor)
+                .collect();
+            let facts = resistor_facts(cx, component, &s, &parts);
+            Some((c, s, finding, facts))
+        })
+        .collect();
+    let mut findings = Vec::new();
+    let mut solved: BTreeMap<usize, ComponentSolves> = BTreeMap::new();
     let mut resistors = Vec::new();
-    for (&c, members) in &by_component {
-        let (Some(component), Some(s)) = (cx.partition.components.get(c), solved.get(&c)) else {
-            continue;
-        };
-        let parts: Vec<DeviceId> = members
-            .iter()
-            .copied()
-            .filter(|&d| cx.circuit.devices[d].kind != Kind::Capacitor)
-            .collect();
-        resistors.extend(resistor_facts(cx, component, s, &parts));
+    for (c, s, finding, facts) in done.into_iter().flatten() {
+        findings.extend(finding);
+        resistors.extend(facts);
+        solved.insert(c, s);
     }
     resistors.sort_by_key(|r: &ResistorFacts| r.device);
     resistors.dedup_by_key(|r| r.device);

@@ -2,8 +2,6 @@
 //! computed from its own equations, summed per node. Newton accepts an iterate only when
 //! these sums are small next to the currents meeting at each node.
 
-use nalgebra::DVector;
-
 use super::mna::{value, Layout, Slot, StepSettings};
 use super::models;
 use super::network::{Element, Network, Node, SHORT_OHMS};
@@ -36,7 +34,7 @@ impl Balance {
 pub(crate) fn node_balance(
     net: &Network,
     layout: &Layout,
-    x: &DVector<f64>,
+    x: &[f64],
     step: StepSettings,
 ) -> Balance {
     let mut balance = Balance {

@@ -1,8 +1,7 @@
 //! Modified nodal analysis: the unknowns of a network and the linear system of one Newton
 //! step, built from the devices' companion models (conductances plus equivalent currents).
 
-use nalgebra::{DMatrix, DVector};
-
+use super::linear::Matrix;
 use super::models;
 use super::network::{Element, Network, Node, SHORT_OHMS};
 
@@ -20,50 +19,59 @@ pub(crate) struct Layout {
     pub internal: Vec<Slot>,
     /// Per element: the branch-current unknown of a voltage source, VCVS or shorting resistor.
     pub branch: Vec<Slot>,
-    /// Per unknown: the net names to blame when that unknown misbehaves.
-    pub labels: Vec<Vec<String>>,
 }
 
 impl Layout {
     pub(crate) fn new(net: &Network) -> Self {
-        let mut labels: Vec<Vec<String>> = (1..net.node_count())
-            .map(|k| vec![net.node_name(Node(k)).to_string()])
-            .collect();
+        let mut size = net.node_count().saturating_sub(1);
         let mut internal = vec![None; net.elements.len()];
         for (slot, element) in internal.iter_mut().zip(&net.elements) {
-            if let Element::Diode { anode, params, .. } = element {
+            if let Element::Diode { params, .. } = element {
                 if params.rs > 0.0 {
-                    // The junction node is blamed on the anode's net, the name callers know.
-                    *slot = Some(labels.len());
-                    labels.push(vec![net.node_name(*anode).to_string()]);
+                    *slot = Some(size);
+                    size += 1;
                 }
             }
         }
-        let voltage_unknowns = labels.len();
+        let voltage_unknowns = size;
         let mut branch = vec![None; net.elements.len()];
         for (slot, element) in branch.iter_mut().zip(&net.elements) {
-            let ends = match *element {
-                Element::VoltageSource { p, n, .. } | Element::Vcvs { p, n, .. } => Some((p, n)),
-                Element::Resistor { a, b, ohms } if ohms < SHORT_OHMS => Some((a, b)),
-                _ => None,
-            };
-            if let Some((p, n)) = ends {
-                *slot = Some(labels.len());
-                labels.push(
-                    [p, n]
-                        .iter()
-                        .filter(|node| node.0 != 0)
-                        .map(|&node| net.node_name(node).to_string())
-                        .collect(),
-                );
+            if branch_ends(element).is_some() {
+                *slot = Some(size);
+                size += 1;
             }
         }
         Self {
-            size: labels.len(),
+            size,
             voltage_unknowns,
             internal,
             branch,
-            labels,
+        }
+    }
+
+    /// The net names to blame when unknown `k` misbehaves: a node's own name, a junction
+    /// node's anode (the name callers know), a branch current's two ends. Only errors need
+    /// them, so they are found when asked for.
+    pub(crate) fn label(&self, net: &Network, k: usize) -> Vec<String> {
+        if k + 1 < net.node_count() {
+            return vec![net.node_name(Node(k + 1)).to_string()];
+        }
+        let owner = |slots: &[Slot]| slots.iter().position(|s| *s == Some(k));
+        if let Some(Element::Diode { anode, .. }) =
+            owner(&self.internal).and_then(|e| net.elements.get(e))
+        {
+            return vec![net.node_name(*anode).to_string()];
+        }
+        match owner(&self.branch)
+            .and_then(|e| net.elements.get(e))
+            .and_then(branch_ends)
+        {
+            Some((p, n)) => [p, n]
+                .iter()
+                .filter(|node| node.0 != 0)
+                .map(|&node| net.node_name(node).to_string())
+                .collect(),
+            None => Vec::new(),
         }
     }
 
@@ -73,13 +81,22 @@ impl Layout {
     }
 
     /// Voltage of a node in a solution vector (0 for ground or an unknown node).
-    pub(crate) fn voltage(&self, x: &DVector<f64>, node: Node) -> f64 {
+    pub(crate) fn voltage(&self, x: &[f64], node: Node) -> f64 {
         value(x, self.node(node))
     }
 }
 
+/// The two ends of an element solved with a branch-current unknown.
+fn branch_ends(element: &Element) -> Option<(Node, Node)> {
+    match *element {
+        Element::VoltageSource { p, n, .. } | Element::Vcvs { p, n, .. } => Some((p, n)),
+        Element::Resistor { a, b, ohms } if ohms < SHORT_OHMS => Some((a, b)),
+        _ => None,
+    }
+}
+
 /// Value of an unknown, 0 for ground.
-pub(crate) fn value(x: &DVector<f64>, slot: Slot) -> f64 {
+pub(crate) fn value(x: &[f64], slot: Slot) -> f64 {
     slot.and_then(|k| x.get(k).copied()).unwrap_or(0.0)
 }
 
@@ -89,12 +106,23 @@ pub(crate) fn value(x: &DVector<f64>, slot: Slot) -> f64 {
 pub(crate) type DeviceVoltages = Vec<[f64; 2]>;
 
 /// Reads each element's controlling voltages from a solution vector.
-pub(crate) fn device_voltages(net: &Network, layout: &Layout, x: &DVector<f64>) -> DeviceVoltages {
+pub(crate) fn device_voltages(net: &Network, layout: &Layout, x: &[f64]) -> DeviceVoltages {
+    let mut out = Vec::with_capacity(net.elements.len());
+    device_voltages_into(net, layout, x, &mut out);
+    out
+}
+
+/// As [`device_voltages`], into a buffer kept between Newton iterations.
+pub(crate) fn device_voltages_into(
+    net: &Network,
+    layout: &Layout,
+    x: &[f64],
+    out: &mut DeviceVoltages,
+) {
     let v = |node: Node| layout.voltage(x, node);
-    net.elements
-        .iter()
-        .zip(&layout.internal)
-        .map(|(element, internal)| match *element {
+    out.clear();
+    out.extend(net.elements.iter().zip(&layout.internal).map(
+        |(element, internal)| match *element {
             Element::Diode { anode, cathode, .. } => {
                 let junction = internal.map_or_else(|| v(anode), |k| value(x, Some(k)));
                 [junction - v(cathode), 0.0]
@@ -103,8 +131,8 @@ pub(crate) fn device_voltages(net: &Network, layout: &Layout, x: &DVector<f64>) 
             Element::Mosfet { d, g, s, .. } => [v(g) - v(s), v(d) - v(s)],
             Element::CurrentLimited { a, b, .. } => [v(a) - v(b), 0.0],
             _ => [0.0, 0.0],
-        })
-        .collect()
+        },
+    ));
 }
 
 /// Settings of one linear system beyond the devices' linearisation points.
@@ -118,48 +146,76 @@ pub(crate) struct StepSettings {
     pub vt: f64,
 }
 
-/// The matrix and right-hand side of one Newton step.
+/// Where stamped terms go: the matrix and right-hand side of a Newton step, or only the
+/// per-row weights the convergence test needs.
+trait Sink {
+    fn add(&mut self, row: usize, col: usize, value: f64);
+    fn add_rhs(&mut self, row: usize, value: f64);
+}
+
+/// The matrix and right-hand side of one Newton step, kept between iterations so that each
+/// one stamps into the same storage.
+#[derive(Debug, Default)]
 pub(crate) struct System {
-    pub a: DMatrix<f64>,
-    pub b: DVector<f64>,
-    /// Per row, `Σ|term|` over every stamped term before cancellation, each matrix term
-    /// weighed by the iterate's value of its unknown. It bounds the rounding error of the
-    /// row, so the KCL test does not demand more precision than the arithmetic has.
-    pub row_weight: DVector<f64>,
-    weigh_against: Option<DVector<f64>>,
+    pub a: Matrix,
+    pub b: Vec<f64>,
 }
 
 impl System {
-    fn new(size: usize, weigh_against: Option<DVector<f64>>) -> Self {
-        Self {
-            a: DMatrix::zeros(size, size),
-            b: DVector::zeros(size),
-            row_weight: DVector::zeros(size),
-            weigh_against,
+    fn reset(&mut self, size: usize) {
+        self.a.reset(size);
+        self.b.clear();
+        self.b.resize(size, 0.0);
+    }
+}
+
+impl Sink for System {
+    fn add(&mut self, row: usize, col: usize, value: f64) {
+        self.a.add(row, col, value);
+    }
+
+    fn add_rhs(&mut self, row: usize, value: f64) {
+        if let Some(entry) = self.b.get_mut(row) {
+            *entry += value;
+        }
+    }
+}
+
+/// Per row, `Σ|term|` over every stamped term before cancellation, each matrix term weighed
+/// by the iterate's value of its unknown. It bounds the rounding error of the row, so the KCL
+/// test does not demand more precision than the arithmetic has.
+struct RowWeights<'x> {
+    weight: &'x mut Vec<f64>,
+    x: &'x [f64],
+}
+
+impl Sink for RowWeights<'_> {
+    fn add(&mut self, row: usize, col: usize, value: f64) {
+        if let (Some(x), Some(w)) = (self.x.get(col), self.weight.get_mut(row)) {
+            *w += (value * x).abs();
         }
     }
 
+    fn add_rhs(&mut self, row: usize, value: f64) {
+        if let Some(w) = self.weight.get_mut(row) {
+            *w += value.abs();
+        }
+    }
+}
+
+/// Stamping helpers over a [`Sink`], skipping ground.
+struct Stamper<'s, S: Sink>(&'s mut S);
+
+impl<S: Sink> Stamper<'_, S> {
     fn add(&mut self, row: Slot, col: Slot, value: f64) {
         if let (Some(r), Some(c)) = (row, col) {
-            if let Some(entry) = self.a.get_mut((r, c)) {
-                *entry += value;
-            }
-            if let Some(x) = self.weigh_against.as_ref().and_then(|x| x.get(c)) {
-                if let Some(w) = self.row_weight.get_mut(r) {
-                    *w += (value * x).abs();
-                }
-            }
+            self.0.add(r, c, value);
         }
     }
 
     fn add_rhs(&mut self, row: Slot, value: f64) {
         if let Some(r) = row {
-            if let Some(entry) = self.b.get_mut(r) {
-                *entry += value;
-            }
-            if let Some(w) = self.row_weight.get_mut(r) {
-                *w += value.abs();
-            }
+            self.0.add_rhs(r, value);
         }
     }
 
@@ -205,40 +261,53 @@ impl System {
 }
 
 /// Builds the linear system whose solution is the next Newton iterate, with every nonlinear
-/// device replaced by its tangent at `lin`.
+/// device replaced by its tangent at `lin`, into `sys` (its storage reused).
+pub(crate) fn assemble_into(
+    net: &Network,
+    layout: &Layout,
+    lin: &[[f64; 2]],
+    step: StepSettings,
+    sys: &mut System,
+) {
+    sys.reset(layout.size);
+    stamp_all(net, layout, lin, step, &mut Stamper(sys));
+}
+
+/// As [`assemble_into`], into a system of its own.
 pub(crate) fn assemble(
     net: &Network,
     layout: &Layout,
     lin: &[[f64; 2]],
     step: StepSettings,
 ) -> System {
-    stamp_all(net, layout, lin, step, System::new(layout.size, None))
+    let mut sys = System::default();
+    assemble_into(net, layout, lin, step, &mut sys);
+    sys
 }
 
-/// As [`assemble`], also filling [`System::row_weight`] against the iterate `x`.
-pub(crate) fn assemble_weighted(
+/// The per-row weights of the system linearised at `lin`, against the iterate `x`, into
+/// `weight` (see [`RowWeights`]).
+pub(crate) fn row_weights(
     net: &Network,
     layout: &Layout,
     lin: &[[f64; 2]],
     step: StepSettings,
-    x: &DVector<f64>,
-) -> System {
-    stamp_all(
-        net,
-        layout,
-        lin,
-        step,
-        System::new(layout.size, Some(x.clone())),
-    )
+    x: &[f64],
+    weight: &mut Vec<f64>,
+) {
+    weight.clear();
+    weight.resize(layout.size, 0.0);
+    let mut sink = RowWeights { weight, x };
+    stamp_all(net, layout, lin, step, &mut Stamper(&mut sink));
 }
 
-fn stamp_all(
+fn stamp_all<S: Sink>(
     net: &Network,
     layout: &Layout,
     lin: &[[f64; 2]],
     step: StepSettings,
-    mut sys: System,
-) -> System {
+    sys: &mut Stamper<'_, S>,
+) {
     let at = |node: Node| layout.node(node);
     for (index, element) in net.elements.iter().enumerate() {
         let point = lin.get(index).copied().unwrap_or([0.0, 0.0]);
@@ -329,5 +398,4 @@ fn stamp_all(
             sys.add(Some(k), Some(k), step.shunt);
         }
     }
-    sys
 }

@@ -26,6 +26,7 @@
 //! stepping are tried; all of it is bounded by an iteration budget, so a solve always ends.
 
 mod balance;
+mod cache;
 mod linear;
 mod mna;
 mod models;
@@ -39,6 +40,7 @@ mod topology;
 #[cfg(test)]
 mod tests;
 
+pub use cache::SolveCache;
 pub use models::MosRegion;
 pub use network::{
     BjtParams, BjtPolarity, DiodeParams, ElementId, MosParams, MosPolarity, Network, Node,
@@ -46,7 +48,16 @@ pub use network::{
 pub use newton::Fallback;
 pub use options::{DcError, SolveOptions};
 pub use result::{BjtRegion, OperatingPoint};
-pub use thevenin::{thevenin, Thevenin};
+pub use thevenin::{thevenin, thevenin_cached, Thevenin};
+
+use std::sync::Arc;
+
+/// Most unknowns the engine solves with its dense matrix. The sub-networks of a motor drive
+/// between its rails have tens of unknowns; a thousand keeps one matrix at 8 MB (two live
+/// copies: the system and its factors) and one factorisation near 0.3 G multiply-adds, while
+/// a network past it (a generated ladder, a flattened array) is refused with
+/// [`DcError::TooLarge`] before anything of its size is allocated.
+pub const DENSE_LIMIT: usize = 1000;
 
 use mna::Layout;
 use newton::{Converged, Failure, Solver};
@@ -56,9 +67,24 @@ use newton::{Converged, Failure, Solver};
 /// # Errors
 /// [`DcError::InvalidElement`] for unusable values, [`DcError::Singular`] for floating nodes,
 /// voltage-source loops or a degenerate matrix, [`DcError::NoConvergence`] when Newton and its
-/// fallbacks all fail within the iteration budget.
+/// fallbacks all fail within the iteration budget, [`DcError::NoFreeNode`] for a network
+/// that is all ground, [`DcError::TooLarge`] past [`DENSE_LIMIT`] unknowns.
 pub fn solve(network: &Network, options: &SolveOptions) -> Result<OperatingPoint, DcError> {
-    solve_with_start(network, options, None)
+    solve_with_start(network, options, None, None)
+}
+
+/// As [`solve`], answering from `cache` when a network with exactly the same contents (every
+/// value to the bit, names aside) was solved with the same options before, and remembering
+/// the answer otherwise. The result is the one [`solve`] gives.
+///
+/// # Errors
+/// As [`solve`].
+pub fn solve_cached(
+    network: &Network,
+    options: &SolveOptions,
+    cache: &SolveCache,
+) -> Result<OperatingPoint, DcError> {
+    solve_with_start(network, options, None, Some(cache))
 }
 
 /// As [`solve`], starting Newton from `start`, the operating point of the same network
@@ -74,15 +100,16 @@ pub fn solve_from(
     options: &SolveOptions,
     start: &OperatingPoint,
 ) -> Result<OperatingPoint, DcError> {
-    solve_with_start(network, options, Some(&start.solution))
+    solve_with_start(network, options, Some(&start.solution), None)
 }
 
 fn solve_with_start(
     network: &Network,
     options: &SolveOptions,
     start: Option<&[f64]>,
+    cache: Option<&SolveCache>,
 ) -> Result<OperatingPoint, DcError> {
-    let (layout, converged, iterations, fallback) = solve_raw(network, options, start)?;
+    let (layout, converged, iterations, fallback) = solve_raw(network, options, start, cache)?;
     Ok(OperatingPoint::build(
         network,
         &layout,
@@ -95,38 +122,108 @@ fn solve_with_start(
 }
 
 /// The converged solution vector with the layout that gives it meaning.
+/// With a `cache` (and no `start`), a network met before skips the structure checks as well
+/// as Newton: the key covers everything both depend on, and only networks that passed the
+/// checks are remembered.
 pub(crate) fn solve_raw(
     network: &Network,
     options: &SolveOptions,
     start: Option<&[f64]>,
+    cache: Option<&SolveCache>,
 ) -> Result<(Layout, Converged, usize, Fallback), DcError> {
-    topology::validate(network)?;
-    topology::check_structure(network)?;
+    // Refused before anything of the network's size is built (a memo key included).
+    let free_nodes = network.node_count().saturating_sub(1);
+    if free_nodes > DENSE_LIMIT {
+        return Err(DcError::TooLarge {
+            unknowns: free_nodes,
+            limit: DENSE_LIMIT,
+        });
+    }
+    let memo = cache.filter(|_| start.is_none());
+    let key = memo.map(|_| cache::key(network, options));
+    let known = memo.zip(key.as_ref()).and_then(|(c, k)| c.get(k));
+    let outcome = match known {
+        Some(outcome) => outcome,
+        None => {
+            let outcome = Arc::new(fresh(network, options, start)?);
+            if let (Some(c), Some(k)) = (memo, key) {
+                c.put(k, Arc::clone(&outcome));
+            }
+            outcome
+        }
+    };
     let layout = Layout::new(network);
-    let outcome = Solver::new(network, &layout, options).solve(start);
-    match outcome.result {
-        Ok((converged, fallback)) => Ok((layout, converged, outcome.iterations, fallback)),
-        Err(Failure::Singular(unknowns)) => Err(topology::singular(names(&layout, &unknowns))),
-        Err(Failure::Diverged(unknowns)) => Err(DcError::NoConvergence {
-            nodes: names_in_order(&layout, &unknowns),
-            iterations: outcome.iterations,
+    match &*outcome {
+        cache::Outcome::Solved {
+            x,
+            lin,
+            fallback,
+            iterations,
+        } => {
+            let converged = Converged {
+                x: x.clone(),
+                lin: lin.clone(),
+            };
+            Ok((layout, converged, *iterations, *fallback))
+        }
+        cache::Outcome::Failed {
+            failure: Failure::Singular(unknowns),
+            ..
+        } => Err(topology::singular(names(network, &layout, unknowns))),
+        cache::Outcome::Failed {
+            failure: Failure::Diverged(unknowns),
+            iterations,
+        } => Err(DcError::NoConvergence {
+            nodes: names_in_order(network, &layout, unknowns),
+            iterations: *iterations,
         }),
     }
 }
 
+/// Checks the structure and runs Newton with its fallbacks.
+fn fresh(
+    network: &Network,
+    options: &SolveOptions,
+    start: Option<&[f64]>,
+) -> Result<cache::Outcome, DcError> {
+    topology::validate(network)?;
+    topology::check_structure(network)?;
+    let layout = Layout::new(network);
+    if layout.size == 0 {
+        return Err(DcError::NoFreeNode);
+    }
+    if layout.size > DENSE_LIMIT {
+        return Err(DcError::TooLarge {
+            unknowns: layout.size,
+            limit: DENSE_LIMIT,
+        });
+    }
+    let outcome = Solver::new(network, &layout, options).solve(start);
+    Ok(match outcome.result {
+        Ok((converged, fallback)) => cache::Outcome::Solved {
+            x: converged.x,
+            lin: converged.lin,
+            fallback,
+            iterations: outcome.iterations,
+        },
+        Err(failure) => cache::Outcome::Failed {
+            failure,
+            iterations: outcome.iterations,
+        },
+    })
+}
+
 /// Net names for a set of unknowns.
-fn names(layout: &Layout, unknowns: &[usize]) -> Vec<String> {
+fn names(network: &Network, layout: &Layout, unknowns: &[usize]) -> Vec<String> {
     unknowns
         .iter()
-        .filter_map(|&k| layout.labels.get(k))
-        .flatten()
-        .cloned()
+        .flat_map(|&k| layout.label(network, k))
         .collect()
 }
 
 /// Net names for unknowns in the given order (first occurrence kept), at most ten. Node
 /// voltages are named in preference to branch currents, which only point at their nodes.
-fn names_in_order(layout: &Layout, unknowns: &[usize]) -> Vec<String> {
+fn names_in_order(network: &Network, layout: &Layout, unknowns: &[usize]) -> Vec<String> {
     let voltages: Vec<usize> = unknowns
         .iter()
         .copied()
@@ -138,7 +235,7 @@ fn names_in_order(layout: &Layout, unknowns: &[usize]) -> Vec<String> {
         &voltages
     };
     let mut out: Vec<String> = Vec::new();
-    for name in names(layout, chosen) {
+    for name in chosen.iter().flat_map(|&k| layout.label(network, k)) {
         if !out.contains(&name) {
             out.push(name);
         }

@@ -2,12 +2,11 @@
 //! (iterate step and KCL residual), and the fallbacks that rescue hard starts: gmin stepping,
 //! then source stepping. Every loop is bounded by the iteration budget.
 
-use nalgebra::DVector;
-
 use super::balance::node_balance;
-use super::linear::{solve_linear, LinearFailure};
+use super::linear::{LinearFailure, LinearSolver};
 use super::mna::{
-    assemble, assemble_weighted, device_voltages, DeviceVoltages, Layout, StepSettings,
+    assemble_into, device_voltages, device_voltages_into, row_weights, DeviceVoltages, Layout,
+    StepSettings, System,
 };
 use super::models;
 use super::network::{Element, Network};
@@ -27,7 +26,7 @@ pub enum Fallback {
 /// A converged iterate and the device voltages its last linearisation used.
 #[derive(Clone, Debug)]
 pub(crate) struct Converged {
-    pub x: DVector<f64>,
+    pub x: Vec<f64>,
     pub lin: DeviceVoltages,
 }
 
@@ -54,6 +53,20 @@ pub(crate) struct Solver<'a> {
     /// Newton iterations left over all attempts.
     budget: usize,
     used: usize,
+    work: Work,
+}
+
+/// Storage every Newton iteration reuses: the system, the factorisation's scratch space and
+/// the per-iteration vectors. Solves here are small and many, so allocating these afresh in
+/// each iteration cost more than the arithmetic.
+#[derive(Debug, Default)]
+struct Work {
+    system: System,
+    linear: LinearSolver,
+    next: Vec<f64>,
+    raw: DeviceVoltages,
+    exact: DeviceVoltages,
+    weights: Vec<f64>,
 }
 
 /// Shunt tried first in gmin stepping, in siemens, and the most it may grow to (a decade per
@@ -75,6 +88,7 @@ impl<'a> Solver<'a> {
             vt: options.thermal_voltage(),
             budget: options.max_total_iterations,
             used: 0,
+            work: Work::default(),
         }
     }
 
@@ -94,10 +108,10 @@ impl<'a> Solver<'a> {
     /// A `start` of the right size (the solution of the same network with other values) is
     /// tried first; a failure from there falls back to the zero start.
     pub(crate) fn solve(mut self, start: Option<&[f64]>) -> Outcome {
-        let zero = DVector::zeros(self.layout.size);
+        let zero = vec![0.0; self.layout.size];
         let zero_lin = vec![[0.0, 0.0]; self.net.elements.len()];
         if let Some(start) = start.filter(|s| s.len() == self.layout.size) {
-            let x0 = DVector::from_column_slice(start);
+            let x0 = start.to_vec();
             let lin0 = device_voltages(self.net, self.layout, &x0);
             if let Ok(done) = self.newton(&x0, &lin0, self.settings(1.0, 0.0)) {
                 return self.finish(Ok((done, Fallback::None)));
@@ -126,7 +140,7 @@ impl<'a> Solver<'a> {
 
     /// Shunts every node with a conductance that starts large (making the system nearly
     /// linear) and shrinks it a decade at a time, halving the step in log space on failure.
-    fn gmin_stepping(&mut self, x0: &DVector<f64>, lin0: &DeviceVoltages) -> Option<Converged> {
+    fn gmin_stepping(&mut self, x0: &[f64], lin0: &DeviceVoltages) -> Option<Converged> {
         let mut shunt = GMIN_START;
         let mut good: Option<(Converged, f64)> = None;
         let mut factor: f64 = 10.0;
@@ -162,7 +176,7 @@ impl<'a> Solver<'a> {
 
     /// Ramps every independent source from 0 to its value, growing the step after each
     /// success and cutting it after each failure.
-    fn source_stepping(&mut self, x0: &DVector<f64>, lin0: &DeviceVoltages) -> Option<Converged> {
+    fn source_stepping(&mut self, x0: &[f64], lin0: &DeviceVoltages) -> Option<Converged> {
         let mut good = self.newton(x0, lin0, self.settings(0.0, 0.0)).ok()?;
         let mut scale: f64 = 0.0;
         let mut step: f64 = 0.1;
@@ -194,44 +208,51 @@ impl<'a> Solver<'a> {
     /// One Newton–Raphson run from `x0`, linearised first around `lin0`.
     pub(crate) fn newton(
         &mut self,
-        x0: &DVector<f64>,
+        x0: &[f64],
         lin0: &DeviceVoltages,
         step: StepSettings,
     ) -> Result<Converged, Failure> {
-        let mut x = x0.clone();
+        let mut x = x0.to_vec();
         let mut lin = lin0.clone();
         let mut blame = Vec::new();
+        let mut work = std::mem::take(&mut self.work);
         for _ in 0..self.options.max_iterations {
             if self.budget == 0 {
                 break;
             }
             self.budget -= 1;
             self.used += 1;
-            let raw = device_voltages(self.net, self.layout, &x);
-            let limited = self.limit(&raw, &mut lin);
-            let sys = assemble(self.net, self.layout, &lin, step);
-            let next = match solve_linear(&sys.a, &sys.b) {
-                Ok(next) => next,
+            device_voltages_into(self.net, self.layout, &x, &mut work.raw);
+            let limited = self.limit(&work.raw, &mut lin);
+            assemble_into(self.net, self.layout, &lin, step, &mut work.system);
+            match work
+                .linear
+                .solve(&work.system.a, &work.system.b, &mut work.next)
+            {
+                Ok(()) => {}
                 Err(LinearFailure::Degenerate(unknowns)) => {
-                    return Err(Failure::Singular(unknowns))
+                    self.work = work;
+                    return Err(Failure::Singular(unknowns));
                 }
                 Err(LinearFailure::NotFinite) => break,
-            };
-            let moving = self.moving_unknowns(&x, &next);
-            x = next;
+            }
+            let moving = self.moving_unknowns(&x, &work.next);
+            std::mem::swap(&mut x, &mut work.next);
             blame = if !moving.is_empty() {
                 moving
             } else if !limited.is_empty() {
                 self.terminal_unknowns(&limited)
             } else {
-                let failing = self.residual_failures(&x, step);
+                let failing = self.residual_failures(&x, step, &mut work);
                 if failing.is_empty() {
-                    let lin = device_voltages(self.net, self.layout, &x);
+                    let lin = std::mem::take(&mut work.exact);
+                    self.work = work;
                     return Ok(Converged { x, lin });
                 }
                 failing
             };
         }
+        self.work = work;
         if blame.is_empty() {
             let nonlinear: Vec<usize> = (0..self.net.elements.len()).collect();
             blame = self.terminal_unknowns(&nonlinear);
@@ -306,7 +327,7 @@ impl<'a> Solver<'a> {
 
     /// Unknowns whose change exceeds `reltol·max(|old|, |new|)` plus the absolute tolerance
     /// (volts for nodes, amperes for branch currents), largest change first.
-    fn moving_unknowns(&self, old: &DVector<f64>, new: &DVector<f64>) -> Vec<usize> {
+    fn moving_unknowns(&self, old: &[f64], new: &[f64]) -> Vec<usize> {
         let o = self.options;
         let mut moving: Vec<(usize, f64)> = old
             .iter()
@@ -330,10 +351,19 @@ impl<'a> Solver<'a> {
     /// node's residual current may be `reltol` of the currents meeting at it plus `abstol`,
     /// plus the rounding floor of the arithmetic that produced the iterate
     /// ([`ROUNDING_SLACK`] times the row's stamped-term weight).
-    fn residual_failures(&self, x: &DVector<f64>, step: StepSettings) -> Vec<usize> {
+    /// Leaves the device voltages at `x` in `work.exact`.
+    fn residual_failures(&self, x: &[f64], step: StepSettings, work: &mut Work) -> Vec<usize> {
         let balance = node_balance(self.net, self.layout, x, step);
-        let exact = device_voltages(self.net, self.layout, x);
-        let weights = assemble_weighted(self.net, self.layout, &exact, step, x).row_weight;
+        device_voltages_into(self.net, self.layout, x, &mut work.exact);
+        row_weights(
+            self.net,
+            self.layout,
+            &work.exact,
+            step,
+            x,
+            &mut work.weights,
+        );
+        let weights = &work.weights;
         let o = self.options;
         let mut failing: Vec<(usize, f64)> = balance
             .residual

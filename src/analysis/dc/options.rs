@@ -66,6 +66,25 @@ pub enum DcError {
         /// Newton iterations spent over all attempts.
         iterations: usize,
     },
+    /// Every node of the network is ground: there is no unknown to solve for.
+    #[error("the network has no free node to solve")]
+    NoFreeNode,
+    /// The network has more unknowns than the dense solver takes (see
+    /// [`super::DENSE_LIMIT`]); it is refused before any matrix is allocated.
+    #[error("the sub-network has {unknowns} unknowns, more than the {limit} the DC engine solves densely")]
+    TooLarge {
+        /// Unknowns the network would need (at least its free nodes).
+        unknowns: usize,
+        /// The engine's limit.
+        limit: usize,
+    },
+    /// An analysis spent its budget of solves (see [`crate::analysis::budget`]); the
+    /// remaining solves of that analysis were not run.
+    #[error("the analysis reached its bound of {limit} DC solves")]
+    WorkBound {
+        /// Solves the analysis may request.
+        limit: usize,
+    },
     /// An element has a value the models cannot use (negative or non-finite resistance,
     /// non-positive saturation current, a node from another network, ...).
     #[error("element {} is invalid: {reason}", element.index())]

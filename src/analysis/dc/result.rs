@@ -1,8 +1,6 @@
 //! The operating point of a solved network: node voltages and, per element, its current,
 //! control-terminal current, dissipated power and transistor region.
 
-use nalgebra::DVector;
-
 use super::mna::{value, Layout};
 use super::models::{self, MosRegion};
 use super::network::{Element, ElementId, Network, Node};
@@ -66,7 +64,7 @@ impl OperatingPoint {
     pub(crate) fn build(
         net: &Network,
         layout: &Layout,
-        x: &DVector<f64>,
+        x: &[f64],
         vt: f64,
         gmin: f64,
         iterations: usize,
@@ -95,7 +93,7 @@ impl OperatingPoint {
             .collect();
         Self {
             voltages,
-            solution: x.iter().copied().collect(),
+            solution: x.to_vec(),
             elements,
             iterations,
             fallback,

@@ -1,13 +1,12 @@
 //! The Thevenin equivalent a network presents at one node, for analyses that attach a load
 //! (a timing capacitor, a gate) and need its source voltage and resistance.
 
-use nalgebra::DVector;
-
 use super::linear::{solve_linear, LinearFailure};
 use super::mna::{assemble, device_voltages, StepSettings};
 use super::network::{Network, Node};
 use super::options::{DcError, SolveOptions};
 use super::topology::singular;
+use super::SolveCache;
 
 /// A voltage source `v_open` behind a resistance `r_th`, as seen from a node to ground.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -48,10 +47,33 @@ pub fn thevenin(
     node: Node,
     options: &SolveOptions,
 ) -> Result<Thevenin, DcError> {
+    thevenin_with(network, node, options, None)
+}
+
+/// As [`thevenin`], with the operating point from `cache` when the same network was solved
+/// before (see [`super::solve_cached`]).
+///
+/// # Errors
+/// As [`thevenin`].
+pub fn thevenin_cached(
+    network: &Network,
+    node: Node,
+    options: &SolveOptions,
+    cache: &SolveCache,
+) -> Result<Thevenin, DcError> {
+    thevenin_with(network, node, options, Some(cache))
+}
+
+fn thevenin_with(
+    network: &Network,
+    node: Node,
+    options: &SolveOptions,
+    cache: Option<&SolveCache>,
+) -> Result<Thevenin, DcError> {
     if node.index() >= network.node_count() {
         return Err(singular(vec![network.node_name(node).to_string()]));
     }
-    let (layout, converged, _, _) = super::solve_raw(network, options, None)?;
+    let (layout, converged, _, _) = super::solve_raw(network, options, None, cache)?;
     let Some(slot) = layout.node(node) else {
         return Ok(Thevenin {
             v_open: 0.0,
@@ -67,7 +89,7 @@ pub fn thevenin(
         vt: options.thermal_voltage(),
     };
     let jacobian = assemble(network, &layout, &at_solution, step).a;
-    let mut injection = DVector::zeros(layout.size);
+    let mut injection = vec![0.0; layout.size];
     if let Some(entry) = injection.get_mut(slot) {
         *entry = 1.0;
     }

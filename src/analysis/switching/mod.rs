@@ -21,6 +21,7 @@ use drive::OnOff;
 use gate_network::GateDrive;
 use load::LoadSetting;
 use nets::NetMap;
+use rayon::prelude::*;
 use solves::ComponentSolves;
 use std::collections::BTreeMap;
 use topology::SwitchTopology;
@@ -61,17 +62,25 @@ pub fn analyze(
             by_component.entry(c).or_default().push(i);
         }
     }
+    // Each sub-network is solved on its own, in parallel (answers do not depend on the thread
+    // or the memo); the indexed collect keeps component order for the findings.
+    let work: Vec<(usize, &Vec<usize>)> = by_component.iter().map(|(&c, m)| (c, m)).collect();
+    let done: Vec<Option<(usize, ComponentSolves)>> = work
+        .par_iter()
+        .map(|&(c, members)| {
+            let mut keys: Vec<DeviceId> =
+                members.iter().filter_map(|&i| drives[i].control).collect();
+            keys.sort_unstable();
+            keys.dedup();
+            solves::solve_component(cx, c, &keys, &SWITCH_WIPER_GRID).map(|s| (c, s))
+        })
+        .collect();
     let mut solved: BTreeMap<usize, ComponentSolves> = BTreeMap::new();
-    for (&c, members) in &by_component {
-        let mut keys: Vec<DeviceId> = members.iter().filter_map(|&i| drives[i].control).collect();
-        keys.sort_unstable();
-        keys.dedup();
-        if let Some(s) = solves::solve_component(cx, c, &keys, &SWITCH_WIPER_GRID) {
-            if let Some(first) = members.first() {
-                findings.extend(solves::failure_finding(cx, &s, topologies[*first].device));
-            }
-            solved.insert(c, s);
+    for (c, s) in done.into_iter().flatten() {
+        if let Some(first) = by_component.get(&c).and_then(|m| m.first()) {
+            findings.extend(solves::failure_finding(cx, &s, topologies[*first].device));
         }
+        solved.insert(c, s);
     }
     let component_of = |device: DeviceId| -> Option<usize> {
         cx.partition

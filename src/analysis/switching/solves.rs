@@ -186,16 +186,18 @@ pub fn failure_finding(
     let (label, error) = solves.failure.as_ref()?;
     let d = cx.circuit.devices.get(device)?;
     let element = cx.netlist.elements.get(d.element)?;
+    let message = match error {
+        DcError::TooLarge { unknowns, limit } => format!(
+            "the sub-network around {} has {unknowns} unknowns, more than the {limit} the DC engine solves densely; its voltages, currents and dissipation are not checked",
+            element.path
+        ),
+        _ => format!(
+            "no DC operating point for the sub-network around {} in the state `{label}`: {error}",
+            element.path
+        ),
+    };
     Some(
-        Finding::new(
-            "solve-failed",
-            Severity::Warning,
-            element.span,
-            format!(
-                "no DC operating point for the sub-network around {} in the state `{label}`: {error}",
-                element.path
-            ),
-        )
-        .with_element(element.name.clone(), element.instance_path()),
+        Finding::new("solve-failed", Severity::Warning, element.span, message)
+            .with_element(element.name.clone(), element.instance_path()),
     )
 }

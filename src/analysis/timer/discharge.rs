@@ -53,7 +53,7 @@ fn seen_when_off(cx: &Context<'_>, setup: &Setup, state: &State) -> Option<dc::T
     let high = sweep::with_level(state, setup.device, true);
     let built = cx.build(component, &high);
     let node = built.node(dis)?;
-    dc::thevenin(&built.network, node, &cx.options).ok()
+    cx.thevenin(&built.network, node).ok()
 }
 
 pub fn analyze(
@@ -273,5 +273,5 @@ fn held_low(cx: &Context<'_>, setup: &Setup, state: &State, volts: f64) -> Optio
     let node = built.node(net)?;
     let ground = built.network.ground();
     built.network.add_voltage_source(node, ground, volts);
-    built.solve(&cx.options).ok()
+    built.solve_in(cx).ok()
 }

@@ -15,6 +15,7 @@ pub mod phase;
 pub mod sweep;
 pub mod trigger;
 
+use super::budget;
 use super::dc::DcError;
 use super::facts::{Range, StuckPhase, TimerFacts, TimerMode};
 use super::stand_in;
@@ -23,6 +24,7 @@ use crate::circuit::{DeviceId, Kind};
 use crate::diagnostic::{Finding, Severity};
 use config::{NetIndex, Setup};
 use phase::{Outcome, Phase, Thresholds};
+use rayon::prelude::*;
 
 pub fn analyze(cx: &Context<'_>) -> (Vec<TimerFacts>, Vec<Finding>) {
     let index = NetIndex::new(cx);
@@ -34,11 +36,23 @@ pub fn analyze(cx: &Context<'_>) -> (Vec<TimerFacts>, Vec<Finding>) {
         .filter(|(_, d)| d.kind.is_timer())
         .map(|(id, _)| config::recognise(cx, &index, id))
         .collect();
-    let mut findings = Vec::new();
-    let mut facts: Vec<TimerFacts> = setups
-        .iter()
-        .map(|s| timer_facts(cx, &index, s, &mut findings))
+    // Timers are independent of one another and a solve's answer does not depend on which
+    // thread asks or what the memo holds, so they run in parallel; an indexed collect keeps
+    // their order, and their findings follow in timer order.
+    let each: Vec<(TimerFacts, Vec<Finding>)> = setups
+        .par_iter()
+        .map(|s| {
+            let mut own = Vec::new();
+            let facts = bounded_timer_facts(cx, &index, s, &mut own);
+            (facts, own)
+        })
         .collect();
+    let mut findings = Vec::new();
+    let mut facts = Vec::with_capacity(each.len());
+    for (f, own) in each {
+        facts.push(f);
+        findings.extend(own);
+    }
     trigger::resolve(cx, &index, &setups, &mut facts);
     (facts, findings)
 }
@@ -100,6 +114,35 @@ fn empty_facts(setup: &Setup) -> TimerFacts {
         charge_path: Vec::new(),
         discharge_path: Vec::new(),
     }
+}
+
+/// One timer's facts within its work bound (`Context::timer_solves`); a timing network too
+/// large to solve, or one that spends the bound, gets a `solve-failed` finding that says so.
+fn bounded_timer_facts(
+    cx: &Context<'_>,
+    index: &NetIndex,
+    setup: &Setup,
+    findings: &mut Vec<Finding>,
+) -> TimerFacts {
+    if let Some(e) = setup
+        .component
+        .and_then(|c| cx.partition.components.get(c))
+        .and_then(|c| cx.oversized(c))
+    {
+        findings.push(solve_failed(cx, setup, &e));
+        return empty_facts(setup);
+    }
+    let scope = budget::Scope::open(cx.timer_solves);
+    let mut own = Vec::new();
+    let facts = timer_facts(cx, index, setup, &mut own);
+    match scope.exhausted() {
+        Some(limit) => {
+            let bound = DcError::WorkBound { limit };
+            findings.push(solve_failed(cx, setup, &bound));
+        }
+        None => findings.extend(own),
+    }
+    facts
 }
 
 fn timer_facts(
@@ -321,7 +364,7 @@ fn path_devices(cx: &Context<'_>, setup: &Setup, state: &State, v: f64) -> Vec<D
     };
     let ground = built.network.ground();
     let hold = built.network.add_voltage_source(node, ground, v);
-    let Ok(solved) = built.solve(&cx.options) else {
+    let Ok(solved) = built.solve_in(cx) else {
         return Vec::new();
     };
     let Some(total) = solved.current(hold).map(f64::abs).filter(|i| *i > 0.0) else {
@@ -408,15 +451,17 @@ fn solve_failed(cx: &Context<'_>, setup: &Setup, e: &DcError) -> Finding {
         .get(setup.device)
         .and_then(|d| cx.netlist.elements.get(d.element));
     let span = element.map(|e| e.span).unwrap_or_default();
-    let mut f = Finding::new(
-        "solve-failed",
-        Severity::Warning,
-        span,
-        format!(
+    let message = match e {
+        DcError::WorkBound { limit } => format!(
+            "the analysis of {} stopped at its bound of {limit} DC solves; its frequency and duty are not fully checked",
+            cx.name(setup.device)
+        ),
+        _ => format!(
             "the timing network of {} could not be solved ({e}); its frequency and duty are not checked",
             cx.name(setup.device)
         ),
-    );
+    };
+    let mut f = Finding::new("solve-failed", Severity::Warning, span, message);
     if let Some(e) = element {
         f = f.with_element(e.name.clone(), e.instance_path());
     }

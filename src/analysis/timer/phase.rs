@@ -14,7 +14,7 @@
 //! A phase whose current reaches zero before its end voltage never finishes: it is stuck.
 
 use super::config::{self, NetIndex, Setup};
-use crate::analysis::dc::{self, DcError};
+use crate::analysis::dc::DcError;
 use crate::analysis::stand_in;
 use crate::analysis::states::{Context, State};
 use crate::circuit::{DeviceId, Kind, PinRole};
@@ -142,7 +142,7 @@ pub fn held_current(
     };
     let ground = built.network.ground();
     let hold = built.network.add_voltage_source(node, ground, volts);
-    let op = dc::solve(&built.network, &cx.options)?;
+    let op = cx.solve_network(&built.network)?;
     // A source's current is the current into its positive terminal: what the network pushes
     // into the node.
     Ok(op.current(hold))
@@ -245,8 +245,8 @@ fn stuck(cx: &Context<'_>, phase: &Phase<'_>) -> Result<Option<Stuck>, DcError> 
     let Some(node) = built.node(net) else {
         return Ok(None);
     };
-    let th = dc::thevenin(&built.network, node, &cx.options)?;
-    let solved = built.solve(&cx.options)?;
+    let th = cx.thevenin(&built.network, node)?;
+    let solved = built.solve_in(cx)?;
     let charging = phase.v_end >= phase.v_start;
     let data = &cx.circuit.devices[setup.device].data;
     // The bias current that acts in this phase, and what the network would reach without it.
