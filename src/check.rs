@@ -106,6 +106,7 @@ fn report_file_unguarded(path: &Path, options: &CheckOptions) -> Result<FileFact
     let mut sources = SourceMap::new();
     let keep = |name: &str| parts::keeps_whole(name, &config);
     let (netlist, mut findings) = netlist::load(path, &mut sources, &options.limits, &keep)?;
+    fault::inject(path);
     let (circuit, circuit_findings) = Circuit::build(&netlist, &config);
     findings.extend(circuit_findings);
     let (analysis, analysis_findings) = analysis::analyze(&netlist, &circuit, &config);

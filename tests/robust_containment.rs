@@ -227,7 +227,7 @@ fn a_linked_netlist_found_in_a_folder_must_stay_inside_it() {
     )
     .unwrap();
     let output = kickback()
-        .args(["check", "--format", "short"])
+        .args(["check", "--color", "never"])
         .arg(layout.tree.path())
         .output()
         .unwrap();
@@ -253,13 +253,22 @@ fn a_linked_netlist_found_in_a_folder_must_stay_inside_it() {
 }
 
 #[test]
-fn a_committed_config_link_to_a_device_does_not_hang_or_fill_memory() {
+fn a_committed_config_link_to_a_device_or_a_huge_config_does_not_hang_or_fill_memory() {
     let layout = Layout::new();
-    std::os::unix::fs::symlink("/dev/zero", layout.tree.path().join("kickback.toml")).unwrap();
+    let config = layout.tree.path().join("kickback.toml");
+    std::os::unix::fs::symlink("/dev/zero", &config).unwrap();
     let top = layout.top("* no include");
+    // Not a file, so not a configuration: looked past, never opened.
+    kickback().arg("check").arg(&top).assert().code(0);
+    fs::remove_file(&config).unwrap();
+    fs::write(&config, format!("# {}\n", "x".repeat(2 * 1024 * 1024))).unwrap();
     let output = kickback().arg("check").arg(&top).output().unwrap();
     assert_eq!(output.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&output.stderr).contains("not a file"));
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert!(
+        stderr.contains("larger than the limit of 1048576 bytes"),
+        "{stderr}"
+    );
 }
 
 #[test]

@@ -64,6 +64,14 @@ fn walk(
                 // Symlinked netlists count; the walk itself does not follow linked folders.
                 let is_file = entry.file_type().is_some_and(|t| t.is_file())
                     || (entry.path_is_symlink() && path.is_file());
+                if !is_file && entry.path_is_symlink() && is_netlist(path) {
+                    // A link to nothing is a netlist that cannot be read, not one to skip.
+                    if let Err(e) = std::fs::metadata(path) {
+                        failures.push((tidy(path), e.to_string()));
+                        found = true;
+                    }
+                    continue;
+                }
                 if is_file && is_netlist(path) {
                     found = true;
                     let inside = |root: &PathBuf| {
