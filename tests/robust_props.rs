@@ -233,7 +233,7 @@ fn overflow_is_a_finding_at_the_value() {
         let located = sources.locate(finding.span);
         assert_eq!(located.line, 3, "{value}");
         let start = deck.find("R1").unwrap() + "R1 a 0 ".len();
-        assert_eq!(finding.span.start, start, "{value}: the value's own span");
+        assert_eq!(finding.span.start as usize, start, "{value}: the value's own span");
         let r1 = flat.elements.iter().find(|e| e.name == "R1");
         assert!(
             r1.is_none_or(|e| e.value.is_none_or(|v| v.known().is_none_or(f64::is_finite))),
@@ -242,20 +242,34 @@ fn overflow_is_a_finding_at_the_value() {
     }
 }
 
-/// A DC solve that cannot converge ends with a `solve-failed` finding, not a hang.
+/// A DC solve that has no answer ends with a `solve-failed` finding at the switch, not a hang;
+/// one whose Newton steps swing wildly (diodes of tiny emission coefficient against a kiloamp
+/// source) ends too.
 #[test]
-fn a_pathological_dc_deck_ends() {
-    // Two opposed diode strings across stiff sources with a tiny resistor between: the
-    // Newton steps swing by many volts and the exponentials saturate.
-    let mut deck = String::from("Pathological\n.model dx D (IS=1e-30 N=0.01)\n");
-    deck.push_str("V1 a 0 1e6\nV2 b 0 -1e6\nR1 a c 1e-9\nR2 b d 1e-9\n");
+fn pathological_dc_decks_end() {
+    let singular = "Pathological\n.model nch NMOS (VTO=2 KP=0.1)\nVcc vcc 0 12\nLm vcc d 1m\n\
+                    M1 d g 0 0 nch\nVg g 0 PULSE(0 10 0 1n 1n 5u 10u)\nV2 d x 1\nV3 d x 2\n.end\n";
+    let mut stiff = String::from(
+        "Stiff\n.model nch NMOS (VTO=2 KP=0.1)\n.model dx D (IS=1e-30 N=0.01)\nVcc vcc 0 12\n\
+         Lm vcc d 1m\nM1 d g 0 0 nch\nVg g 0 PULSE(0 10 0 1n 1n 5u 10u)\nI1 0 d 1e6\n",
+    );
     for i in 0..40 {
-        deck.push_str(&format!("D{i} c d dx\nDR{i} d c dx\n"));
+        stiff.push_str(&format!("D{i} d 0 dx\nDR{i} 0 d dx\n"));
     }
-    deck.push_str("M1 c d 0 0 nch\n.model nch NMOS (VTO=1e9 KP=1e30)\n.end\n");
-    let started = std::time::Instant::now();
-    let report = check_str("p.cir", &deck, &Config::default(), &CheckOptions::default());
-    assert!(started.elapsed().as_secs() < 60);
-    assert!(report.failure.is_none(), "{:?}", report.failure);
-    render_all(report);
+    for (deck, must_fail) in [(singular.to_string(), true), (stiff, false)] {
+        let started = std::time::Instant::now();
+        let report = check_str("p.cir", &deck, &Config::default(), &CheckOptions::default());
+        assert!(started.elapsed().as_secs() < 60);
+        assert!(report.failure.is_none(), "{:?}", report.failure);
+        if must_fail {
+            let failed = report
+                .findings
+                .iter()
+                .find(|f| f.rule == "solve-failed")
+                .unwrap_or_else(|| panic!("{:#?}", report.findings));
+            assert_eq!(report.sources.locate(failed.span).line, 5, "at M1");
+            assert!(failed.message.contains("no unique DC solution"), "{}", failed.message);
+        }
+        render_all(report);
+    }
 }
