@@ -270,7 +270,11 @@ impl<'s> Loader<'s> {
         let raw = text.get(tok.start as usize..tok.end as usize)?;
         match tok.kind {
             TokKind::Str | TokKind::Quote if raw.len() >= 2 => {
-                Some(raw[1..raw.len() - 1].to_string())
+                // The opening quote is one byte; a string left open at the end of the line has
+                // no closing one, and its last character may be wider than a byte.
+                let inner = raw.get(1..).unwrap_or("");
+                let inner = inner.strip_suffix(['"', '\'']).unwrap_or(inner);
+                Some(inner.to_string())
             }
             TokKind::Word
                 if n == 1
