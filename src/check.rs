@@ -8,6 +8,7 @@ use crate::diagnostic::Finding;
 use crate::netlist::{self, FlatNetlist, Limits, LoadError};
 use crate::rules::{self, RuleContext};
 use crate::source::SourceMap;
+use std::panic::{self, AssertUnwindSafe};
 use std::path::{Path, PathBuf};
 
 #[derive(Clone, Debug, Default)]
@@ -24,6 +25,9 @@ pub enum CheckError {
     Load(#[from] LoadError),
     #[error(transparent)]
     Config(#[from] ConfigError),
+    /// A bug: some stage panicked on this file. The other files are still checked.
+    #[error("internal error while checking {}: {message}; please report it with the netlist", path.display())]
+    Internal { path: PathBuf, message: String },
 }
 
 /// The outcome for one file.
@@ -85,11 +89,24 @@ pub struct FileFacts {
 }
 
 /// Loads, builds and analyses one netlist without running the rules (`kickback report`).
+/// A panic becomes [`CheckError::Internal`], as in [`check_file`].
 pub fn report_file(path: &Path, options: &CheckOptions) -> Result<FileFacts, CheckError> {
+    panic::catch_unwind(AssertUnwindSafe(|| report_file_unguarded(path, options))).unwrap_or_else(
+        |payload| {
+            Err(CheckError::Internal {
+                path: path.to_path_buf(),
+                message: panic_message(payload.as_ref()),
+            })
+        },
+    )
+}
+
+fn report_file_unguarded(path: &Path, options: &CheckOptions) -> Result<FileFacts, CheckError> {
     let config = load_config(path, options)?;
     let mut sources = SourceMap::new();
     let keep = |name: &str| parts::keeps_whole(name, &config);
     let (netlist, mut findings) = netlist::load(path, &mut sources, &options.limits, &keep)?;
+    fault::inject(path);
     let (circuit, circuit_findings) = Circuit::build(&netlist, &config);
     findings.extend(circuit_findings);
     let (analysis, analysis_findings) = analysis::analyze(&netlist, &circuit, &config);
@@ -103,14 +120,42 @@ pub fn report_file(path: &Path, options: &CheckOptions) -> Result<FileFacts, Che
     })
 }
 
+/// Checks one netlist file. A panic anywhere in its pipeline becomes an internal-error
+/// failure of this file alone, so a bug met on one netlist never hides the other files' findings.
 pub fn check_file(path: &Path, options: &CheckOptions) -> FileReport {
-    let mut report = FileReport {
+    guarded(path, || check_file_unguarded(path, options))
+}
+
+/// Checks netlist text that is not in a file (includes are not read, and are reported as
+/// missing), with `config` as its configuration. For tools and fuzzing; guarded like
+/// [`check_file`].
+pub fn check_str(name: &str, text: &str, config: &Config, options: &CheckOptions) -> FileReport {
+    let path = Path::new(name);
+    guarded(path, || {
+        let mut report = empty_report(path);
+        let keep = |part: &str| parts::keeps_whole(part, config);
+        match netlist::parse_text(name, text, &mut report.sources, &options.limits, &keep) {
+            Ok((flat, findings)) => finish(report, &flat, findings, config),
+            Err(e) => {
+                report.failure = Some(e.into());
+                report
+            }
+        }
+    })
+}
+
+fn empty_report(path: &Path) -> FileReport {
+    FileReport {
         path: path.to_path_buf(),
         sources: SourceMap::new(),
         findings: Vec::new(),
         suppressed: 0,
         failure: None,
-    };
+    }
+}
+
+fn check_file_unguarded(path: &Path, options: &CheckOptions) -> FileReport {
+    let mut report = empty_report(path);
     let config = match load_config(path, options) {
         Ok(c) => c,
         Err(e) => {
@@ -119,26 +164,36 @@ pub fn check_file(path: &Path, options: &CheckOptions) -> FileReport {
         }
     };
     let keep = |name: &str| parts::keeps_whole(name, &config);
-    let (flat, mut findings) =
-        match netlist::load(path, &mut report.sources, &options.limits, &keep) {
-            Ok(x) => x,
-            Err(e) => {
-                report.failure = Some(e.into());
-                return report;
-            }
-        };
-    let (circuit, circuit_findings) = Circuit::build(&flat, &config);
+    let (flat, findings) = match netlist::load(path, &mut report.sources, &options.limits, &keep) {
+        Ok(x) => x,
+        Err(e) => {
+            report.failure = Some(e.into());
+            return report;
+        }
+    };
+    finish(report, &flat, findings, &config)
+}
+
+/// Circuit, analysis, rules and suppressions on a loaded netlist.
+fn finish(
+    mut report: FileReport,
+    flat: &FlatNetlist,
+    mut findings: Vec<Finding>,
+    config: &Config,
+) -> FileReport {
+    fault::inject(&report.path);
+    let (circuit, circuit_findings) = Circuit::build(flat, config);
     findings.extend(circuit_findings);
-    let (facts, analysis_findings) = analysis::analyze(&flat, &circuit, &config);
+    let (facts, analysis_findings) = analysis::analyze(flat, &circuit, config);
     findings.extend(analysis_findings);
     let cx = RuleContext {
-        netlist: &flat,
+        netlist: flat,
         circuit: &circuit,
         analysis: &facts,
-        config: &config,
+        config,
     };
     findings.extend(rules::run(&cx));
-    let outcome = rules::suppress::apply(findings, &flat, &report.sources, &config);
+    let outcome = rules::suppress::apply(findings, flat, &report.sources, config);
     let sources = &report.sources;
     let mut findings = outcome.findings;
     findings.sort_by_cached_key(|f| (sources.locate(f.span), f.rule.clone(), f.message.clone()));
@@ -146,4 +201,71 @@ pub fn check_file(path: &Path, options: &CheckOptions) -> FileReport {
     report.findings = findings;
     report.suppressed = outcome.suppressed;
     report
+}
+
+/// Runs `work` for the file at `path`; a panic becomes [`CheckError::Internal`].
+fn guarded(path: &Path, work: impl FnOnce() -> FileReport) -> FileReport {
+    match panic::catch_unwind(AssertUnwindSafe(work)) {
+        Ok(report) => report,
+        Err(payload) => {
+            let mut report = empty_report(path);
+            report.failure = Some(CheckError::Internal {
+                path: path.to_path_buf(),
+                message: panic_message(payload.as_ref()),
+            });
+            report
+        }
+    }
+}
+
+/// The text a panic carried, with where it happened when the panic hook recorded it.
+pub fn panic_message(payload: &(dyn std::any::Any + Send)) -> String {
+    let text = payload
+        .downcast_ref::<&str>()
+        .map(|s| s.to_string())
+        .or_else(|| payload.downcast_ref::<String>().cloned())
+        .unwrap_or_else(|| "a panic with no message".to_string());
+    match last_panic_location() {
+        Some(place) => format!("{text} (at {place})"),
+        None => text,
+    }
+}
+
+thread_local! {
+    static PANIC_LOCATION: std::cell::RefCell<Option<String>> = const { std::cell::RefCell::new(None) };
+}
+
+/// For a panic hook: remembers where the current thread's panic happened, so that the
+/// internal-error message can say it without the hook printing anything.
+pub fn record_panic_location(info: &panic::PanicHookInfo<'_>) {
+    let place = info
+        .location()
+        .map(|l| format!("{}:{}:{}", l.file(), l.line(), l.column()));
+    PANIC_LOCATION.with(|cell| *cell.borrow_mut() = place);
+}
+
+fn last_panic_location() -> Option<String> {
+    PANIC_LOCATION.with(|cell| cell.borrow_mut().take())
+}
+
+/// A fault that only a program embedding the library can set (the shipped binary never
+/// does), so tests can prove that a panic in the pipeline is contained. Netlist content,
+/// configuration, arguments and the environment cannot reach it.
+#[doc(hidden)]
+pub mod fault {
+    use std::path::Path;
+    use std::sync::OnceLock;
+
+    static PANIC_ON: OnceLock<fn(&Path) -> bool> = OnceLock::new();
+
+    /// Makes the pipeline panic for every file for which `select` is true. Can be set once.
+    pub fn panic_when(select: fn(&Path) -> bool) {
+        let _ = PANIC_ON.set(select);
+    }
+
+    pub(crate) fn inject(path: &Path) {
+        if PANIC_ON.get().is_some_and(|select| select(path)) {
+            panic!("fault injected for {}", path.display());
+        }
+    }
 }

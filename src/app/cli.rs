@@ -38,13 +38,30 @@ pub struct GlobalArgs {
     /// When to colour the human format; `auto` colours a terminal unless NO_COLOR is set.
     #[arg(long, global = true, value_enum, default_value_t = ColorChoice::Auto, value_name = "WHEN")]
     pub color: ColorChoice,
-    /// Refuse netlists that flatten to more elements than this.
+    /// Refuse netlists that flatten to more elements than this [default: 5000000].
     #[arg(long, global = true, value_name = "N")]
     pub max_elements: Option<u64>,
+    /// Refuse netlist and include files larger than this many bytes [default: 268435456].
+    #[arg(long, global = true, value_name = "BYTES", value_parser = clap::value_parser!(u64).range(1..=MAX_OFFSET))]
+    pub max_file_size: Option<u64>,
+    /// Skip, with a finding, any statement whose code (continuation lines joined, comments
+    /// left out) is longer than this many bytes [default: 1048576].
+    #[arg(long, global = true, value_name = "BYTES", value_parser = clap::value_parser!(u64).range(1..=MAX_OFFSET))]
+    pub max_statement_bytes: Option<u64>,
+    /// Nesting of subcircuit definitions, subcircuit instances and includes allowed
+    /// [default: 64].
+    #[arg(long, global = true, value_name = "N", value_parser = clap::value_parser!(u64).range(1..=MAX_DEPTH))]
+    pub max_depth: Option<u64>,
     /// Let .include and .lib read files outside the folder tree of the netlist.
     #[arg(long, global = true)]
     pub allow_outside_includes: bool,
 }
+
+/// Positions in a file are 32-bit, so no file or statement may be longer.
+const MAX_OFFSET: u64 = u32::MAX as u64;
+
+/// Deeper nesting than this is no real design, and the walk over it must stay shallow.
+const MAX_DEPTH: u64 = 256;
 
 #[derive(Debug, Subcommand)]
 pub enum Command {

@@ -18,6 +18,13 @@ pub struct Discovery {
 }
 
 pub fn discover(paths: &[PathBuf]) -> Discovery {
+    discover_with(paths, false)
+}
+
+/// As [`discover`]; `allow_outside` lets a linked netlist found in a folder lead outside it
+/// (`--allow-outside-includes`). Without it such a link is a failure and is never read: a
+/// branch could otherwise commit `board.cir` as a link to a secret and have it printed.
+pub fn discover_with(paths: &[PathBuf], allow_outside: bool) -> Discovery {
     let mut files = BTreeSet::new();
     let mut out = Discovery::default();
     for path in paths {
@@ -25,7 +32,7 @@ pub fn discover(paths: &[PathBuf]) -> Discovery {
         match std::fs::metadata(&path) {
             Err(e) => out.failures.push((path, e.to_string())),
             Ok(meta) if meta.is_dir() => {
-                if !walk(&path, &mut files, &mut out.failures) {
+                if !walk(&path, allow_outside, &mut files, &mut out.failures) {
                     out.empty_folders.push(path);
                 }
             }
@@ -41,8 +48,14 @@ pub fn discover(paths: &[PathBuf]) -> Discovery {
 }
 
 /// Adds the netlists under `root`; false when there were none.
-fn walk(root: &Path, files: &mut BTreeSet<PathBuf>, failures: &mut Vec<(PathBuf, String)>) -> bool {
+fn walk(
+    root: &Path,
+    allow_outside: bool,
+    files: &mut BTreeSet<PathBuf>,
+    failures: &mut Vec<(PathBuf, String)>,
+) -> bool {
     let mut found = false;
+    let canonical_root = std::fs::canonicalize(root).ok();
     let walker = ignore::WalkBuilder::new(root).require_git(false).build();
     for entry in walker {
         match entry {
@@ -51,9 +64,32 @@ fn walk(root: &Path, files: &mut BTreeSet<PathBuf>, failures: &mut Vec<(PathBuf,
                 // Symlinked netlists count; the walk itself does not follow linked folders.
                 let is_file = entry.file_type().is_some_and(|t| t.is_file())
                     || (entry.path_is_symlink() && path.is_file());
+                if !is_file && entry.path_is_symlink() && is_netlist(path) {
+                    // A link to nothing is a netlist that cannot be read, not one to skip.
+                    if let Err(e) = std::fs::metadata(path) {
+                        failures.push((tidy(path), e.to_string()));
+                        found = true;
+                    }
+                    continue;
+                }
                 if is_file && is_netlist(path) {
-                    files.insert(tidy(path));
                     found = true;
+                    let inside = |root: &PathBuf| {
+                        std::fs::canonicalize(path).is_ok_and(|target| target.starts_with(root))
+                    };
+                    if entry.path_is_symlink()
+                        && !allow_outside
+                        && !canonical_root.as_ref().is_some_and(inside)
+                    {
+                        failures.push((
+                            tidy(path),
+                            "it links to a file outside the folder being checked and is not \
+                             read (--allow-outside-includes reads it)"
+                                .to_string(),
+                        ));
+                        continue;
+                    }
+                    files.insert(tidy(path));
                 }
             }
             Err(e) => failures.push((root.to_path_buf(), e.to_string())),

@@ -30,15 +30,34 @@ pub const EXIT_FAILURE: u8 = 2;
 
 /// The program, on the process's own arguments, streams and environment.
 pub fn main() -> u8 {
+    install_quiet_panic_hook();
     let env = Environment::from_process();
     let stdout = io::stdout();
     let stderr = io::stderr();
-    run(
-        std::env::args_os(),
-        &env,
-        &mut stdout.lock(),
-        &mut stderr.lock(),
-    )
+    let outcome = std::panic::catch_unwind(|| {
+        run(
+            std::env::args_os(),
+            &env,
+            &mut stdout.lock(),
+            &mut stderr.lock(),
+        )
+    });
+    outcome.unwrap_or_else(|payload| {
+        // Per-file work has its own guard; this catches a fault outside it (a renderer).
+        let message = crate::check::panic_message(payload.as_ref());
+        let _ = writeln!(
+            stderr.lock(),
+            "error: internal error: {message}; please report it with the netlist"
+        );
+        EXIT_FAILURE
+    })
+}
+
+/// Replaces Rust's panic report (message and backtrace on stderr) with nothing: every panic is
+/// caught and reported as an internal error by the code that catches it, which names the file.
+/// The hook only remembers where the panic happened, for that message.
+pub fn install_quiet_panic_hook() {
+    std::panic::set_hook(Box::new(crate::check::record_panic_location));
 }
 
 /// The program on given arguments (the first is the program name), environment and streams.
@@ -106,7 +125,7 @@ fn check(
             return EXIT_FAILURE;
         }
     }
-    let found = discover::discover(paths);
+    let found = discover::discover_with(paths, global.allow_outside_includes);
     if !global.quiet {
         for folder in &found.empty_folders {
             console.note(&format!(
@@ -192,8 +211,7 @@ fn unreadable((path, reason): (PathBuf, String)) -> FileReport {
 /// A `--config` file that cannot be read or used stops the run before any netlist is read,
 /// with one message instead of one per netlist.
 fn preflight_config(path: &Path) -> Result<(), String> {
-    std::fs::read_to_string(path)
-        .map_err(|e| format!("cannot read config {}: {e}", path.display()))?;
+    std::fs::metadata(path).map_err(|e| format!("cannot read config {}: {e}", path.display()))?;
     Config::load(path).map(|_| ()).map_err(|e| e.to_string())
 }
 
@@ -202,8 +220,15 @@ fn check_options(global: &GlobalArgs) -> CheckOptions {
     CheckOptions {
         limits: Limits {
             max_elements: global.max_elements.unwrap_or(defaults.max_elements),
+            max_depth: global
+                .max_depth
+                .and_then(|d| usize::try_from(d).ok())
+                .unwrap_or(defaults.max_depth),
+            max_file_bytes: global.max_file_size.unwrap_or(defaults.max_file_bytes),
+            max_statement_bytes: global
+                .max_statement_bytes
+                .unwrap_or(defaults.max_statement_bytes),
             allow_outside_includes: global.allow_outside_includes,
-            ..defaults
         },
         config_path: global.config.clone(),
     }

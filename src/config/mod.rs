@@ -86,15 +86,39 @@ pub struct ConfigError {
     pub message: String,
 }
 
+/// The largest configuration file read; real ones are a few kilobytes.
+pub const MAX_CONFIG_BYTES: u64 = 1024 * 1024;
+
+fn read_bounded(path: &Path) -> Result<String, String> {
+    use std::io::Read;
+    let meta = std::fs::metadata(path).map_err(|e| e.to_string())?;
+    if !meta.is_file() {
+        return Err("not a file".into());
+    }
+    let file = std::fs::File::open(path).map_err(|e| e.to_string())?;
+    let mut bytes = Vec::new();
+    file.take(MAX_CONFIG_BYTES + 1)
+        .read_to_end(&mut bytes)
+        .map_err(|e| e.to_string())?;
+    if bytes.len() as u64 > MAX_CONFIG_BYTES {
+        return Err(format!(
+            "it is larger than the limit of {MAX_CONFIG_BYTES} bytes for a configuration file"
+        ));
+    }
+    String::from_utf8(bytes).map_err(|_| "it is not UTF-8 text".to_string())
+}
+
 impl Config {
     /// Reads and validates a config file.
+    /// Only a regular file of at most [`MAX_CONFIG_BYTES`] is read: a `kickback.toml` committed
+    /// as a link to a device or a FIFO must not hang or fill memory.
     pub fn load(path: &Path) -> Result<Config, ConfigError> {
-        let text = std::fs::read_to_string(path).map_err(|e| ConfigError {
+        let text = read_bounded(path).map_err(|message| ConfigError {
             path: path.to_path_buf(),
             line: 1,
             column: 1,
             key: None,
-            message: format!("cannot read the configuration: {e}"),
+            message: format!("cannot read the configuration: {message}"),
         })?;
         Config::parse(&text, path)
     }

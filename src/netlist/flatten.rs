@@ -141,7 +141,7 @@ impl<'d, 'a> Flattener<'d, 'a> {
 
     fn too_deep(&self, name: &str) -> String {
         format!(
-            "`{name}` nests subcircuit instances more than {} levels deep; it is not expanded",
+            "`{name}` nests subcircuit instances more than {} levels deep (--max-depth); it is not expanded",
             self.limits.max_depth
         )
     }

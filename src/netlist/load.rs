@@ -123,9 +123,40 @@ impl<'s> Loader<'s> {
     }
 
     fn take_lexed(&mut self, mut lexed: Lexed) -> usize {
+        self.skip_long_statements(&mut lexed);
         self.out.findings.append(&mut lexed.findings);
         self.out.files.push(lexed);
         self.out.files.len() - 1
+    }
+
+    /// A statement longer than the limit is reported and then skipped, so that no later stage
+    /// spends time on it; comments do not count, so a long comment line is harmless.
+    fn skip_long_statements(&mut self, lexed: &mut Lexed) {
+        let limit = self.limits.max_statement_bytes;
+        let mut skipped = Vec::new();
+        for (index, stmt) in lexed.stmts.iter().enumerate() {
+            let code: u64 = lexed
+                .segs_of(stmt)
+                .iter()
+                .map(|&(start, end)| u64::from(end.saturating_sub(start)))
+                .sum();
+            if code > limit {
+                skipped.push((index, code, lexed.span(stmt.start, stmt.start)));
+            }
+        }
+        for (index, code, span) in skipped {
+            if let Some(stmt) = lexed.stmts.get_mut(index) {
+                stmt.head = Head::Dot(Dot::Other);
+            }
+            lexed.findings.push(Finding::new(
+                "syntax",
+                Severity::Error,
+                span,
+                format!(
+                    "this statement is {code} bytes long with its continuation lines, above the statement length limit of {limit} bytes (--max-statement-bytes); it is skipped"
+                ),
+            ));
+        }
     }
 
     fn header_span(&self, def: usize) -> Option<Span> {
@@ -221,7 +252,7 @@ impl<'s> Loader<'s> {
                 Severity::Error,
                 self.stmt_span(at.0 as usize, at.1 as usize),
                 format!(
-                    "subcircuit definitions are nested more than {} levels deep here",
+                    "subcircuit definitions are nested more than {} levels deep here (--max-depth)",
                     self.limits.max_depth
                 ),
             ));
@@ -239,7 +270,11 @@ impl<'s> Loader<'s> {
         let raw = text.get(tok.start as usize..tok.end as usize)?;
         match tok.kind {
             TokKind::Str | TokKind::Quote if raw.len() >= 2 => {
-                Some(raw[1..raw.len() - 1].to_string())
+                // The opening quote is one byte; a string left open at the end of the line has
+                // no closing one, and its last character may be wider than a byte.
+                let inner = raw.get(1..).unwrap_or("");
+                let inner = inner.strip_suffix(['"', '\'']).unwrap_or(inner);
+                Some(inner.to_string())
             }
             TokKind::Word
                 if n == 1
@@ -283,7 +318,7 @@ impl<'s> Loader<'s> {
             self.refuse(
                 span,
                 format!(
-                    "`{shown}` is not read: includes are nested more than {} levels deep",
+                    "`{shown}` is not read: includes are nested more than {} levels deep (--max-depth)",
                     self.limits.max_depth
                 ),
             );
@@ -298,7 +333,7 @@ impl<'s> Loader<'s> {
         let candidate = normalize(&from_dir.join(&portable));
         let allow = self.limits.allow_outside_includes;
         if !allow && !candidate.starts_with(&root) {
-            self.refuse(span, format!("`{shown}` is outside the netlist's folder tree and is not read (allow outside includes to read it)"));
+            self.refuse(span, format!("`{shown}` is outside the netlist's folder tree and is not read (--allow-outside-includes reads it)"));
             return;
         }
         let canonical = match std::fs::canonicalize(&candidate) {
@@ -309,7 +344,7 @@ impl<'s> Loader<'s> {
             }
         };
         if !allow && !canonical.starts_with(&root) {
-            self.refuse(span, format!("`{shown}` leads outside the netlist's folder tree (through a link) and is not read (allow outside includes to read it)"));
+            self.refuse(span, format!("`{shown}` leads outside the netlist's folder tree (through a link) and is not read (--allow-outside-includes reads it)"));
             return;
         }
         let file = match self.by_path.get(&canonical) {
@@ -376,18 +411,31 @@ impl<'s> Loader<'s> {
             self.refuse(
                 span,
                 format!(
-                    "`{shown}` is {size} bytes, above the file size limit of {} bytes, and is not read",
+                    "`{shown}` is {size} bytes, above the file size limit of {} bytes (--max-file-size), and is not read",
                     self.limits.max_file_bytes
                 ),
             );
             return None;
         }
-        let Ok(bytes) = std::fs::read(canonical) else {
-            self.out.missing.push(MissingInclude {
-                path: shown.to_string(),
-                span,
-            });
-            return None;
+        let bytes = match super::read_limited(canonical, self.limits.max_file_bytes) {
+            Ok(Some(bytes)) => bytes,
+            Ok(None) => {
+                self.refuse(
+                    span,
+                    format!(
+                        "`{shown}` is above the file size limit of {} bytes (--max-file-size) and is not read",
+                        self.limits.max_file_bytes
+                    ),
+                );
+                return None;
+            }
+            Err(_) => {
+                self.out.missing.push(MissingInclude {
+                    path: shown.to_string(),
+                    span,
+                });
+                return None;
+            }
         };
         let name = display_name(&self.info[from].name, portable);
         let text = decode(bytes);

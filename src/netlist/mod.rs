@@ -42,10 +42,13 @@ use std::path::{Path, PathBuf};
 pub struct Limits {
     /// Flattened elements at most (`--max-elements`).
     pub max_elements: u64,
-    /// Subcircuit and include nesting depth at most.
+    /// Subcircuit and include nesting depth at most (`--max-depth`).
     pub max_depth: usize,
-    /// Bytes per file at most.
+    /// Bytes per file at most (`--max-file-size`).
     pub max_file_bytes: u64,
+    /// Bytes of code in one logical statement (continuation lines joined, comments left out)
+    /// at most (`--max-statement-bytes`).
+    pub max_statement_bytes: u64,
     /// Allow `.include`/`.lib` to read outside the top netlist's folder tree.
     pub allow_outside_includes: bool,
 }
@@ -56,6 +59,7 @@ impl Default for Limits {
             max_elements: 5_000_000,
             max_depth: 64,
             max_file_bytes: 256 * 1024 * 1024,
+            max_statement_bytes: 1024 * 1024,
             allow_outside_includes: false,
         }
     }
@@ -66,7 +70,9 @@ impl Default for Limits {
 pub enum LoadError {
     #[error("cannot read {path}: {reason}")]
     Unreadable { path: PathBuf, reason: String },
-    #[error("{path} is {size} bytes, above the file size limit of {limit} bytes")]
+    #[error(
+        "{path} is {size} bytes, above the file size limit of {limit} bytes (--max-file-size)"
+    )]
     TooLarge {
         path: PathBuf,
         size: u64,
@@ -78,6 +84,20 @@ pub enum LoadError {
         limit: u64,
         chain: String,
     },
+}
+
+/// Reads a regular file of at most `limit` bytes (`None` when it is longer), so that a file
+/// that grows or is swapped after its size was looked at still cannot take more memory.
+fn read_limited(path: &Path, limit: u64) -> std::io::Result<Option<Vec<u8>>> {
+    use std::io::Read;
+    let file = std::fs::File::open(path)?;
+    let meta = file.metadata()?;
+    if !meta.is_file() {
+        return Err(std::io::Error::other("not a file"));
+    }
+    let mut bytes = Vec::with_capacity(meta.len().min(limit) as usize);
+    file.take(limit.saturating_add(1)).read_to_end(&mut bytes)?;
+    Ok((bytes.len() as u64 <= limit).then_some(bytes))
 }
 
 /// Decides whether a subcircuit (by name) is one device and must not be expanded.
@@ -110,7 +130,13 @@ pub fn load(
             limit: limits.max_file_bytes,
         });
     }
-    let bytes = std::fs::read(path).map_err(unreadable)?;
+    let bytes = read_limited(path, limits.max_file_bytes)
+        .map_err(unreadable)?
+        .ok_or_else(|| LoadError::TooLarge {
+            path: path.to_path_buf(),
+            size: meta.len().max(limits.max_file_bytes.saturating_add(1)),
+            limit: limits.max_file_bytes,
+        })?;
     let canonical = std::fs::canonicalize(path).map_err(unreadable)?;
     let root = canonical
         .parent()
@@ -123,6 +149,48 @@ pub fn load(
     );
     let origin = load::Origin { canonical, root };
     run(sources, id, Some(origin), limits, keep_whole)
+}
+
+/// Parses netlist text without reading any file (includes are recorded as missing), with the
+/// caller's limits and part knowledge; a blown limit is an error as in [`load`].
+pub fn parse_text(
+    name: &str,
+    text: &str,
+    sources: &mut SourceMap,
+    limits: &Limits,
+    keep_whole: KeepWhole<'_>,
+) -> Result<(FlatNetlist, Vec<Finding>), LoadError> {
+    let id = sources.add(PathBuf::from(name), name.to_string(), text.to_string());
+    run(sources, id, None, limits, keep_whole)
+}
+
+/// Evaluates one value as it may stand on an element line or in `.param` — a number with its
+/// scale suffix or an expression, braces optional — with no parameters or `.func`s defined.
+/// Errors come back as the message a `parameter-invalid` or `syntax` finding would carry.
+pub fn evaluate_value(text: &str) -> Result<Num, String> {
+    struct NoParams;
+    impl expr::Env for NoParams {
+        fn param(&self, _: &str, _: usize) -> Option<Result<Num, expr::ExprError>> {
+            None
+        }
+        fn function(&self, _: &str) -> Option<expr::UserFunc<'_>> {
+            None
+        }
+    }
+    let inner = text
+        .trim()
+        .strip_prefix('{')
+        .and_then(|t| t.strip_suffix('}'))
+        .unwrap_or(text);
+    let result = match value::parse_number(inner.trim()) {
+        Some(Ok(v)) => Ok(Num::Known(v)),
+        Some(Err(value::Overflow)) => return Err(format!("`{inner}` is too large to represent")),
+        None => expr::eval(inner, &NoParams, expr::Mode::Param, 0),
+    };
+    result.map_err(|e| match e {
+        expr::ExprError::Syntax(m) | expr::ExprError::Invalid(m) => m,
+        expr::ExprError::Reported => "a value it depends on failed".to_string(),
+    })
 }
 
 /// Parses netlist text without reading any file (includes are recorded as missing).

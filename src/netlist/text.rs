@@ -4,17 +4,59 @@ use std::borrow::Cow;
 use std::collections::HashMap;
 use std::hash::{Hash, Hasher};
 
-/// Decodes a netlist file: a UTF-8 byte-order mark is dropped; text that is not UTF-8 is read
-/// byte-for-char (Latin-1), so the legacy 8-bit micro sign 0xB5 becomes `µ`.
+/// Decodes a netlist file: a UTF-8 byte-order mark is dropped; a UTF-16 one (some Windows
+/// simulators save netlists so) selects UTF-16; text that is not UTF-8 is read byte-for-char
+/// (Latin-1), so the legacy 8-bit micro sign 0xB5 becomes `µ`.
+/// A lone carriage return (old Mac line ends) ends a line as a line feed does; it is replaced
+/// byte for byte, so every position stays where it was.
 pub fn decode(bytes: Vec<u8>) -> String {
-    let body = match bytes.strip_prefix(&[0xEF, 0xBB, 0xBF]) {
-        Some(rest) => rest.to_vec(),
-        None => bytes,
+    let text = if let Some(text) = decode_utf16(&bytes) {
+        text
+    } else {
+        let body = match bytes.strip_prefix(&[0xEF, 0xBB, 0xBF]) {
+            Some(rest) => rest.to_vec(),
+            None => bytes,
+        };
+        match String::from_utf8(body) {
+            Ok(text) => text,
+            Err(err) => err.into_bytes().iter().map(|&b| char::from(b)).collect(),
+        }
     };
-    match String::from_utf8(body) {
-        Ok(text) => text,
-        Err(err) => err.into_bytes().iter().map(|&b| char::from(b)).collect(),
+    lone_returns_to_line_feeds(text)
+}
+
+fn lone_returns_to_line_feeds(text: String) -> String {
+    if !text.contains('\r') {
+        return text;
     }
+    let mut bytes = text.into_bytes();
+    for i in 0..bytes.len() {
+        if bytes[i] == b'\r' && bytes.get(i + 1) != Some(&b'\n') {
+            bytes[i] = b'\n';
+        }
+    }
+    // Only ASCII bytes were swapped for ASCII bytes, so the text is still UTF-8.
+    String::from_utf8(bytes).unwrap_or_default()
+}
+
+/// Text after a UTF-16 byte-order mark, little- or big-endian; a broken pair becomes U+FFFD
+/// and an odd last byte is dropped.
+fn decode_utf16(bytes: &[u8]) -> Option<String> {
+    let (little, body) = match bytes {
+        [0xFF, 0xFE, rest @ ..] => (true, rest),
+        [0xFE, 0xFF, rest @ ..] => (false, rest),
+        _ => return None,
+    };
+    let units = body.chunks_exact(2).map(|pair| match pair {
+        [a, b] if little => u16::from_le_bytes([*a, *b]),
+        [a, b] => u16::from_be_bytes([*a, *b]),
+        _ => 0xFFFD,
+    });
+    Some(
+        char::decode_utf16(units)
+            .map(|c| c.unwrap_or(char::REPLACEMENT_CHARACTER))
+            .collect(),
+    )
 }
 
 /// A name compared and hashed without regard to ASCII case (SPICE names are case-insensitive).
