@@ -9,6 +9,7 @@ use crate::netlist::{FlatElement, Model, Num};
 use std::collections::HashMap;
 
 /// What part knowledge says about one element.
+#[derive(Clone)]
 pub(crate) struct Resolved {
     pub kind: Kind,
     pub roles: Vec<PinRole>,
@@ -25,6 +26,92 @@ pub(crate) struct PartSources<'a> {
     /// Lower-case model or subcircuit name → indices of matching `[parts]` entries, exact names
     /// first, then globs in file order.
     matches: HashMap<String, Vec<usize>>,
+    /// What was resolved for elements that look alike to part knowledge (see [`Likeness`]),
+    /// by the likeness's hash: a board repeats a few parts many times over.
+    shared: HashMap<u64, Vec<(Likeness, Resolved)>>,
+    shared_count: usize,
+    /// The last element with an entry of its own in `[elements]` (never shared).
+    own: Option<Resolved>,
+}
+
+/// Distinct likenesses kept at most; past that, elements are resolved one by one.
+const SHARED_MAX: usize = 1 << 16;
+
+/// Everything of an element that part knowledge reads, apart from its path (which only
+/// `[elements."PATH"]` entries read, and elements with one are never shared).
+#[derive(PartialEq)]
+struct Likeness {
+    letter: char,
+    model: Option<String>,
+    model_index: Option<usize>,
+    subckt: Option<(String, Vec<String>)>,
+    nodes: usize,
+    value: Option<u64>,
+    params: Vec<(String, Option<u64>)>,
+}
+
+fn known_bits(num: Num) -> Option<u64> {
+    num.known().map(f64::to_bits)
+}
+
+impl Likeness {
+    fn of(element: &FlatElement) -> Likeness {
+        Likeness {
+            letter: element.letter,
+            model: element.model.clone(),
+            model_index: element.model_index,
+            subckt: element
+                .subckt
+                .as_ref()
+                .map(|k| (k.name.clone(), k.ports.clone())),
+            nodes: element.nodes.len(),
+            value: element.value.and_then(known_bits),
+            params: element
+                .params
+                .iter()
+                .map(|(k, v)| (k.clone(), known_bits(*v)))
+                .collect(),
+        }
+    }
+
+    fn matches(&self, element: &FlatElement) -> bool {
+        let subckt_matches = match (&self.subckt, &element.subckt) {
+            (None, None) => true,
+            (Some((name, ports)), Some(k)) => *name == k.name && *ports == k.ports,
+            _ => false,
+        };
+        self.letter == element.letter
+            && self.model == element.model
+            && self.model_index == element.model_index
+            && subckt_matches
+            && self.nodes == element.nodes.len()
+            && self.value == element.value.and_then(known_bits)
+            && self.params.len() == element.params.len()
+            && self
+                .params
+                .iter()
+                .zip(&element.params)
+                .all(|((k, v), (ek, ev))| k == ek && *v == known_bits(*ev))
+    }
+
+    fn hash(element: &FlatElement) -> u64 {
+        use std::hash::{Hash, Hasher};
+        let mut h = std::collections::hash_map::DefaultHasher::new();
+        element.letter.hash(&mut h);
+        element.model.hash(&mut h);
+        element.model_index.hash(&mut h);
+        if let Some(k) = &element.subckt {
+            k.name.hash(&mut h);
+            k.ports.hash(&mut h);
+        }
+        element.nodes.len().hash(&mut h);
+        element.value.and_then(known_bits).hash(&mut h);
+        for (k, v) in &element.params {
+            k.hash(&mut h);
+            known_bits(*v).hash(&mut h);
+        }
+        h.finish()
+    }
 }
 
 impl<'a> PartSources<'a> {
@@ -39,7 +126,43 @@ impl<'a> PartSources<'a> {
             config,
             elements,
             matches: HashMap::new(),
+            shared: HashMap::new(),
+            shared_count: 0,
+            own: None,
         }
+    }
+
+    /// What part knowledge says about `element`, shared with every element like it.
+    pub fn resolve(&mut self, element: &FlatElement, models: &[Model]) -> &Resolved {
+        if self.element_entry(&element.path).is_some() {
+            let resolved = resolve(element, models, self);
+            return self.own.insert(resolved);
+        }
+        let hash = Likeness::hash(element);
+        let found = self
+            .shared
+            .get(&hash)
+            .and_then(|list| list.iter().position(|(like, _)| like.matches(element)));
+        if found.is_none() && self.shared_count >= SHARED_MAX {
+            let resolved = resolve(element, models, self);
+            return self.own.insert(resolved);
+        }
+        let at = match found {
+            Some(at) => at,
+            None => {
+                let resolved = resolve(element, models, self);
+                self.shared_count += 1;
+                let list = self.shared.entry(hash).or_default();
+                list.push((Likeness::of(element), resolved));
+                list.len() - 1
+            }
+        };
+        let stored = self.shared.get(&hash).is_some_and(|list| at < list.len());
+        if !stored {
+            let resolved = resolve(element, models, self);
+            return self.own.insert(resolved);
+        }
+        &self.shared[&hash][at].1
     }
 
     fn element_entry(&self, path: &str) -> Option<(&'a str, &'a PartConfig)> {
@@ -87,11 +210,7 @@ pub(crate) fn toml_key(name: &str) -> String {
     }
 }
 
-pub(crate) fn resolve(
-    element: &FlatElement,
-    models: &[Model],
-    sources: &mut PartSources<'_>,
-) -> Resolved {
+fn resolve(element: &FlatElement, models: &[Model], sources: &mut PartSources<'_>) -> Resolved {
     let model = element.model_index.and_then(|i| models.get(i));
     let part_name = element
         .subckt

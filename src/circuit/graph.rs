@@ -1,6 +1,6 @@
 //! The petgraph graph of nets and devices, and its indexes. Queries live in `query.rs`.
 
-use super::data::{resolve, toml_key, PartSources};
+use super::data::{toml_key, PartSources};
 use super::{pins, Device, DeviceId, Kind, Net, NetId, Pin, PinRole};
 use crate::config::Config;
 use crate::diagnostic::{Finding, Severity};
@@ -58,7 +58,7 @@ impl Circuit {
         // Most elements bring at most one new net; reserving avoids rehashing as the map grows.
         circuit.net_names.reserve(netlist.elements.len() + 8);
         for (index, element) in netlist.elements.iter().enumerate() {
-            let resolved = resolve(element, &netlist.models, &mut sources);
+            let resolved = sources.resolve(element, &netlist.models);
             if let Some(problem) = &resolved.pin_problem {
                 findings.push(pin_finding(element, resolved.kind, problem));
             }
@@ -78,7 +78,7 @@ impl Circuit {
                 element: index,
                 kind: resolved.kind,
                 pins,
-                data: resolved.data,
+                data: resolved.data.clone(),
             });
         }
         circuit.index_pins();

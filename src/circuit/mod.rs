@@ -7,6 +7,7 @@ pub mod kind;
 pub use kind::{Kind, PinRole};
 
 use std::collections::BTreeMap;
+use std::sync::Arc;
 
 pub type NetId = usize;
 pub type DeviceId = usize;
@@ -34,9 +35,47 @@ pub struct Rated {
 }
 
 /// Ratings and model numbers of one device, by rating name (`vrrm`, `vgs_th_max`, `kp`...).
+/// Devices of one part with the same value and parameters share one table.
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct PartData {
-    pub values: BTreeMap<String, Rated>,
+    pub values: Ratings,
+}
+
+/// A table of ratings shared between devices until one of them changes it (copy on write).
+/// Reads go through `Deref` to the map.
+#[derive(Clone, Default, PartialEq)]
+pub struct Ratings(Arc<BTreeMap<String, Rated>>);
+
+impl std::ops::Deref for Ratings {
+    type Target = BTreeMap<String, Rated>;
+
+    fn deref(&self) -> &Self::Target {
+        &self.0
+    }
+}
+
+impl std::fmt::Debug for Ratings {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        self.0.fmt(f)
+    }
+}
+
+impl Ratings {
+    pub fn insert(&mut self, name: String, rated: Rated) -> Option<Rated> {
+        Arc::make_mut(&mut self.0).insert(name, rated)
+    }
+
+    pub fn get_mut(&mut self, name: &str) -> Option<&mut Rated> {
+        Arc::make_mut(&mut self.0).get_mut(name)
+    }
+
+    pub fn remove(&mut self, name: &str) -> Option<Rated> {
+        Arc::make_mut(&mut self.0).remove(name)
+    }
+
+    pub fn clear(&mut self) {
+        Arc::make_mut(&mut self.0).clear()
+    }
 }
 
 impl PartData {

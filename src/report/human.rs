@@ -1,15 +1,15 @@
 //! `--format human`: miette's graphical report for each finding — the netlist lines with labels,
 //! the rule and severity, the fix, the numbers behind the finding — and a summary line.
 
+use super::source_window::{has_lone_cr, NetlistSource};
 use super::{format_quantity, ordered, Summary};
 use crate::check::FileReport;
 use crate::diagnostic::{Finding, Severity};
 use crate::source::{FileId, SourceMap, Span};
 use miette::{
-    Diagnostic, GraphicalReportHandler, GraphicalTheme, LabeledSpan, MietteError,
-    MietteSpanContents, SourceCode, SourceSpan, SpanContents,
+    Diagnostic, GraphicalReportHandler, GraphicalTheme, LabeledSpan, SourceCode, SourceSpan,
 };
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, HashMap};
 use std::fmt;
 
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -41,14 +41,22 @@ impl Default for HumanOptions {
 /// Every finding of every file in order, then the summary line.
 pub fn render(reports: &[FileReport], options: &HumanOptions) -> String {
     let mut out = String::new();
+    let lone_cr: HashMap<*const FileReport, Vec<bool>> = reports
+        .iter()
+        .map(|r| (r as *const FileReport, lone_cr_files(&r.sources)))
+        .collect();
     for entry in ordered(reports) {
         if entry.finding.severity < options.min_severity {
             continue;
         }
-        out.push_str(&render_finding(
+        let flags = lone_cr
+            .get(&(entry.report as *const FileReport))
+            .map_or(&[][..], Vec::as_slice);
+        out.push_str(&render_finding_with(
             entry.finding,
             &entry.report.sources,
             options,
+            flags,
         ));
         out.push('\n');
     }
@@ -86,6 +94,25 @@ fn paint(code: &str, text: &str) -> String {
 /// One finding: the snippet of the file that holds its primary span (with every label and
 /// instance line in that file), the fix, the numbers, then the lines it involves in other files.
 pub fn render_finding(finding: &Finding, sources: &SourceMap, options: &HumanOptions) -> String {
+    render_finding_with(finding, sources, options, &lone_cr_files(sources))
+}
+
+/// Per file of `sources`: whether it must be read whole (see [`NetlistSource`]).
+fn lone_cr_files(sources: &SourceMap) -> Vec<bool> {
+    sources
+        .files()
+        .map(|(_, file)| has_lone_cr(&file.text))
+        .collect()
+}
+
+/// [`render_finding`] with the files' line-break flags worked out once per run.
+fn render_finding_with(
+    finding: &Finding,
+    sources: &SourceMap,
+    options: &HumanOptions,
+    lone_cr: &[bool],
+) -> String {
+    let lone = |file: FileId| lone_cr.get(file.0 as usize).copied().unwrap_or(true);
     let handler = GraphicalReportHandler::new_themed(theme(options)).with_width(options.width);
     let primary_file = finding.span.file;
     let mut groups: BTreeMap<FileId, Vec<LabeledSpan>> = BTreeMap::new();
@@ -101,10 +128,7 @@ pub fn render_finding(finding: &Finding, sources: &SourceMap, options: &HumanOpt
             None,
             clamp(&file.text, finding.span),
         ));
-        NetlistSource {
-            name: &file.name,
-            text: &file.text,
-        }
+        NetlistSource::new(&file.name, file, lone(primary_file))
     });
     let mut message = finding.message.clone();
     if let Some(chain) = instance_chain(finding, sources, options.unicode) {
@@ -147,10 +171,7 @@ pub fn render_finding(finding: &Finding, sources: &SourceMap, options: &HumanOpt
             severity: miette::Severity::Advice,
             message: format!("related lines in {}", source.name),
             help: None,
-            source: Some(NetlistSource {
-                name: &source.name,
-                text: &source.text,
-            }),
+            source: Some(NetlistSource::new(&source.name, source, lone(file))),
             labels,
         };
         out.push('\n');
@@ -238,34 +259,6 @@ fn clamp(text: &str, span: Span) -> SourceSpan {
     let start = floor(span.start);
     let end = floor(span.end).max(start);
     (start, end - start).into()
-}
-
-/// A netlist's text under its display name, borrowed from the [`SourceMap`].
-#[derive(Debug)]
-struct NetlistSource<'a> {
-    name: &'a str,
-    text: &'a str,
-}
-
-impl SourceCode for NetlistSource<'_> {
-    fn read_span<'b>(
-        &'b self,
-        span: &SourceSpan,
-        context_lines_before: usize,
-        context_lines_after: usize,
-    ) -> Result<Box<dyn SpanContents<'b> + 'b>, MietteError> {
-        let inner = self
-            .text
-            .read_span(span, context_lines_before, context_lines_after)?;
-        Ok(Box::new(MietteSpanContents::new_named(
-            self.name.to_string(),
-            inner.data(),
-            *inner.span(),
-            inner.line(),
-            inner.column(),
-            inner.line_count(),
-        )))
-    }
 }
 
 #[derive(Debug)]

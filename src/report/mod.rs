@@ -9,6 +9,7 @@ pub mod human;
 pub mod json;
 pub mod sarif;
 pub mod short;
+mod source_window;
 
 use crate::check::FileReport;
 use crate::diagnostic::{Finding, Severity};

@@ -20,6 +20,7 @@ use crate::analysis::{LoadFacts, Range, SupplyFacts, SwitchFacts, TimerFacts};
 use crate::circuit::{Device, DeviceId, Kind, NetId, PinRole, Rated};
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::FlatElement;
+use std::collections::HashMap;
 
 /// The flattened element behind a device.
 pub fn element<'a>(cx: &RuleContext<'a>, id: DeviceId) -> Option<&'a FlatElement> {
@@ -112,7 +113,7 @@ pub fn duty_text(range: &Range) -> String {
     }
 }
 pub fn supply_facts<'a>(cx: &RuleContext<'a>, supply: DeviceId) -> Option<&'a SupplyFacts> {
-    cx.analysis.supplies.iter().find(|s| s.device == supply)
+    by_device(&cx.analysis.supplies, supply, |s| s.device)
 }
 /// A supply's corners as a range whose states name the corner (`V12 at min`).
 pub fn supply_range(cx: &RuleContext<'_>, s: &SupplyFacts) -> Range {
@@ -131,13 +132,34 @@ pub fn supply_range(cx: &RuleContext<'_>, s: &SupplyFacts) -> Range {
         }
     }
 }
-/// Pins on each net, built once per rule call.
-pub struct NetIndex {
+/// Pins on each net and the supply source on each rail, found once per rule call so that no
+/// rule walks a rail's pins for every switch on it.
+pub struct NetIndex<'a> {
     offsets: Vec<usize>,
     pins: Vec<(DeviceId, usize)>,
+    /// Rail net → the first grounded voltage source (in device order) holding it, with facts.
+    supplies: HashMap<NetId, &'a SupplyFacts>,
 }
-impl NetIndex {
-    pub fn new(cx: &RuleContext<'_>) -> NetIndex {
+impl<'a> NetIndex<'a> {
+    pub fn new(cx: &RuleContext<'a>) -> NetIndex<'a> {
+        let mut supplies: HashMap<NetId, &'a SupplyFacts> = HashMap::new();
+        for s in &cx.analysis.supplies {
+            let Some(dev) = device(cx, s.device) else {
+                continue;
+            };
+            let grounded = dev.pin(PinRole::Neg).is_some_and(|n| is_ground(cx, n));
+            let Some(pos) = dev.pin(PinRole::Pos) else {
+                continue;
+            };
+            if dev.kind != Kind::VoltageSource || !grounded {
+                continue;
+            }
+            // The first source in device order, and its first facts, as a walk of the pins finds.
+            let slot = supplies.entry(pos).or_insert(s);
+            if s.device < slot.device {
+                *slot = s;
+            }
+        }
         let nets = cx.circuit.nets.len();
         let mut offsets = vec![0usize; nets + 1];
         for device in &cx.circuit.devices {
@@ -162,7 +184,11 @@ impl NetIndex {
                 }
             }
         }
-        NetIndex { offsets, pins }
+        NetIndex {
+            offsets,
+            pins,
+            supplies,
+        }
     }
 
     /// `(device, pin index)` of every pin on `net`.
@@ -175,15 +201,20 @@ impl NetIndex {
 
     /// Two-terminal devices with one pin on `a` and the other on `b`, either way round.
     pub fn between(&self, cx: &RuleContext<'_>, a: NetId, b: NetId) -> Vec<DeviceId> {
+        let (near, far) = if self.on(a).len() <= self.on(b).len() {
+            (a, b)
+        } else {
+            (b, a)
+        };
         let mut found: Vec<DeviceId> = self
-            .on(a)
+            .on(near)
             .iter()
             .map(|&(d, _)| d)
             .filter(|&d| {
                 device(cx, d).is_some_and(|dev| {
                     dev.pins.len() == 2 && {
                         let (x, y) = (dev.pins[0].net, dev.pins[1].net);
-                        (x == a && y == b) || (x == b && y == a)
+                        (x == near && y == far) || (x == far && y == near)
                     }
                 })
             })
@@ -194,21 +225,23 @@ impl NetIndex {
     }
 
     /// The supply source holding `net` against ground, when there is one.
-    pub fn supply_on<'a>(&self, cx: &RuleContext<'a>, net: NetId) -> Option<&'a SupplyFacts> {
-        self.on(net).iter().find_map(|&(d, _)| {
-            let dev = device(cx, d)?;
-            let grounded = dev.pin(PinRole::Neg).is_some_and(|n| is_ground(cx, n));
-            if dev.kind == Kind::VoltageSource && dev.pin(PinRole::Pos) == Some(net) && grounded {
-                supply_facts(cx, d)
-            } else {
-                None
-            }
-        })
+    pub fn supply_on(&self, _cx: &RuleContext<'a>, net: NetId) -> Option<&'a SupplyFacts> {
+        self.supplies.get(&net).copied()
     }
 }
 /// The timer facts of a device.
 pub fn timer_facts<'a>(cx: &RuleContext<'a>, id: DeviceId) -> Option<&'a TimerFacts> {
-    cx.analysis.timers.iter().find(|t| t.device == id)
+    by_device(&cx.analysis.timers, id, |t| t.device)
+}
+/// The first entry of `list` for `device`. The analyses list facts in device order, so a
+/// binary search finds it (rules ask for thousands of devices on a large board).
+/// Short lists (facts put together by hand) are searched from the front whatever their order.
+fn by_device<T>(list: &[T], device: DeviceId, key: impl Fn(&T) -> DeviceId) -> Option<&T> {
+    if list.len() <= 64 {
+        return list.iter().find(|x| key(x) == device);
+    }
+    let at = list.partition_point(|x| key(x) < device);
+    list.get(at).filter(|x| key(x) == device)
 }
 /// The analysis's switches by device, built once per rule call.
 pub struct SwitchIndex<'a> {
