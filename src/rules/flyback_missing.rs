@@ -87,8 +87,8 @@ fn finding(
         let i = current?.max;
         Some(0.5 * l * i * i)
     });
-    let parasitic = load_kind == Kind::Inductor
-        && inductance.as_ref().is_some_and(|l| l.value < PARASITIC_H);
+    let parasitic =
+        load_kind == Kind::Inductor && inductance.as_ref().is_some_and(|l| l.value < PARASITIC_H);
     if parasitic || energy.is_some_and(|e| e < HARMLESS_J) {
         return None;
     }
