@@ -30,17 +30,17 @@ inductance = \"1m\"
 fn channel(out: &mut impl Write, tag: &str, faulty: bool) -> io::Result<()> {
     writeln!(
         out,
-        "XU{tag} 0 trig ctl_{tag} v12 ctl_{tag} tc_{tag} tc_{tag} v12 TIMER555"
+        "XU{tag} 0 trig out_{tag} v12 ctl_{tag} tc_{tag} tc_{tag} v12 TIMER555"
     )?;
     if faulty {
         writeln!(out, "XRV{tag} v12 tc_{tag} tc_{tag} POT r=10k")?;
     } else {
-        writeln!(out, "RS{tag} v12 rs_{tag} 1k")?;
+        writeln!(out, "RS{tag} v12 rs_{tag} 2.7k")?;
         writeln!(out, "XRV{tag} rs_{tag} tc_{tag} tc_{tag} POT r=10k")?;
     }
-    writeln!(out, "C{tag} tc_{tag} 0 100n")?;
+    writeln!(out, "C{tag} tc_{tag} 0 2.2n")?;
     writeln!(out, "CC{tag} ctl_{tag} 0 10n")?;
-    writeln!(out, "RG{tag} ctl_{tag} g_{tag} 100")?;
+    writeln!(out, "RG{tag} out_{tag} g_{tag} 100")?;
     writeln!(out, "M{tag} d_{tag} g_{tag} 0 0 NCH")?;
     writeln!(out, "XP{tag} v12 d_{tag} PUMP12")?;
     if !faulty {
@@ -53,7 +53,8 @@ fn channel(out: &mut impl Write, tag: &str, faulty: bool) -> io::Result<()> {
 fn header(out: &mut impl Write, title: &str) -> io::Result<()> {
     writeln!(out, "{title}")?;
     writeln!(out, "V12 v12 0 DC 12")?;
-    writeln!(out, "VTRIG trig 0 PULSE(12 0 0 1u 1u 10u 1m)")
+    // 25 kHz triggers: the longest one-shot pulse, 1.1·12.7 kΩ·2.2 nF ≈ 31 µs, fits the 40 µs.
+    writeln!(out, "VTRIG trig 0 PULSE(12 0 0 100n 100n 2u 40u)")
 }
 
 fn footer(out: &mut impl Write) -> io::Result<()> {
