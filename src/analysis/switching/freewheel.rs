@@ -43,11 +43,23 @@ pub fn candidates(cx: &Context<'_>, nets: &NetMap, t: &SwitchTopology) -> Vec<Ca
             out.push(Candidate { device, kind });
         }
     };
-    for &net in &branch_nets {
+    // A rail at the far end of the branch holds every channel's parts: walking it for each
+    // switch would make the analysis quadratic. Whatever crosses from it to the branch is found
+    // from the branch's own nets instead, a series pair by the reverse walk below.
+    let skipped = |net: NetId| net != switched && nets::rail(cx, net).is_some();
+    for &net in branch_nets.iter().filter(|&&n| !skipped(n)) {
         for &(device, _) in nets.on(net) {
             let Some(d) = cx.circuit.devices.get(device) else {
                 continue;
             };
+            if let Some(diode) = rail_side_diode(cx, nets, device, net) {
+                if branch_nets
+                    .iter()
+                    .any(|&n| skipped(n) && Some(n) == diode.1)
+                {
+                    push(diode.0, FreewheelKind::AcrossLoad, &mut out);
+                }
+            }
             if !d.kind.is_diode_like() {
                 continue;
             }
@@ -108,6 +120,37 @@ fn order(kind: FreewheelKind) -> u8 {
         FreewheelKind::Clamp => 2,
         FreewheelKind::OppositeBodyDiode => 3,
     }
+}
+
+/// The reverse of [`series_partner_end`]: `partner` (a resistor or diode on `net`) leads to a
+/// net of its own holding one diode; that diode and the net at its far end.
+fn rail_side_diode(
+    cx: &Context<'_>,
+    nets: &NetMap,
+    partner: DeviceId,
+    net: NetId,
+) -> Option<(DeviceId, Option<NetId>)> {
+    let kind = cx.circuit.devices.get(partner)?.kind;
+    if !(kind.is_diode_like() || kind == Kind::Resistor) {
+        return None;
+    }
+    let mid = nets::other_end(cx, partner, net).filter(|&m| m != net)?;
+    let [(a, _), (b, _)] = nets.on(mid) else {
+        return None;
+    };
+    let diode = if *a == partner { *b } else { *a };
+    let d = cx.circuit.devices.get(diode)?;
+    let (Some(anode), Some(cathode)) = (d.pin(PinRole::Anode), d.pin(PinRole::Cathode)) else {
+        return None;
+    };
+    if diode == partner || !d.kind.is_diode_like() || anode == cathode {
+        return None;
+    }
+    if series_partner_end(cx, nets, diode, mid) != Some(net) {
+        return None;
+    }
+    let end = if anode == mid { cathode } else { anode };
+    Some((diode, Some(end)))
 }
 
 /// When `mid` holds only `diode` and one more diode or resistor, the far end of that part.
