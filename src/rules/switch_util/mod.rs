@@ -138,7 +138,7 @@ pub fn supply_range(cx: &RuleContext<'_>, s: &SupplyFacts) -> Range {
 pub struct NetIndex<'a> {
     circuit: &'a Circuit,
     /// `pins[offsets[n]..offsets[n + 1]]` are the pins on net `n`, when built here.
-    own: Option<(Vec<usize>, Vec<(DeviceId, usize)>)>,
+    own: Option<PinsOnNets>,
     /// Rail net → the first grounded voltage source (in device order) holding it, with facts.
     supplies: HashMap<NetId, &'a SupplyFacts>,
 }
@@ -216,8 +216,10 @@ impl<'a> NetIndex<'a> {
         self.supplies.get(&net).copied()
     }
 }
+/// Offsets per net into a list of `(device, pin index)`.
+type PinsOnNets = (Vec<usize>, Vec<(DeviceId, usize)>);
 /// Pins on each net of a circuit that has no index of its own.
-fn own_index(circuit: &Circuit) -> (Vec<usize>, Vec<(DeviceId, usize)>) {
+fn own_index(circuit: &Circuit) -> PinsOnNets {
     let mut offsets = vec![0usize; circuit.nets.len() + 1];
     for device in &circuit.devices {
         for pin in &device.pins {
