@@ -1,5 +1,5 @@
 //! Times the stages of `kickback check` one by one on a netlist and prints each stage's wall
-//! time and peak resident memory, so a slow or greedy stage shows by name.
+//! and CPU time and peak resident memory, so a slow or greedy stage shows by name.
 //!
 //! ```sh
 //! cargo run --release --example gen_board -- --channels 100000 --out /tmp/big
@@ -35,14 +35,26 @@ fn reset_peak() {
     let _ = std::fs::write("/proc/self/clear_refs", "5");
 }
 
+/// CPU time of this thread so far (Linux), which means something on a busy machine.
+fn thread_cpu_ms() -> Option<f64> {
+    let text = std::fs::read_to_string("/proc/thread-self/schedstat").ok()?;
+    let ns: u64 = text.split_whitespace().next()?.parse().ok()?;
+    Some(ns as f64 / 1e6)
+}
+
 fn timed<T>(name: &str, f: impl FnOnce() -> T) -> T {
     reset_peak();
+    let cpu = thread_cpu_ms();
     let start = Instant::now();
     let value = f();
     let elapsed = start.elapsed();
+    let cpu = match (thread_cpu_ms(), cpu) {
+        (Some(b), Some(a)) => format!("{:>9.1}", b - a),
+        _ => format!("{:>9}", "?"),
+    };
     let mib = |k: Option<u64>| k.map_or("?".to_string(), |k| format!("{:.0}", k as f64 / 1024.0));
     println!(
-        "{name:<12} {:>9.1} ms   peak {:>5} MiB   now {:>5} MiB",
+        "{name:<12} {:>9.1} ms wall {cpu} ms CPU   peak {:>5} MiB   now {:>5} MiB",
         elapsed.as_secs_f64() * 1e3,
         mib(status_kib("VmHWM:")),
         mib(status_kib("VmRSS:")),

@@ -96,7 +96,7 @@ impl Likeness {
 
     fn hash(element: &FlatElement) -> u64 {
         use std::hash::{Hash, Hasher};
-        let mut h = std::collections::hash_map::DefaultHasher::new();
+        let mut h = super::names::FastHasher::default();
         element.letter.hash(&mut h);
         element.model.hash(&mut h);
         element.model_index.hash(&mut h);

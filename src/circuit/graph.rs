@@ -1,6 +1,7 @@
 //! The petgraph graph of nets and devices, and its indexes. Queries live in `query.rs`.
 
 use super::data::{toml_key, PartSources};
+use super::names::NameIndex;
 use super::{pins, Device, DeviceId, Kind, Net, NetId, Pin, PinRole};
 use crate::config::Config;
 use crate::diagnostic::{Finding, Severity};
@@ -22,8 +23,10 @@ pub enum GraphNode {
 pub struct Circuit {
     pub nets: Vec<Net>,
     pub devices: Vec<Device>,
-    /// Lower-case net name (and every ground alias) → net.
-    pub(super) net_names: HashMap<String, NetId>,
+    /// Net name → net, case-insensitive.
+    pub(super) net_names: NameIndex,
+    /// Names that mean the ground net (`0`, `[analysis] ground`, its own name), once it exists.
+    pub(super) ground_aliases: Vec<String>,
     pub(super) ground: Option<NetId>,
     /// Pins on each net: `pins_on[pin_offsets[n]..pin_offsets[n + 1]]`.
     pub(super) pin_offsets: Vec<usize>,
@@ -32,7 +35,7 @@ pub struct Circuit {
     /// Lower-case flattened path → device (the first, when a name repeats). Built on first
     /// use, from the element paths kept in `paths`.
     pub(super) by_path: OnceLock<HashMap<String, DeviceId>>,
-    pub(super) paths: Vec<String>,
+    pub(super) paths: PathTable,
     /// Net `n` is node `n`; device `d` is node `nets.len() + d`. Built on first use: most
     /// checks never walk paths, and the indexes answer everything else.
     pub(super) graph: OnceLock<UnGraph<GraphNode, usize>>,
@@ -52,11 +55,10 @@ impl Circuit {
         let mut circuit = Circuit::default();
         let mut findings = Vec::new();
         let mut sources = PartSources::new(config);
-        let mut key = String::new();
         circuit.devices.reserve(netlist.elements.len());
         circuit.paths.reserve(netlist.elements.len());
         // Most elements bring at most one new net; reserving avoids rehashing as the map grows.
-        circuit.net_names.reserve(netlist.elements.len() + 8);
+        circuit.net_names = NameIndex::with_capacity(netlist.elements.len() + 8);
         for (index, element) in netlist.elements.iter().enumerate() {
             let resolved = sources.resolve(element, &netlist.models);
             if let Some(problem) = &resolved.pin_problem {
@@ -68,11 +70,11 @@ impl Circuit {
                 .enumerate()
                 .map(|(i, node)| Pin {
                     role: resolved.roles.get(i).copied().unwrap_or(PinRole::Other),
-                    net: circuit.intern_net(node, config, &mut key),
+                    net: circuit.intern_net(node, config),
                 })
                 .collect();
             let id = circuit.devices.len();
-            circuit.paths.push(element.path.clone());
+            circuit.paths.push(&element.path);
             circuit.by_kind.entry(resolved.kind).or_default().push(id);
             circuit.devices.push(Device {
                 element: index,
@@ -86,31 +88,28 @@ impl Circuit {
         (circuit, findings)
     }
 
-    fn intern_net(&mut self, name: &str, config: &Config, key: &mut String) -> NetId {
+    fn intern_net(&mut self, name: &str, config: &Config) -> NetId {
         if config.is_ground_name(name) {
             if let Some(ground) = self.ground {
                 return ground;
             }
             let id = self.push_net(name, true);
             self.ground = Some(id);
-            for alias in config
+            self.ground_aliases = config
                 .analysis
                 .ground
                 .iter()
                 .map(String::as_str)
                 .chain(["0", name])
-            {
-                self.net_names.insert(alias.to_ascii_lowercase(), id);
-            }
+                .map(str::to_ascii_lowercase)
+                .collect();
             return id;
         }
-        key.clear();
-        key.extend(name.chars().map(|c| c.to_ascii_lowercase()));
-        if let Some(&id) = self.net_names.get(key.as_str()) {
+        if let Some(id) = self.net_names.get(&self.nets, name) {
             return id;
         }
         let id = self.push_net(name, false);
-        self.net_names.insert(key.clone(), id);
+        self.net_names.insert(id, name);
         id
     }
 
@@ -245,6 +244,36 @@ impl Circuit {
         self.component_offsets = offsets;
         self.component_nets = nets;
         self.dc_component = dc_component;
+    }
+}
+
+/// Every device's flattened path in one string, so the circuit keeps no string per device.
+#[derive(Clone, Debug, Default)]
+pub(super) struct PathTable {
+    text: String,
+    ends: Vec<usize>,
+}
+
+impl PathTable {
+    fn reserve(&mut self, n: usize) {
+        self.ends.reserve(n);
+        self.text.reserve(n.saturating_mul(8));
+    }
+
+    fn push(&mut self, path: &str) {
+        self.text.push_str(path);
+        self.ends.push(self.text.len());
+    }
+
+    fn len(&self) -> usize {
+        self.ends.len()
+    }
+
+    fn iter(&self) -> impl Iterator<Item = &str> + '_ {
+        let starts = std::iter::once(0).chain(self.ends.iter().copied());
+        starts
+            .zip(self.ends.iter().copied())
+            .map(|(a, b)| self.text.get(a..b).unwrap_or(""))
     }
 }
 

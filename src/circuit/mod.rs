@@ -137,6 +137,7 @@ pub mod glob;
 pub mod graph;
 mod layouts;
 mod library;
+mod names;
 pub mod parts;
 pub mod pins;
 mod query;

@@ -36,7 +36,12 @@ impl Circuit {
 
     /// The net of this name, case-insensitive; every ground alias names the ground net.
     pub fn net_named(&self, name: &str) -> Option<NetId> {
-        self.net_names.get(&name.to_ascii_lowercase()).copied()
+        let ground = self.ground.filter(|_| {
+            self.ground_aliases
+                .iter()
+                .any(|a| a.eq_ignore_ascii_case(name))
+        });
+        ground.or_else(|| self.net_names.get(&self.nets, name))
     }
 
     /// The reference net (all ground aliases merged), when the circuit has one.

@@ -17,7 +17,7 @@ use super::eseries;
 use super::units::{format_si, sig3};
 use super::RuleContext;
 use crate::analysis::{LoadFacts, Range, SupplyFacts, SwitchFacts, TimerFacts};
-use crate::circuit::{Device, DeviceId, Kind, NetId, PinRole, Rated};
+use crate::circuit::{Circuit, Device, DeviceId, Kind, NetId, PinRole, Rated};
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::FlatElement;
 use std::collections::HashMap;
@@ -132,11 +132,13 @@ pub fn supply_range(cx: &RuleContext<'_>, s: &SupplyFacts) -> Range {
         }
     }
 }
-/// Pins on each net and the supply source on each rail, found once per rule call so that no
-/// rule walks a rail's pins for every switch on it.
+/// Pins on each net (the circuit's own index when it has one, else one built here: circuits
+/// assembled by hand in tests have none) and the supply source on each rail, found once per
+/// rule call so that no rule walks a rail's pins for every switch on it.
 pub struct NetIndex<'a> {
-    offsets: Vec<usize>,
-    pins: Vec<(DeviceId, usize)>,
+    circuit: &'a Circuit,
+    /// `pins[offsets[n]..offsets[n + 1]]` are the pins on net `n`, when built here.
+    own: Option<PinsOnNets>,
     /// Rail net → the first grounded voltage source (in device order) holding it, with facts.
     supplies: HashMap<NetId, &'a SupplyFacts>,
 }
@@ -160,42 +162,27 @@ impl<'a> NetIndex<'a> {
                 *slot = s;
             }
         }
-        let nets = cx.circuit.nets.len();
-        let mut offsets = vec![0usize; nets + 1];
-        for device in &cx.circuit.devices {
-            for pin in &device.pins {
-                if let Some(count) = offsets.get_mut(pin.net + 1) {
-                    *count += 1;
-                }
-            }
-        }
-        for i in 1..offsets.len() {
-            offsets[i] += offsets[i - 1];
-        }
-        let mut fill = offsets.clone();
-        let mut pins = vec![(0, 0); offsets.last().copied().unwrap_or(0)];
-        for (id, device) in cx.circuit.devices.iter().enumerate() {
-            for (index, pin) in device.pins.iter().enumerate() {
-                if let Some(slot) = fill.get_mut(pin.net) {
-                    if let Some(entry) = pins.get_mut(*slot) {
-                        *entry = (id, index);
-                    }
-                    *slot += 1;
-                }
-            }
-        }
+        let circuit = cx.circuit;
+        let indexed = circuit
+            .devices
+            .iter()
+            .find_map(|d| d.pins.first())
+            .is_none_or(|p| !circuit.devices_on(p.net).is_empty());
         NetIndex {
-            offsets,
-            pins,
+            circuit,
+            own: (!indexed).then(|| own_index(circuit)),
             supplies,
         }
     }
 
     /// `(device, pin index)` of every pin on `net`.
     pub fn on(&self, net: NetId) -> &[(DeviceId, usize)] {
-        match (self.offsets.get(net), self.offsets.get(net + 1)) {
-            (Some(&a), Some(&b)) => self.pins.get(a..b).unwrap_or(&[]),
-            _ => &[],
+        match &self.own {
+            None => self.circuit.devices_on(net),
+            Some((offsets, pins)) => match (offsets.get(net), offsets.get(net + 1)) {
+                (Some(&a), Some(&b)) => pins.get(a..b).unwrap_or(&[]),
+                _ => &[],
+            },
         }
     }
 
@@ -228,6 +215,35 @@ impl<'a> NetIndex<'a> {
     pub fn supply_on(&self, _cx: &RuleContext<'a>, net: NetId) -> Option<&'a SupplyFacts> {
         self.supplies.get(&net).copied()
     }
+}
+/// Offsets per net into a list of `(device, pin index)`.
+type PinsOnNets = (Vec<usize>, Vec<(DeviceId, usize)>);
+/// Pins on each net of a circuit that has no index of its own.
+fn own_index(circuit: &Circuit) -> PinsOnNets {
+    let mut offsets = vec![0usize; circuit.nets.len() + 1];
+    for device in &circuit.devices {
+        for pin in &device.pins {
+            if let Some(count) = offsets.get_mut(pin.net + 1) {
+                *count += 1;
+            }
+        }
+    }
+    for i in 1..offsets.len() {
+        offsets[i] += offsets[i - 1];
+    }
+    let mut fill = offsets.clone();
+    let mut pins = vec![(0, 0); offsets.last().copied().unwrap_or(0)];
+    for (id, device) in circuit.devices.iter().enumerate() {
+        for (index, pin) in device.pins.iter().enumerate() {
+            if let Some(slot) = fill.get_mut(pin.net) {
+                if let Some(entry) = pins.get_mut(*slot) {
+                    *entry = (id, index);
+                }
+                *slot += 1;
+            }
+        }
+    }
+    (offsets, pins)
 }
 /// The timer facts of a device.
 pub fn timer_facts<'a>(cx: &RuleContext<'a>, id: DeviceId) -> Option<&'a TimerFacts> {
