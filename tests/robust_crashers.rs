@@ -39,7 +39,11 @@ fn crashing_netlists_are_checked() {
         if let Some(CheckError::Internal { message, .. }) = &report.failure {
             panic!("{}: {message}", path.display());
         }
-        assert!(started.elapsed() < Duration::from_secs(30), "{}", path.display());
+        assert!(
+            started.elapsed() < Duration::from_secs(30),
+            "{}",
+            path.display()
+        );
     }
 }
 

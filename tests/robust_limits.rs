@@ -33,9 +33,16 @@ fn run(dir: &tempfile::TempDir, args: &[&str]) -> (i32, String, String) {
 fn nested_instances(levels: usize) -> String {
     let mut deck = String::from("Nested channels\nV1 a 0 12\n");
     for i in 0..levels {
-        let _ = writeln!(deck, ".subckt s{i} p q\nX1 p q s{}\nR1 p q 10k\n.ends", i + 1);
+        let _ = writeln!(
+            deck,
+            ".subckt s{i} p q\nX1 p q s{}\nR1 p q 10k\n.ends",
+            i + 1
+        );
     }
-    let _ = writeln!(deck, ".subckt s{levels} p q\nR1 p q 10k\n.ends\nX0 a 0 s0\n.end");
+    let _ = writeln!(
+        deck,
+        ".subckt s{levels} p q\nR1 p q 10k\n.ends\nX0 a 0 s0\n.end"
+    );
     deck
 }
 
@@ -65,7 +72,9 @@ fn definition_and_include_nesting_follow_max_depth() {
     let (code, out, _) = run(&dir, &["--max-depth", "3", "defs.cir"]);
     assert_eq!(code, 1, "{out}");
     assert!(
-        out.contains("subcircuit definitions are nested more than 3 levels deep here (--max-depth)"),
+        out.contains(
+            "subcircuit definitions are nested more than 3 levels deep here (--max-depth)"
+        ),
         "{out}"
     );
 
@@ -77,7 +86,11 @@ fn definition_and_include_nesting_follow_max_depth() {
         .unwrap();
     }
     fs::write(dir.path().join("n5.lib"), "* the bottom\n").unwrap();
-    fs::write(dir.path().join("inc.cir"), "Nested includes\n.include n0.lib\n.end\n").unwrap();
+    fs::write(
+        dir.path().join("inc.cir"),
+        "Nested includes\n.include n0.lib\n.end\n",
+    )
+    .unwrap();
     let (code, out, _) = run(&dir, &["--max-depth", "3", "inc.cir"]);
     assert_eq!(code, 1, "{out}");
     assert!(
@@ -92,14 +105,21 @@ fn element_count_follows_max_elements() {
     fs::write(dir.path().join("wide.cir"), nested_instances(30)).unwrap();
     let (code, _, err) = run(&dir, &["--max-elements", "20", "wide.cir"]);
     assert_eq!(code, 2);
-    assert!(err.contains("above the limit of 20 (--max-elements)"), "{err}");
+    assert!(
+        err.contains("above the limit of 20 (--max-elements)"),
+        "{err}"
+    );
 }
 
 #[test]
 fn file_size_follows_max_file_size_for_netlists_and_includes() {
     let dir = tempfile::tempdir().unwrap();
     let padding = "* the channel's parts\n".repeat(100);
-    fs::write(dir.path().join("parts.lib"), format!("{padding}.model dfw D\n")).unwrap();
+    fs::write(
+        dir.path().join("parts.lib"),
+        format!("{padding}.model dfw D\n"),
+    )
+    .unwrap();
     fs::write(
         dir.path().join("top.cir"),
         "Top\n.include parts.lib\nV1 a 0 12\nR1 a 0 1k\n.end\n",
@@ -116,7 +136,9 @@ fn file_size_follows_max_file_size_for_netlists_and_includes() {
     let (code, _, err) = run(&dir, &["--max-file-size", "40", "top.cir"]);
     assert_eq!(code, 2);
     assert!(
-        err.contains("top.cir is 48 bytes, above the file size limit of 40 bytes (--max-file-size)"),
+        err.contains(
+            "top.cir is 48 bytes, above the file size limit of 40 bytes (--max-file-size)"
+        ),
         "{err}"
     );
 }
@@ -137,4 +159,23 @@ fn statement_length_counts_in_includes_too() {
         "{out}"
     );
     assert!(out.contains("(--max-statement-bytes)"), "{out}");
+}
+
+#[test]
+fn one_file_included_over_and_over_meets_the_element_limit_before_memory_does() {
+    // Each include of the same file walks its statements again: 2,000 includes of a 2,000-line
+    // library would hold four million statements from a 34 kB netlist.
+    let dir = tempfile::tempdir().unwrap();
+    let library: String = (0..2000).map(|i| format!("R{i} a{i} 0 1k\n")).collect();
+    fs::write(dir.path().join("bank.lib"), library).unwrap();
+    let top = format!("Top\n{}.end\n", ".include bank.lib\n".repeat(2000));
+    fs::write(dir.path().join("top.cir"), top).unwrap();
+    let started = std::time::Instant::now();
+    let (code, _, err) = run(&dir, &["--max-elements", "100000", "top.cir"]);
+    assert_eq!(code, 2);
+    assert!(
+        err.contains("the includes would hold 102000 statements or more (a file included over and over counts each time), above the element limit of 100000 (--max-elements)"),
+        "{err}"
+    );
+    assert!(started.elapsed() < Duration::from_secs(30));
 }

@@ -233,7 +233,10 @@ fn overflow_is_a_finding_at_the_value() {
         let located = sources.locate(finding.span);
         assert_eq!(located.line, 3, "{value}");
         let start = deck.find("R1").unwrap() + "R1 a 0 ".len();
-        assert_eq!(finding.span.start as usize, start, "{value}: the value's own span");
+        assert_eq!(
+            finding.span.start as usize, start,
+            "{value}: the value's own span"
+        );
         let r1 = flat.elements.iter().find(|e| e.name == "R1");
         assert!(
             r1.is_none_or(|e| e.value.is_none_or(|v| v.known().is_none_or(f64::is_finite))),
@@ -268,7 +271,11 @@ fn pathological_dc_decks_end() {
                 .find(|f| f.rule == "solve-failed")
                 .unwrap_or_else(|| panic!("{:#?}", report.findings));
             assert_eq!(report.sources.locate(failed.span).line, 5, "at M1");
-            assert!(failed.message.contains("no unique DC solution"), "{}", failed.message);
+            assert!(
+                failed.message.contains("no unique DC solution"),
+                "{}",
+                failed.message
+            );
         }
         render_all(report);
     }
