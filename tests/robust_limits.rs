@@ -160,3 +160,22 @@ fn statement_length_counts_in_includes_too() {
     );
     assert!(out.contains("(--max-statement-bytes)"), "{out}");
 }
+
+#[test]
+fn one_file_included_over_and_over_meets_the_element_limit_before_memory_does() {
+    // Each include of the same file walks its statements again: 2,000 includes of a 2,000-line
+    // library would hold four million statements from a 34 kB netlist.
+    let dir = tempfile::tempdir().unwrap();
+    let library: String = (0..2000).map(|i| format!("R{i} a{i} 0 1k\n")).collect();
+    fs::write(dir.path().join("bank.lib"), library).unwrap();
+    let top = format!("Top\n{}.end\n", ".include bank.lib\n".repeat(2000));
+    fs::write(dir.path().join("top.cir"), top).unwrap();
+    let started = std::time::Instant::now();
+    let (code, _, err) = run(&dir, &["--max-elements", "100000", "top.cir"]);
+    assert_eq!(code, 2);
+    assert!(
+        err.contains("the includes would hold 102000 statements or more (a file included over and over counts each time), above the element limit of 100000 (--max-elements)"),
+        "{err}"
+    );
+    assert!(started.elapsed() < Duration::from_secs(30));
+}

@@ -38,6 +38,8 @@ pub struct Loaded {
     pub findings: Vec<Finding>,
     /// Set when the top file is of another netlist family; nothing else is read.
     pub foreign: bool,
+    /// Statements the includes held when they passed `max_elements`; nothing more is read.
+    pub statements_over_limit: Option<u64>,
 }
 
 /// Where the top file lives, for resolving and policing includes.
@@ -65,6 +67,8 @@ pub struct Loader<'s> {
     chain: Vec<(usize, Option<String>)>,
     def_stack: Vec<usize>,
     depth_reported: bool,
+    /// Statements walked so far, counting a file again each time it is included.
+    walked: u64,
 }
 
 impl<'s> Loader<'s> {
@@ -80,6 +84,7 @@ impl<'s> Loader<'s> {
             chain: Vec::new(),
             def_stack: vec![0],
             depth_reported: false,
+            walked: 0,
         }
     }
 
@@ -179,7 +184,7 @@ impl<'s> Loader<'s> {
 
     fn walk(&mut self, file: usize, from: usize, to: usize) {
         let mut i = from;
-        while i < to {
+        while i < to && self.out.statements_over_limit.is_none() {
             let Some(stmt) = self.out.files[file].stmts.get(i).copied() else {
                 break;
             };
@@ -383,6 +388,14 @@ impl<'s> Loader<'s> {
             self.out.missing.push(missing);
             return;
         };
+        // One file included over and over costs its statements each time: bound the total
+        // before it is walked, as flattening bounds elements.
+        let adds = end.saturating_sub(start) as u64;
+        self.walked = self.walked.saturating_add(adds);
+        if self.walked > self.limits.max_elements {
+            self.out.statements_over_limit.get_or_insert(self.walked);
+            return;
+        }
         self.chain.push((file, section));
         self.walk(file, start, end);
         self.chain.pop();

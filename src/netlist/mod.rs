@@ -84,6 +84,8 @@ pub enum LoadError {
         limit: u64,
         chain: String,
     },
+    #[error("the includes would hold {count} statements or more (a file included over and over counts each time), above the element limit of {limit} (--max-elements)")]
+    TooManyStatements { count: u64, limit: u64 },
 }
 
 /// Reads a regular file of at most `limit` bytes (`None` when it is longer), so that a file
@@ -225,6 +227,12 @@ fn run(
     keep_whole: KeepWhole<'_>,
 ) -> Result<(FlatNetlist, Vec<Finding>), LoadError> {
     let loaded = load::Loader::new(sources, limits, origin).run(top);
+    if let Some(count) = loaded.statements_over_limit {
+        return Err(LoadError::TooManyStatements {
+            count,
+            limit: limits.max_elements,
+        });
+    }
     let sources: &SourceMap = sources;
     let mut findings = loaded.findings.clone();
     let mut suppressions: Vec<Suppression> = loaded
