@@ -3,7 +3,7 @@
 
 use super::eseries::{ohms, round_up, E12};
 use super::switch_util::{
-    dc_resistance, element, finding_at, kind, label, name, next_rating, rated_or, NetIndex,
+    dc_resistance, element, finding_at, is_ground, kind, label, name, next_rating, rated_or, NetIndex,
     RESISTOR_WATTS,
 };
 use super::units::format_si;
@@ -44,7 +44,14 @@ fn involved(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> Vec<(Device
         return found;
     };
     for pin in &d.pins {
-        for &(other, _) in index.on(pin.net) {
+        // A rail or ground is shared by every channel: the pots that set this resistor's
+        // worst state sit on its signal nets, not on every net it shares with the board.
+        let on_net = index.on(pin.net);
+        let held = on_net.iter().any(|&(o, _)| kind(cx, o) == Some(Kind::VoltageSource));
+        if held || is_ground(cx, pin.net) {
+            continue;
+        }
+        for &(other, _) in on_net {
             let pot = cx.circuit.devices.get(other).map(|o| o.kind) == Some(Kind::Potentiometer);
             if other != id && pot && !found.iter().any(|(f, _)| *f == other) {
                 found.push((other, "at its worst position".to_string()));
