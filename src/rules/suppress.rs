@@ -29,18 +29,27 @@ pub fn apply(
         .filter(|s| is_valid(s, &mut extra))
         .collect();
     let mut used = vec![false; valid.len()];
+    // By file and target line, so each finding looks only at the comments on its own lines.
+    let mut by_line: std::collections::BTreeMap<(crate::source::FileId, usize), Vec<usize>> =
+        std::collections::BTreeMap::new();
+    for (i, s) in valid.iter().enumerate() {
+        by_line.entry((s.file, s.target_line)).or_default().push(i);
+    }
     for finding in findings {
         let (line, end_line) = {
             let loc = sources.locate(finding.span);
-            (loc.line, loc.end_line)
+            (loc.line, loc.end_line.max(loc.line))
         };
-        let hit = valid.iter().position(|s| {
-            s.file == finding.span.file
-                && (line..=end_line).contains(&s.target_line)
-                && s.rules
+        let file = finding.span.file;
+        let hit = by_line
+            .range((file, line)..=(file, end_line))
+            .flat_map(|(_, ids)| ids.iter().copied())
+            .find(|&i| {
+                valid[i]
+                    .rules
                     .iter()
                     .any(|r| r.eq_ignore_ascii_case(&finding.rule))
-        });
+            });
         match hit {
             Some(i) => {
                 used[i] = true;
