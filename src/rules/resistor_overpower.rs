@@ -3,8 +3,8 @@
 
 use super::eseries::{ohms, round_up, E12};
 use super::switch_util::{
-    dc_resistance, element, finding_at, is_ground, kind, label, name, next_rating, rated_or, NetIndex,
-    RESISTOR_WATTS,
+    dc_resistance, element, finding_at, is_ground, kind, label, name, next_rating, rated_or,
+    NetIndex, RESISTOR_WATTS,
 };
 use super::units::format_si;
 use super::RuleContext;
@@ -47,7 +47,9 @@ fn involved(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> Vec<(Device
         // A rail or ground is shared by every channel: the pots that set this resistor's
         // worst state sit on its signal nets, not on every net it shares with the board.
         let on_net = index.on(pin.net);
-        let held = on_net.iter().any(|&(o, _)| kind(cx, o) == Some(Kind::VoltageSource));
+        let held = on_net
+            .iter()
+            .any(|&(o, _)| kind(cx, o) == Some(Kind::VoltageSource));
         if held || is_ground(cx, pin.net) {
             continue;
         }
