@@ -54,30 +54,7 @@ impl<'c> NetIndex<'c> {
 
 impl OwnIndex {
     fn new(circuit: &Circuit) -> OwnIndex {
-        let nets = circuit.nets.len();
-        let mut offsets = vec![0usize; nets + 1];
-        for device in &circuit.devices {
-            for pin in &device.pins {
-                if let Some(count) = offsets.get_mut(pin.net + 1) {
-                    *count += 1;
-                }
-            }
-        }
-        for i in 1..offsets.len() {
-            offsets[i] += offsets[i - 1];
-        }
-        let mut fill = offsets.clone();
-        let mut pins = vec![(0, 0); offsets.last().copied().unwrap_or(0)];
-        for (id, device) in circuit.devices.iter().enumerate() {
-            for (index, pin) in device.pins.iter().enumerate() {
-                if let Some(slot) = fill.get_mut(pin.net) {
-                    if let Some(entry) = pins.get_mut(*slot) {
-                        *entry = (id, index);
-                    }
-                    *slot += 1;
-                }
-            }
-        }
+        let (offsets, pins) = super::switch_util::own_index(circuit);
         OwnIndex { offsets, pins }
     }
 }

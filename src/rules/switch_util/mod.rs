@@ -217,9 +217,9 @@ impl<'a> NetIndex<'a> {
     }
 }
 /// Offsets per net into a list of `(device, pin index)`.
-type PinsOnNets = (Vec<usize>, Vec<(DeviceId, usize)>);
+pub(crate) type PinsOnNets = (Vec<usize>, Vec<(DeviceId, usize)>);
 /// Pins on each net of a circuit that has no index of its own.
-fn own_index(circuit: &Circuit) -> PinsOnNets {
+pub(crate) fn own_index(circuit: &Circuit) -> PinsOnNets {
     let mut offsets = vec![0usize; circuit.nets.len() + 1];
     for device in &circuit.devices {
         for pin in &device.pins {
