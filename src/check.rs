@@ -5,9 +5,11 @@ use crate::analysis::{self, Analysis};
 use crate::circuit::{parts, Circuit};
 use crate::config::{Config, ConfigError};
 use crate::diagnostic::Finding;
-use crate::netlist::{self, FlatNetlist, Limits, LoadError};
+use crate::netlist::{self, FlatNetlist, Limits};
 use crate::rules::{self, RuleContext};
 use crate::source::SourceMap;
+
+pub use crate::outcome::{CheckError, FileReport};
 use std::panic::{self, AssertUnwindSafe};
 use std::path::{Path, PathBuf};
 
@@ -16,31 +18,6 @@ pub struct CheckOptions {
     pub limits: Limits,
     /// `--config PATH`; otherwise `kickback.toml` is looked for beside each netlist.
     pub config_path: Option<PathBuf>,
-}
-
-/// Why a file could not be checked at all (exit code 2).
-#[derive(Debug, thiserror::Error)]
-pub enum CheckError {
-    #[error(transparent)]
-    Load(#[from] LoadError),
-    #[error(transparent)]
-    Config(#[from] ConfigError),
-    /// A bug: some stage panicked on this file. The other files are still checked.
-    #[error("internal error while checking {}: {message}; please report it with the netlist", path.display())]
-    Internal { path: PathBuf, message: String },
-}
-
-/// The outcome for one file.
-#[derive(Debug)]
-pub struct FileReport {
-    pub path: PathBuf,
-    pub sources: SourceMap,
-    /// Findings after severity overrides and suppressions, sorted by file, line, column, rule.
-    pub findings: Vec<Finding>,
-    /// Findings silenced by a suppression comment or `off` in `[rules]`.
-    pub suppressed: usize,
-    /// Set when the file could not be checked; `findings` may then be empty.
-    pub failure: Option<CheckError>,
 }
 
 pub fn load_config(netlist: &Path, options: &CheckOptions) -> Result<Config, ConfigError> {

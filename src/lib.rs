@@ -2,7 +2,8 @@
 //!
 //! Data flows one way: [`netlist`] (text → flattened elements) → [`circuit`] (graph of nets and
 //! devices with part knowledge) → [`analysis`] (electrical facts) → [`rules`] (findings) →
-//! [`report`] (rendering). [`check`] runs the pipeline for one file.
+//! [`report`] (rendering). [`check`] runs the pipeline for one file and hands its
+//! [`outcome`] to the renderers.
 
 pub mod analysis;
 pub mod app;
@@ -11,6 +12,7 @@ pub mod circuit;
 pub mod config;
 pub mod diagnostic;
 pub mod netlist;
+pub mod outcome;
 pub mod report;
 pub mod rules;
 pub mod source;

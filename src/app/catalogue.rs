@@ -1,6 +1,8 @@
 //! `kickback rules` and `kickback explain`: the rule registry and pages, for a person.
 
-use crate::rules::{self, RuleInfo, REGISTRY};
+use crate::config::{Config, RuleLevel};
+use crate::diagnostic::Severity;
+use crate::rules::{self, Rule, REGISTRY};
 
 /// Said after every page: what a clean check is and is not.
 pub const CAUTION: &str = "Caution: kickback is a review aid, not a sign-off. A clean check does \
@@ -8,30 +10,69 @@ not make a design safe; motor drives store energy in their inductance and batter
 large fault currents. Follow local electrical codes and licensed practice for anything above \
 safe extra-low voltage, and above all for anything mains-powered.";
 
-/// ID, default severity and summary of every rule, in aligned columns.
-pub fn table(registry: &[RuleInfo]) -> String {
-    let header = ("RULE", "DEFAULT", "SUMMARY");
-    let id_width = registry
+/// The severities a rule can give, worst first, joined by `/` (`error/warning`).
+fn grades(rule: &Rule) -> String {
+    let mut grades: Vec<Severity> = rule.grades.to_vec();
+    if !grades.contains(&rule.default_severity) {
+        grades.push(rule.default_severity);
+    }
+    grades.sort_unstable_by(|a, b| b.cmp(a));
+    grades.dedup();
+    grades
         .iter()
-        .map(|r| r.id.len())
-        .chain([header.0.len()])
-        .max()
-        .unwrap_or(0);
-    let severity_width = registry
+        .map(|s| s.as_str())
+        .collect::<Vec<_>>()
+        .join("/")
+}
+
+/// What the configuration makes of a rule: its own grading (`as graded`), one fixed level
+/// (`[rules]` sets one) or `off`.
+fn in_effect(rule: &Rule, config: Option<&Config>) -> String {
+    match config.and_then(|c| c.rule_level(rule.id)) {
+        Some(RuleLevel::Off) => "off".to_string(),
+        Some(RuleLevel::Set(level)) => format!("{level} (config)"),
+        None => "as graded".to_string(),
+    }
+}
+
+/// Every rule: its ID, the severities it can give, what the configuration in effect makes of
+/// it and its summary, in aligned columns.
+pub fn table(registry: &[&Rule], config: Option<&Config>) -> String {
+    let header = ["RULE", "GIVES", "IN EFFECT", "SUMMARY"];
+    let rows: Vec<[String; 4]> = registry
         .iter()
-        .map(|r| r.default_severity.as_str().len())
-        .chain([header.1.len()])
-        .max()
-        .unwrap_or(0);
+        .map(|rule| {
+            [
+                rule.id.to_string(),
+                grades(rule),
+                in_effect(rule, config),
+                rule.summary.to_string(),
+            ]
+        })
+        .collect();
+    let width = |column: usize| {
+        rows.iter()
+            .map(|r| r[column].chars().count())
+            .chain([header[column].len()])
+            .max()
+            .unwrap_or(0)
+    };
+    let (w0, w1, w2) = (width(0), width(1), width(2));
     let mut out = String::new();
-    let mut row = |id: &str, severity: &str, summary: &str| {
-        let line = format!("{id:<id_width$}  {severity:<severity_width$}  {summary}");
+    let mut row = |cells: [&str; 4]| {
+        let line = format!(
+            "{:<w0$}  {:<w1$}  {:<w2$}  {}",
+            cells[0], cells[1], cells[2], cells[3]
+        );
         out.push_str(line.trim_end());
         out.push('\n');
     };
-    row(header.0, header.1, header.2);
-    for rule in registry {
-        row(rule.id, rule.default_severity.as_str(), rule.summary);
+    row(header);
+    for r in &rows {
+        row([&r[0], &r[1], &r[2], &r[3]]);
+    }
+    if let Some(path) = config.and_then(|c| c.path.as_ref()) {
+        out.push_str(&format!("\nIN EFFECT read from {}\n", path.display()));
     }
     out
 }
@@ -51,7 +92,7 @@ pub fn explain(id: &str) -> Result<String, Vec<&'static str>> {
 }
 
 /// Up to three rule IDs that look like `id` (a typo, a missing hyphen, a part of the name).
-pub fn closest(id: &str, registry: &[RuleInfo]) -> Vec<&'static str> {
+pub fn closest(id: &str, registry: &[&Rule]) -> Vec<&'static str> {
     let wanted = id.to_ascii_lowercase();
     let mut scored: Vec<(f64, &'static str)> = registry
         .iter()
@@ -68,33 +109,82 @@ pub fn closest(id: &str, registry: &[RuleInfo]) -> Vec<&'static str> {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::diagnostic::Severity;
+    use std::path::Path;
 
-    fn rule(id: &'static str, default_severity: Severity, summary: &'static str) -> RuleInfo {
-        RuleInfo {
-            id,
-            default_severity,
-            summary,
-            page: "",
-            check: None,
-        }
-    }
+    const FLYBACK_MISSING: Rule = Rule {
+        id: "flyback-missing",
+        default_severity: Severity::Error,
+        grades: &[Severity::Error],
+        summary: "No freewheel path",
+        page: "",
+        check: None,
+    };
+    const FLYBACK_REVERSED: Rule = Rule {
+        id: "flyback-reversed",
+        default_severity: Severity::Error,
+        grades: &[Severity::Error],
+        summary: "Diode shorts the rail",
+        page: "",
+        check: None,
+    };
+    const SHOOT_THROUGH: Rule = Rule {
+        id: "shoot-through",
+        default_severity: Severity::Error,
+        grades: &[Severity::Error, Severity::Warning],
+        summary: "Both switches conduct",
+        page: "",
+        check: None,
+    };
+    const PWM_AUDIBLE: Rule = Rule {
+        id: "pwm-audible",
+        default_severity: Severity::Note,
+        grades: &[Severity::Note],
+        summary: "Audible switching",
+        page: "",
+        check: None,
+    };
 
-    fn sample() -> Vec<RuleInfo> {
+    fn sample() -> Vec<&'static Rule> {
         vec![
-            rule("flyback-missing", Severity::Error, "No freewheel path"),
-            rule("flyback-reversed", Severity::Error, "Diode shorts the rail"),
-            rule("pwm-audible", Severity::Note, "Audible switching"),
+            &FLYBACK_MISSING,
+            &FLYBACK_REVERSED,
+            &SHOOT_THROUGH,
+            &PWM_AUDIBLE,
         ]
     }
 
     #[test]
-    fn table_aligns_columns() {
-        let text = table(&sample());
+    fn table_aligns_columns_and_shows_every_grade() {
+        let text = table(&sample(), None);
         let lines: Vec<&str> = text.lines().collect();
-        assert_eq!(lines[0], "RULE              DEFAULT  SUMMARY");
-        assert_eq!(lines[1], "flyback-missing   error    No freewheel path");
-        assert_eq!(lines[3], "pwm-audible       note     Audible switching");
+        assert_eq!(
+            lines[0],
+            "RULE              GIVES          IN EFFECT  SUMMARY"
+        );
+        assert_eq!(
+            lines[1],
+            "flyback-missing   error          as graded  No freewheel path"
+        );
+        assert_eq!(
+            lines[3],
+            "shoot-through     error/warning  as graded  Both switches conduct"
+        );
+        assert_eq!(
+            lines[4],
+            "pwm-audible       note           as graded  Audible switching"
+        );
+    }
+
+    #[test]
+    fn table_shows_the_levels_the_config_sets_whatever_their_case() {
+        let config = Config::parse(
+            "[rules]\nShoot-Through = \"warning\"\npwm-audible = \"off\"\n",
+            Path::new("kickback.toml"),
+        )
+        .unwrap();
+        let text = table(&sample(), Some(&config));
+        assert!(text.contains("shoot-through     error/warning  warning (config)"));
+        assert!(text.contains("pwm-audible       note           off"));
     }
 
     #[test]

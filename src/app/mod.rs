@@ -78,10 +78,7 @@ where
     let code = match &cli.command {
         Command::Check { paths } => check(paths, &cli.global, env, &mut console),
         Command::Report { file } => report_command(file, &cli.global, &mut console),
-        Command::Rules => {
-            console.print(&catalogue::table(crate::rules::REGISTRY));
-            EXIT_CLEAN
-        }
+        Command::Rules => rules_command(&cli.global, &mut console),
         Command::Explain { rule } => explain(rule, &mut console),
         Command::Init { path } => init(path.as_deref(), &mut console),
         Command::Completions { shell } => {
@@ -232,6 +229,30 @@ fn check_options(global: &GlobalArgs) -> CheckOptions {
         },
         config_path: global.config.clone(),
     }
+}
+
+/// `kickback rules`: the registry, with what the configuration in effect (`--config`, or the
+/// `kickback.toml` found from the current folder up) makes of each rule.
+fn rules_command(global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
+    let options = check_options(global);
+    let config = match &options.config_path {
+        Some(path) => Config::load(path).map(Some),
+        None => Config::discover(Path::new(".")),
+    };
+    let config = match config.and_then(|c| {
+        if let Some(c) = &c {
+            crate::check::validate_rule_ids(c)?;
+        }
+        Ok(c)
+    }) {
+        Ok(config) => config,
+        Err(e) => {
+            console.error(&e.to_string());
+            return EXIT_FAILURE;
+        }
+    };
+    console.print(&catalogue::table(crate::rules::REGISTRY, config.as_ref()));
+    EXIT_CLEAN
 }
 
 fn report_command(file: &Path, global: &GlobalArgs, console: &mut Console<'_>) -> u8 {

@@ -201,9 +201,11 @@ impl Reader<'_> {
                     ),
                 ));
             };
-            config.rules.insert(name.get_ref().clone(), level);
+            // Rule IDs are case-insensitive: keep them in one case so every lookup agrees.
+            let id = name.get_ref().to_ascii_lowercase();
+            config.rules.insert(id.clone(), level);
             let position = line_column(self.text, name.span().start);
-            config.rule_spans.insert(name.get_ref().clone(), position);
+            config.rule_spans.insert(id, position);
         }
         Ok(())
     }

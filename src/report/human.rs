@@ -3,8 +3,8 @@
 
 use super::source_window::{has_lone_cr, NetlistSource};
 use super::{format_quantity, ordered, Summary};
-use crate::check::FileReport;
 use crate::diagnostic::{Finding, Severity};
+use crate::outcome::FileReport;
 use crate::source::{FileId, SourceMap, Span};
 use miette::{
     Diagnostic, GraphicalReportHandler, GraphicalTheme, LabeledSpan, SourceCode, SourceSpan,

@@ -2,7 +2,7 @@
 //! `docs/json.md`; `version` changes only when a field changes meaning or goes away.
 
 use super::{failures, locate, ordered, Summary};
-use crate::check::FileReport;
+use crate::outcome::FileReport;
 use crate::source::Location;
 use serde::Serialize;
 use std::collections::BTreeMap;

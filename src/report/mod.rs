@@ -11,8 +11,8 @@ pub mod sarif;
 pub mod short;
 mod source_window;
 
-use crate::check::FileReport;
 use crate::diagnostic::{Finding, Severity};
+use crate::outcome::FileReport;
 use crate::source::{Location, Span};
 
 /// One finding with the file it came from and its resolved location.

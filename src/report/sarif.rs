@@ -2,9 +2,9 @@
 //! registry and the rule pages; files that could not be checked become tool notifications.
 
 use super::{failures, locate, ordered};
-use crate::check::FileReport;
 use crate::diagnostic::Severity;
-use crate::rules::{RuleInfo, REGISTRY};
+use crate::outcome::FileReport;
+use crate::rules::{Rule, REGISTRY};
 use crate::source::Location;
 use serde_json::json;
 use serde_sarif::sarif;
@@ -92,7 +92,12 @@ pub fn log(reports: &[FileReport]) -> sarif::Sarif {
         .name("kickback")
         .version(env!("CARGO_PKG_VERSION"))
         .semantic_version(env!("CARGO_PKG_VERSION"))
-        .rules(REGISTRY.iter().map(descriptor).collect::<Vec<_>>())
+        .rules(
+            REGISTRY
+                .iter()
+                .map(|rule| descriptor(rule))
+                .collect::<Vec<_>>(),
+        )
         .build();
     let run = sarif::Run::builder()
         .tool(sarif::Tool::builder().driver(driver).build())
@@ -119,7 +124,7 @@ pub fn render(reports: &[FileReport]) -> String {
     text
 }
 
-fn descriptor(rule: &RuleInfo) -> sarif::ReportingDescriptor {
+fn descriptor(rule: &Rule) -> sarif::ReportingDescriptor {
     let what = page_section(rule.page, "What it checks").unwrap_or(rule.summary);
     sarif::ReportingDescriptor::builder()
         .id(rule.id)

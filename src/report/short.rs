@@ -2,8 +2,8 @@
 //! form editors, terminals and quickfix lists parse.
 
 use super::ordered;
-use crate::check::FileReport;
 use crate::diagnostic::Severity;
+use crate::outcome::FileReport;
 
 /// One line per finding at or above `min_severity`, in file, line, column order.
 pub fn render(reports: &[FileReport], min_severity: Severity) -> String {

@@ -7,12 +7,21 @@ use super::switch_util::{
     saturated_current, shorted_through, weakest_magnitude,
 };
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::SwitchFacts;
 use crate::circuit::{DeviceId, Kind};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "base-underdrive";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "base-underdrive",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error],
+    summary: "A BJT switch gets too little base current and runs in its active region",
+    page: include_str!("../../rules/base-underdrive.md"),
+    check: Some(check),
+};
 /// Forced β for a saturated switch (common practice).
 const FORCED_BETA: f64 = 10.0;
 /// V_CE of a saturated small-signal switch (from memory: 0.1–0.3 V).

@@ -7,12 +7,21 @@ use super::switch_util::{
     supply_facts, NetIndex, CAP_VOLTAGES,
 };
 use super::units::{format_si, percent};
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::{Side, SwitchFacts};
 use crate::circuit::{DeviceId, Kind, NetId, PinRole};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "bulk-capacitance-missing";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "bulk-capacitance-missing",
+    default_severity: Severity::Warning,
+    grades: &[Severity::Warning],
+    summary: "A rail feeding switched inductive loads lacks bulk capacitance",
+    page: include_str!("../../rules/bulk-capacitance-missing.md"),
+    check: Some(check),
+};
 /// Total capacitance across a rail that counts as bulk (common practice: an electrolytic of
 /// 10 µF or more; decoupling ceramics of 100 nF do not hold a rail up).
 const BULK_F: f64 = 10e-6;

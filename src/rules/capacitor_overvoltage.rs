@@ -4,11 +4,20 @@
 
 use super::switch_util::{finding_at, label, name, next_rating, NetIndex, CAP_VOLTAGES};
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::CapacitorFacts;
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "capacitor-overvoltage";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "capacitor-overvoltage",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error, Severity::Warning],
+    summary: "A capacitor sees more voltage than its rating allows",
+    page: include_str!("../../rules/capacitor-overvoltage.md"),
+    check: Some(check),
+};
 /// Rating wanted over the working voltage (common practice derating).
 const DERATING: f64 = 1.5;
 

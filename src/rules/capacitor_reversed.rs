@@ -3,12 +3,21 @@
 
 use super::switch_util::{finding_at, label, name, net_name, NetIndex};
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::CapacitorFacts;
 use crate::circuit::PinRole;
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "capacitor-reversed";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "capacitor-reversed",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error],
+    summary: "A polarized capacitor is reverse-biased in some state",
+    page: include_str!("../../rules/capacitor-reversed.md"),
+    check: Some(check),
+};
 /// Reverse bias tolerated before it counts (from memory: aluminium electrolytics stand a
 /// fraction of a volt of reverse bias; below this is solver and diode-drop noise).
 const TOLERATED_V: f64 = 0.5;

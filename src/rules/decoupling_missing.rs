@@ -5,12 +5,21 @@
 //! A netlist carries no placement, so one capacitor across the pair counts for every IC on it.
 
 use super::hygiene_util::{between, finding_at, net_name, NetIndex};
+use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Kind, NetId, PinRole};
 use crate::diagnostic::{Finding, Severity};
 use std::collections::HashMap;
 
-const RULE: &str = "decoupling-missing";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "decoupling-missing",
+    default_severity: Severity::Warning,
+    grades: &[Severity::Warning],
+    summary: "An IC has no capacitor across its supply pins",
+    page: include_str!("../../rules/decoupling-missing.md"),
+    check: Some(check),
+};
 /// Common practice: a 100 nF ceramic at the supply pins.
 const DECOUPLING_F: f64 = 100e-9;
 

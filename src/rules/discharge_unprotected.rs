@@ -6,12 +6,21 @@ use super::timer_util::{
     at_state, element, finding_at, is_pot, is_resistor, label, name, ohms_of, rated_or,
 };
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::TimerFacts;
 use crate::circuit::{DeviceId, Kind, PinRole};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "discharge-unprotected";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "discharge-unprotected",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error, Severity::Warning, Severity::Note],
+    summary: "A 555's discharge pin can sink more current than it survives",
+    page: include_str!("../../rules/discharge-unprotected.md"),
+    check: Some(check),
+};
 
 /// Below this the pin meets the supply "with no resistance at all" (a pot's end, a wire).
 const DEAD_SHORT_OHMS: f64 = 1.0;

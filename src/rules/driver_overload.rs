@@ -4,13 +4,22 @@
 use super::eseries::{ohms, round_up, E12};
 use super::switch_util::{drive_level, finding_at, kind, label, name, rated_or, timer_facts};
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::Range;
 use crate::circuit::{DeviceId, Kind, NetId, PinRole};
 use crate::diagnostic::{Finding, Severity};
 use std::collections::BTreeMap;
 
-const RULE: &str = "driver-overload";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "driver-overload",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error],
+    summary: "An output pin would source or sink more than its rating",
+    page: include_str!("../../rules/driver-overload.md"),
+    check: Some(check),
+};
 /// V_BE of a silicon switch driven hard (from memory).
 const VBE_ON_V: f64 = 0.8;
 

@@ -4,11 +4,20 @@ use super::eseries::{self, ohms};
 use super::timer_util::{at_state, farads_of, finding_at, label, name, percent};
 use super::trigger_overlap::timing_part;
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::{TimerFacts, TimerMode};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "duty-overrun";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "duty-overrun",
+    default_severity: Severity::Warning,
+    grades: &[Severity::Warning],
+    summary: "A one-shot's pulse reaches its trigger period",
+    page: include_str!("../../rules/duty-overrun.md"),
+    check: Some(check),
+};
 
 /// Share of the trigger period a pulse may fill before the capacitor has too little time to
 /// reset (common practice).

@@ -4,12 +4,21 @@
 //! Voltage sources are left to `supply-shorted`, where a shorted source is an error.
 
 use super::hygiene_util::{finding_at, net_name, Once};
+use super::Rule;
 use super::RuleContext;
 use crate::circuit::Kind;
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::FlatElement;
 
-const RULE: &str = "element-shorted";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "element-shorted",
+    default_severity: Severity::Warning,
+    grades: &[Severity::Warning],
+    summary: "Both terminals of an element sit on one net",
+    page: include_str!("../../rules/element-shorted.md"),
+    check: Some(check),
+};
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let mut once = Once::default();

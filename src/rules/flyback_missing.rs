@@ -6,12 +6,21 @@ use super::switch_util::{
     name, net_name, rail, saturated_current, NetIndex,
 };
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::{Range, Side, SwitchFacts};
 use crate::circuit::{DeviceId, Kind};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "flyback-missing";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "flyback-missing",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error],
+    summary: "An inductive load is switched with no freewheeling path",
+    page: include_str!("../../rules/flyback-missing.md"),
+    check: Some(check),
+};
 /// Below this a plain inductor is a parasitic (a lead, a trace, a model's package): its
 /// turn-off spike is part of every switching edge, not a missing diode (common practice: real
 /// chokes and windings start in the microhenries).

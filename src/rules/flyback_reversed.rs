@@ -3,12 +3,21 @@
 
 use super::switch_util::{branch_ends, finding_at, label, load_device, name, net_name, rail};
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::{Freewheel, FreewheelKind, Side, SwitchFacts};
 use crate::circuit::DeviceId;
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "flyback-reversed";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "flyback-reversed",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error],
+    summary: "A freewheel diode is fitted backwards and shorts the supply through the switch",
+    page: include_str!("../../rules/flyback-reversed.md"),
+    check: Some(check),
+};
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let mut reported: Vec<DeviceId> = Vec::new();

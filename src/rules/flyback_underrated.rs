@@ -5,12 +5,21 @@ use super::switch_util::{
     diode_hint, duty_text, finding_at, is_pwm, kind, label, load_device, load_of, name, rail, rated,
 };
 use super::units::{format_si, percent};
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::{Freewheel, FreewheelKind, SwitchFacts};
 use crate::circuit::{DeviceId, Kind};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "flyback-underrated";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "flyback-underrated",
+    default_severity: Severity::Warning,
+    grades: &[Severity::Error, Severity::Warning],
+    summary: "A freewheel diode's voltage, current or recovery rating does not fit the load",
+    page: include_str!("../../rules/flyback-underrated.md"),
+    check: Some(check),
+};
 /// Reverse rating wanted over the rail (common practice: the rail rings and spikes).
 const VOLTAGE_MARGIN: f64 = 2.0;
 /// A diode slower than this is standard recovery (the 1N400x family is a few µs; from memory).

@@ -7,12 +7,21 @@ use super::switch_util::{
     SwitchIndex,
 };
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::SwitchFacts;
 use crate::circuit::Kind;
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "gate-cannot-turn-off";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "gate-cannot-turn-off",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error, Severity::Warning],
+    summary: "The off-state gate-source voltage is too close to the threshold",
+    page: include_str!("../../rules/gate-cannot-turn-off.md"),
+    check: Some(check),
+};
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = SwitchIndex::new(cx);

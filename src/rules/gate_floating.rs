@@ -9,11 +9,20 @@
 //! reached only through capacitors, diodes, switches or connectors, or by nothing at all.
 
 use super::hygiene_util::{finding_at, net_name, shown, Trace, Tracer};
+use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Device, DeviceId, Kind, PinRole};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "gate-floating";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "gate-floating",
+    default_severity: Severity::Warning,
+    grades: &[Severity::Warning],
+    summary: "A gate or base whose driver can float has no pull resistor",
+    page: include_str!("../../rules/gate-floating.md"),
+    check: Some(check),
+};
 const SHOWN: usize = 4;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {

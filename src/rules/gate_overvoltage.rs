@@ -4,11 +4,20 @@
 use super::eseries::{ohms, round_down, round_up, E12};
 use super::switch_util::{finding_at, kind, label, name, polarity, rated_or};
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::{Range, SwitchFacts};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "gate-overvoltage";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "gate-overvoltage",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error],
+    summary: "The on-state gate-source voltage exceeds the switch's rating",
+    page: include_str!("../../rules/gate-overvoltage.md"),
+    check: Some(check),
+};
 /// Gate-source resistor of the suggested divider (common practice).
 const PULL_OHMS: f64 = 10e3;
 /// Zener voltages commonly stocked (IEC 60063 E24 steps that zener ranges use).

@@ -11,12 +11,21 @@ use super::switch_util::{
     load_of, mos_gain, name, rated_or, rds_at, saturated_current, shorted_through,
 };
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::SwitchFacts;
 use crate::circuit::{Kind, Rated};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "gate-underdrive";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "gate-underdrive",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error, Severity::Note],
+    summary: "The gate is driven too weakly to enhance the switch at the load current",
+    page: include_str!("../../rules/gate-underdrive.md"),
+    check: Some(check),
+};
 /// Margin above the edge of the triode region (DESIGN: 1 V).
 const MARGIN_V: f64 = 1.0;
 /// A drive within this share of `vgs_rated` counts as the rated drive: the on-resistance rises

@@ -96,7 +96,7 @@ pub fn is_global(cx: &RuleContext<'_>, net: NetId) -> bool {
 
 /// A finding on an element's line, with its instance path and the instance lines that placed it.
 pub fn finding_at(
-    rule: &str,
+    rule: super::Rule,
     severity: Severity,
     element: &FlatElement,
     message: impl Into<String>,

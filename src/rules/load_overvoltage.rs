@@ -6,12 +6,21 @@ use super::switch_util::{
     SwitchIndex,
 };
 use super::units::{format_si, percent};
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::{LoadFacts, SwitchFacts};
 use crate::circuit::{PinRole, Rated};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "load-overvoltage";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "load-overvoltage",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error, Severity::Warning],
+    summary: "A load's effective or peak voltage exceeds its rating",
+    page: include_str!("../../rules/load-overvoltage.md"),
+    check: Some(check),
+};
 /// Effective voltage over rating that fails the load (common practice).
 const EFFECTIVE_ERROR: f64 = 2.0;
 /// Peak voltage over rating that fails the load (common practice).

@@ -5,14 +5,22 @@
 //! per missing file, listing what it would have defined, instead of an error per element.
 
 use super::hygiene_util::{finding_at, Once};
+use super::Rule;
 use super::RuleContext;
-use crate::circuit::parts;
+use crate::circuit::{glob, parts};
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::FlatElement;
-use globset::{GlobBuilder, GlobMatcher};
 use std::collections::{BTreeMap, HashSet};
 
-const RULE: &str = "model-missing";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "model-missing",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error, Severity::Warning],
+    summary: "An element names a model or subcircuit that is defined nowhere",
+    page: include_str!("../../rules/model-missing.md"),
+    check: Some(check),
+};
 /// Uses labelled per missing include; the message lists every name.
 const MAX_LABELS: usize = 8;
 
@@ -52,7 +60,7 @@ struct Known<'a> {
     cx: &'a RuleContext<'a>,
     subckts: HashSet<String>,
     exact_parts: HashSet<String>,
-    glob_parts: Vec<GlobMatcher>,
+    glob_parts: Vec<&'a str>,
     elements: HashSet<String>,
 }
 
@@ -61,11 +69,8 @@ impl<'a> Known<'a> {
         let mut exact_parts = HashSet::new();
         let mut glob_parts = Vec::new();
         for (pattern, _) in &cx.config.parts {
-            if pattern.contains(['*', '?', '[']) {
-                let glob = GlobBuilder::new(pattern).case_insensitive(true).build();
-                if let Ok(glob) = glob {
-                    glob_parts.push(glob.compile_matcher());
-                }
+            if glob::is_glob(pattern) {
+                glob_parts.push(pattern.as_str());
             } else {
                 exact_parts.insert(pattern.to_ascii_lowercase());
             }
@@ -83,7 +88,7 @@ impl<'a> Known<'a> {
         let lower = name.to_ascii_lowercase();
         self.subckts.contains(&lower)
             || self.exact_parts.contains(&lower)
-            || self.glob_parts.iter().any(|g| g.is_match(name))
+            || self.glob_parts.iter().any(|g| glob::matches(g, name))
             || self.elements.contains(&element.path.to_ascii_lowercase())
             || parts::keeps_whole(name, self.cx.config)
     }

@@ -5,13 +5,22 @@
 //! different instance lines (two `X` lines with one name), those lines are the ones shown.
 
 use super::hygiene_util::{fold_hash, Once};
+use super::Rule;
 use super::RuleContext;
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::FlatElement;
 use crate::source::Span;
 use std::collections::HashSet;
 
-const RULE: &str = "name-duplicate";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "name-duplicate",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error],
+    summary: "Two elements share one name",
+    page: include_str!("../../rules/name-duplicate.md"),
+    check: Some(check),
+};
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let elements = &cx.netlist.elements;

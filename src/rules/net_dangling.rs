@@ -9,13 +9,22 @@ use super::hygiene_util::{
     finding_at, is_global, is_ground, is_no_connect_name, is_part, net_name,
 };
 use super::hygiene_util::{NetIndex, Once};
+use super::Rule;
 use super::RuleContext;
 use crate::circuit::NetId;
 use crate::diagnostic::{Finding, Severity};
 use crate::source::Span;
 use std::collections::HashMap;
 
-const RULE: &str = "net-dangling";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "net-dangling",
+    default_severity: Severity::Warning,
+    grades: &[Severity::Warning],
+    summary: "A net with a single connection, usually a typo",
+    page: include_str!("../../rules/net-dangling.md"),
+    check: Some(check),
+};
 /// Elements either side of a dangling net's element whose nets are candidates for the name it
 /// was meant to have.
 const WINDOW: usize = 256;

@@ -9,11 +9,20 @@
 use super::hygiene_util::{
     finding_at, is_global, is_ground, is_no_connect_name, is_part, net_name, pin_label, NetIndex,
 };
+use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Kind, PinRole};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "pin-unconnected";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "pin-unconnected",
+    default_severity: Severity::Warning,
+    grades: &[Severity::Warning],
+    summary: "A part pin sits on a net of its own",
+    page: include_str!("../../rules/pin-unconnected.md"),
+    check: Some(check),
+};
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);

@@ -4,12 +4,21 @@
 use super::eseries::{ohms, round_up, E12};
 use super::switch_util::{dc_resistance, finding_at, label, name, timer_facts, NetIndex};
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::ResistorFacts;
 use crate::circuit::{DeviceId, Kind, Rated};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "pot-wiper-overcurrent";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "pot-wiper-overcurrent",
+    default_severity: Severity::Warning,
+    grades: &[Severity::Warning],
+    summary: "A pot's wiper carries more current than it is rated for",
+    page: include_str!("../../rules/pot-wiper-overcurrent.md"),
+    check: Some(check),
+};
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);

@@ -10,6 +10,7 @@ use super::hygiene_util::{
     astable, astable_frequency, capacitance, device_element, finding_at, resistance, shown,
     NetIndex, Tracer,
 };
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::TimerMode;
 use crate::circuit::{DeviceId, Kind, NetId, PinRole};
@@ -19,7 +20,15 @@ use crate::rules::eseries::{round_down, E12};
 use crate::rules::units::format_si;
 use std::collections::BTreeMap;
 
-const RULE: &str = "pwm-audible";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "pwm-audible",
+    default_severity: Severity::Note,
+    grades: &[Severity::Note],
+    summary: "The switching frequency lies in the audible band",
+    page: include_str!("../../rules/pwm-audible.md"),
+    check: Some(check),
+};
 /// The band of human hearing, commonly quoted as 20 Hz to 20 kHz.
 const BAND_LOW_HZ: f64 = 20.0;
 const BAND_HIGH_HZ: f64 = 20e3;

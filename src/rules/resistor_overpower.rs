@@ -7,12 +7,21 @@ use super::switch_util::{
     NetIndex, RESISTOR_WATTS,
 };
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::ResistorFacts;
 use crate::circuit::{DeviceId, Kind};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "resistor-overpower";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "resistor-overpower",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error, Severity::Warning],
+    summary: "A resistor dissipates more than its power rating in some state",
+    page: include_str!("../../rules/resistor-overpower.md"),
+    check: Some(check),
+};
 /// Share of the rating a resistor may run at continuously (common practice derating).
 const DERATING: f64 = 0.6;
 

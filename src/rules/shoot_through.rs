@@ -10,13 +10,22 @@ use super::switch_util::{
     SwitchIndex,
 };
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::SwitchFacts;
 use crate::circuit::{DeviceId, Kind, Rated};
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::Waveform;
 
-const RULE: &str = "shoot-through";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "shoot-through",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error, Severity::Warning],
+    summary: "Both switches of a bridge leg can conduct at once",
+    page: include_str!("../../rules/shoot-through.md"),
+    check: Some(check),
+};
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = SwitchIndex::new(cx);

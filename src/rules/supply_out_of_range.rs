@@ -3,12 +3,21 @@
 
 use super::switch_util::{finding_at, is_ground, label, name, supply_range, timer_facts, NetIndex};
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::Range;
 use crate::circuit::{DeviceId, Kind, PinRole, Rated};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "supply-out-of-range";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "supply-out-of-range",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error, Severity::Warning],
+    summary: "A part's supply is outside its operating or absolute range at some corner",
+    page: include_str!("../../rules/supply-out-of-range.md"),
+    check: Some(check),
+};
 
 /// Operating minimum, maximum and absolute maximum when part knowledge gave none
 /// (DESIGN §6: bipolar 555 4.5–16 V, abs max 18 V; CMOS 555 2–15 V; from memory).

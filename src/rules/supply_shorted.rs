@@ -7,6 +7,7 @@
 //! Equal sources in parallel are not reported: no current flows between them.
 
 use super::hygiene_util::{device_element, finding_at, net_name, shown};
+use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Device, DeviceId, Kind, NetId};
 use crate::diagnostic::{Finding, Severity};
@@ -15,7 +16,15 @@ use crate::rules::units::format_si;
 use petgraph::unionfind::UnionFind;
 use std::collections::{HashMap, HashSet, VecDeque};
 
-const RULE: &str = "supply-shorted";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "supply-shorted",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error],
+    summary: "Voltage sources in parallel or a source across a short",
+    page: include_str!("../../rules/supply-shorted.md"),
+    check: Some(check),
+};
 const MAX_PATH_LABELS: usize = 6;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {

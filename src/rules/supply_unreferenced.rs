@@ -7,6 +7,7 @@
 //! a lone net with one pin to `net-dangling` and `pin-unconnected`.
 
 use super::hygiene_util::{device_element, finding_at, net_name, shown, Tracer};
+use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Device, DeviceId, Kind, NetId, PinRole};
 use crate::diagnostic::{Finding, Severity};
@@ -14,7 +15,16 @@ use crate::rules::units::format_si;
 use petgraph::unionfind::UnionFind;
 use std::collections::{BTreeMap, HashSet};
 
-const RULE: &str = "supply-unreferenced";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "supply-unreferenced",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error],
+    summary:
+        "A section with no DC path to the reference, or a switch and driver on different references",
+    page: include_str!("../../rules/supply-unreferenced.md"),
+    check: Some(check),
+};
 const SHOWN_NETS: usize = 3;
 const SHOWN_BLOCKERS: usize = 4;
 

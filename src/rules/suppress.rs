@@ -78,10 +78,10 @@ pub fn apply(
     outcome.findings.extend(extra);
     let mut kept = Vec::with_capacity(outcome.findings.len());
     for mut finding in std::mem::take(&mut outcome.findings) {
-        match config.rules.get(&finding.rule) {
+        match config.rule_level(&finding.rule) {
             Some(RuleLevel::Off) => outcome.suppressed += 1,
             Some(RuleLevel::Set(level)) => {
-                finding.severity = *level;
+                finding.severity = level;
                 kept.push(finding);
             }
             None => kept.push(finding),

@@ -9,11 +9,20 @@ use super::switch_util::{
     rated_or, rds_at, shorted_through,
 };
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::SwitchFacts;
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "switch-dissipation";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "switch-dissipation",
+    default_severity: Severity::Warning,
+    grades: &[Severity::Warning],
+    summary: "A switch's conduction loss exceeds what its package can shed",
+    page: include_str!("../../rules/switch-dissipation.md"),
+    check: Some(check),
+};
 /// Hot-die factor on a MOSFET's on-resistance (common practice).
 const HOT_DIE: f64 = 1.5;
 

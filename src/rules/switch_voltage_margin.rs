@@ -4,12 +4,21 @@
 
 use super::switch_util::{finding_at, kind, label, name, next_rating, rail, rated, VDS_CLASSES};
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::{FreewheelKind, SwitchFacts};
 use crate::circuit::{DeviceId, Kind, Rated};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "switch-voltage-margin";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "switch-voltage-margin",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error, Severity::Warning],
+    summary: "A switch's voltage rating leaves too little margin over rail and clamp",
+    page: include_str!("../../rules/switch-voltage-margin.md"),
+    check: Some(check),
+};
 /// Rating wanted over the turn-off voltage (common practice derating).
 const DERATING: f64 = 1.25;
 /// Forward drop of a freewheel diode at the load current when its data gives none

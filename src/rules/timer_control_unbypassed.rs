@@ -6,11 +6,20 @@
 //! deliberate drive.
 
 use super::hygiene_util::{finding_at, is_ground, net_name, NetIndex};
+use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Kind, PinRole};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "timer-control-unbypassed";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "timer-control-unbypassed",
+    default_severity: Severity::Note,
+    grades: &[Severity::Note],
+    summary: "A timer's control pin has no capacitor to ground",
+    page: include_str!("../../rules/timer-control-unbypassed.md"),
+    check: Some(check),
+};
 /// Common practice for the CTRL bypass capacitor.
 const BYPASS_F: f64 = 10e-9;
 

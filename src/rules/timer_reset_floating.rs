@@ -6,11 +6,20 @@
 //! purpose is not a wiring mistake).
 
 use super::hygiene_util::{finding_at, net_name, shown, Tracer};
+use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Kind, PinRole};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "timer-reset-floating";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "timer-reset-floating",
+    default_severity: Severity::Warning,
+    grades: &[Severity::Warning],
+    summary: "A timer's reset pin is left floating",
+    page: include_str!("../../rules/timer-reset-floating.md"),
+    check: Some(check),
+};
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     if !cx.circuit.devices.iter().any(|d| d.kind.is_timer()) {

@@ -3,11 +3,20 @@
 use super::eseries::{self, ohms};
 use super::timer_util::{at_state, finding_at, is_pot, is_resistor, label, name, ohms_of};
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::{StuckPhase, TimerFacts, TimerMode};
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "timer-stuck";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "timer-stuck",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error],
+    summary: "A timer phase can never reach its threshold",
+    page: include_str!("../../rules/timer-stuck.md"),
+    check: Some(check),
+};
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     for t in &cx.analysis.timers {

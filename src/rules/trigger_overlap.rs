@@ -6,12 +6,21 @@ use super::timer_util::{
     at_state, farads_of, finding_at, is_diode, is_pot, is_resistor, label, name, ohms_of,
 };
 use super::units::format_si;
+use super::Rule;
 use super::RuleContext;
 use crate::analysis::{TimerFacts, TimerMode};
 use crate::circuit::DeviceId;
 use crate::diagnostic::{Finding, Severity};
 
-const RULE: &str = "trigger-overlap";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "trigger-overlap",
+    default_severity: Severity::Error,
+    grades: &[Severity::Error],
+    summary: "A one-shot's trigger stays low longer than its shortest pulse",
+    page: include_str!("../../rules/trigger-overlap.md"),
+    check: Some(check),
+};
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     for t in &cx.analysis.timers {

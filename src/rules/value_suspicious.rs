@@ -13,13 +13,22 @@ use super::hygiene_util::{
     astable, astable_frequency, capacitance, device_element, finding_at, monostable,
     monostable_width, net_name, resistance, NetIndex, Once,
 };
+use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Device, DeviceId, Kind, NetId, PinRole};
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::FlatElement;
 use crate::rules::units::format_si;
 
-const RULE: &str = "value-suspicious";
+/// This rule's identity: its ID, the severities it gives and its page.
+pub const RULE: Rule = Rule {
+    id: "value-suspicious",
+    default_severity: Severity::Warning,
+    grades: &[Severity::Warning],
+    summary: "A value that is almost surely a unit slip",
+    page: include_str!("../../rules/value-suspicious.md"),
+    check: Some(check),
+};
 /// SPICE `M` is milli; `MEG` is mega: the slip multiplies by 10⁻⁹.
 const MILLI_TO_MEGA: f64 = 1e9;
 

@@ -44,7 +44,7 @@ pub fn is_ground(cx: &RuleContext<'_>, net: NetId) -> bool {
 }
 /// A finding on a device's line, with its instance path and the instance lines that placed it.
 pub fn finding_at(
-    rule: &str,
+    rule: crate::rules::Rule,
     severity: Severity,
     cx: &RuleContext<'_>,
     id: DeviceId,
