@@ -16,3 +16,4 @@ pub mod outcome;
 pub mod report;
 pub mod rules;
 pub mod source;
+pub mod units;

@@ -160,104 +160,11 @@ fn plural(n: usize, one: &str, many: &str) -> String {
     format!("{n} {}", if n == 1 { one } else { many })
 }
 
-/// Units that take an SI prefix when written for a person.
-const PREFIXED_UNITS: &[&str] = &["V", "A", "W", "Ω", "ohm", "F", "H", "Hz", "s", "J", "C"];
-
-/// Writes a number in SI base units the way an engineer reads it: `2.2 mH`, `1.8 A`,
-/// `4.7 kΩ`, four significant digits at most. Unitless numbers are written plainly.
-/// With `ascii`, `µ` becomes `u` and `Ω` becomes `ohm`.
-pub fn format_quantity(value: f64, unit: &str, ascii: bool) -> String {
-    let unit = if ascii && unit == "Ω" { "ohm" } else { unit };
-    let number = if !value.is_finite() {
-        format!("{value}")
-    } else if PREFIXED_UNITS.contains(&unit) && value != 0.0 {
-        let (scaled, prefix) = engineering(value);
-        let prefix = if ascii && prefix == "µ" { "u" } else { prefix };
-        return format!("{} {prefix}{unit}", significant(scaled));
-    } else {
-        significant(value)
-    };
-    if unit.is_empty() {
-        number
-    } else {
-        format!("{number} {unit}")
-    }
-}
-
-/// Scales a non-zero finite value into 1 ≤ |x| < 1000 with its SI prefix.
-fn engineering(value: f64) -> (f64, &'static str) {
-    const PREFIXES: [(i32, &str); 9] = [
-        (12, "T"),
-        (9, "G"),
-        (6, "M"),
-        (3, "k"),
-        (0, ""),
-        (-3, "m"),
-        (-6, "µ"),
-        (-9, "n"),
-        (-12, "p"),
-    ];
-    let magnitude = value.abs();
-    for &(exponent, prefix) in &PREFIXES {
-        let scale = 10f64.powi(exponent);
-        // Compare after rounding so that 999.96 m is shown as 1 (not 1000 m).
-        if round_significant(magnitude / scale) >= 1.0 {
-            return (value / scale, prefix);
-        }
-    }
-    (value / 1e-15, "f")
-}
-
-fn round_significant(value: f64) -> f64 {
-    if value == 0.0 || !value.is_finite() {
-        return value;
-    }
-    let digits = 4 - 1 - value.abs().log10().floor() as i32;
-    let factor = 10f64.powi(digits.clamp(-300, 300));
-    (value * factor).round() / factor
-}
-
-/// Four significant digits, trailing zeros trimmed, no exponent for everyday magnitudes.
-fn significant(value: f64) -> String {
-    if value == 0.0 {
-        return "0".to_string();
-    }
-    let magnitude = value.abs();
-    if !(1e-4..1e9).contains(&magnitude) {
-        return format!("{value:.3e}");
-    }
-    let rounded = round_significant(value);
-    let decimals = (3 - rounded.abs().log10().floor() as i32).clamp(0, 12) as usize;
-    let text = format!("{rounded:.decimals$}");
-    let text = if text.contains('.') {
-        text.trim_end_matches('0').trim_end_matches('.').to_string()
-    } else {
-        text
-    };
-    if text == "-0" {
-        "0".to_string()
-    } else {
-        text
-    }
-}
+pub use crate::units::format_quantity;
 
 #[cfg(test)]
 mod tests {
     use super::*;
-
-    #[test]
-    fn quantities_take_si_prefixes() {
-        assert_eq!(format_quantity(3.3, "V", false), "3.3 V");
-        assert_eq!(format_quantity(0.0022, "H", false), "2.2 mH");
-        assert_eq!(format_quantity(4700.0, "Ω", false), "4.7 kΩ");
-        assert_eq!(format_quantity(4700.0, "Ω", true), "4.7 kohm");
-        assert_eq!(format_quantity(1e-5, "F", false), "10 µF");
-        assert_eq!(format_quantity(1e-5, "F", true), "10 uF");
-        assert_eq!(format_quantity(0.99996, "V", false), "1 V");
-        assert_eq!(format_quantity(-0.012, "A", false), "-12 mA");
-        assert_eq!(format_quantity(1234.5678, "Hz", false), "1.235 kHz");
-        assert_eq!(format_quantity(0.0, "W", false), "0 W");
-    }
 
     #[test]
     fn plain_numbers_stay_plain() {
