@@ -8,6 +8,7 @@
 
 use crate::circuit::{Circuit, DeviceId, Kind, NetId, PinRole};
 use crate::netlist::FlatNetlist;
+use petgraph::unionfind::UnionFind;
 
 /// What holds a fixed net at its potential.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -114,7 +115,7 @@ pub fn partition(circuit: &Circuit, netlist: &FlatNetlist) -> Partition {
         if fixed[net].is_some() {
             continue;
         }
-        let root = uf.find(net);
+        let root = uf.find_mut(net);
         if root_component[root] == usize::MAX {
             root_component[root] = components.len();
             components.push(Component::default());
@@ -148,42 +149,5 @@ pub fn partition(circuit: &Circuit, netlist: &FlatNetlist) -> Partition {
         net_component,
         fixed,
         device_components,
-    }
-}
-
-struct UnionFind {
-    parent: Vec<usize>,
-    rank: Vec<u8>,
-}
-
-impl UnionFind {
-    fn new(n: usize) -> Self {
-        UnionFind {
-            parent: (0..n).collect(),
-            rank: vec![0; n],
-        }
-    }
-
-    fn find(&mut self, mut x: usize) -> usize {
-        while self.parent[x] != x {
-            self.parent[x] = self.parent[self.parent[x]];
-            x = self.parent[x];
-        }
-        x
-    }
-
-    fn union(&mut self, a: usize, b: usize) {
-        let (ra, rb) = (self.find(a), self.find(b));
-        if ra == rb {
-            return;
-        }
-        match self.rank[ra].cmp(&self.rank[rb]) {
-            std::cmp::Ordering::Less => self.parent[ra] = rb,
-            std::cmp::Ordering::Greater => self.parent[rb] = ra,
-            std::cmp::Ordering::Equal => {
-                self.parent[rb] = ra;
-                self.rank[ra] = self.rank[ra].saturating_add(1);
-            }
-        }
     }
 }
