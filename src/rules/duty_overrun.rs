@@ -1,8 +1,9 @@
 //! `duty-overrun`: a one-shot's pulse reaches its trigger period. See `rules/duty-overrun.md`.
 
 use super::eseries::{self, ohms};
-use super::timer_util::{at_state, farads_of, finding_at, label, name, percent};
-use super::trigger_overlap::timing_part;
+use super::timer_util::{
+    at_state, farads_of, finding_at, label, name, percent, timing_part, ONE_SHOT_MAX_SHARE,
+};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
@@ -19,10 +20,6 @@ pub const RULE: Rule = Rule {
     check: Some(check),
 };
 
-/// Share of the trigger period a pulse may fill before the capacitor has too little time to
-/// reset (common practice).
-pub const MAX_SHARE: f64 = 0.9;
-
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     for t in &cx.analysis.timers {
         if t.mode == TimerMode::Monostable {
@@ -35,7 +32,7 @@ fn overrun(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
     let trigger = t.trigger.as_ref()?;
     let width = t.high_s.as_ref()?;
     let period = &trigger.period_s;
-    if period.min <= 0.0 || width.max < MAX_SHARE * period.min {
+    if period.min <= 0.0 || width.max < ONE_SHOT_MAX_SHARE * period.min {
         return None;
     }
     let timer = name(cx, t.device);
@@ -76,10 +73,10 @@ fn overrun(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
     }
 
     // 555 datasheet: width ≈ 1.1·R·C; keep the longest pulse under 0.9 of the period.
-    let limit = MAX_SHARE * period.min;
+    let limit = ONE_SHOT_MAX_SHARE * period.min;
     let mut help = format!(
         "keep {timer}'s longest pulse under {} × {} = {}",
-        MAX_SHARE,
+        ONE_SHOT_MAX_SHARE,
         format_si(period.min, "s"),
         format_si(limit, "s")
     );
@@ -110,7 +107,7 @@ fn overrun(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
     );
     f = f.with_value(
         "max_share",
-        MAX_SHARE,
+        ONE_SHOT_MAX_SHARE,
         "",
         "kickback default (common practice)",
     );

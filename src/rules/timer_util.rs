@@ -3,7 +3,7 @@
 
 use super::units::{format_si, sig3};
 use super::RuleContext;
-use crate::analysis::Range;
+use crate::analysis::{Range, TimerFacts};
 use crate::circuit::{DeviceId, Kind, Rated};
 use crate::netlist::FlatElement;
 
@@ -94,4 +94,28 @@ pub fn is_resistor(cx: &RuleContext<'_>, id: DeviceId) -> bool {
 
 pub fn is_diode(cx: &RuleContext<'_>, id: DeviceId) -> bool {
     kind(cx, id).is_some_and(Kind::is_diode_like)
+}
+
+/// Share of the trigger period a one-shot's pulse may fill before its capacitor has too little
+/// time to reset (common practice): `duty-overrun`'s threshold, which `trigger-overlap`'s fix
+/// also keeps to.
+pub const ONE_SHOT_MAX_SHARE: f64 = 0.9;
+
+/// The part that sets a one-shot's pulse: a pot in its charge path, else its largest resistor.
+pub fn timing_part(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<DeviceId> {
+    t.charge_path
+        .iter()
+        .copied()
+        .find(|&p| is_pot(cx, p))
+        .or_else(|| {
+            t.charge_path
+                .iter()
+                .copied()
+                .filter(|&p| is_resistor(cx, p))
+                .max_by(|a, b| {
+                    ohms_of(cx, *a)
+                        .unwrap_or(0.0)
+                        .total_cmp(&ohms_of(cx, *b).unwrap_or(0.0))
+                })
+        })
 }

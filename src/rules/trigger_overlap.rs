@@ -4,12 +4,12 @@
 use super::eseries::{self, ohms};
 use super::timer_util::{
     at_state, farads_of, finding_at, is_diode, is_pot, is_resistor, label, name, ohms_of,
+    timing_part, ONE_SHOT_MAX_SHARE,
 };
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
 use crate::analysis::{TimerFacts, TimerMode};
-use crate::circuit::DeviceId;
 use crate::diagnostic::{Finding, Severity};
 
 /// This rule's identity: its ID, the severities it gives and its page.
@@ -105,7 +105,7 @@ fn overlap(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
         // before 0.9 of the trigger period (see `duty-overrun`).
         let lo = eseries::round_up(low.max / (1.1 * c), &eseries::E12);
         let hi = eseries::round_down(
-            super::duty_overrun::MAX_SHARE * trigger.period_s.min / (1.1 * c),
+            ONE_SHOT_MAX_SHARE * trigger.period_s.min / (1.1 * c),
             &eseries::E12,
         );
         if let (Some(lo), Some(hi)) = (lo, hi) {
@@ -191,23 +191,4 @@ fn also(state: &str) -> String {
         "" => String::new(),
         s => format!(", {}", s.trim_start_matches('(').trim_end_matches(')')),
     }
-}
-
-/// The part that sets a one-shot's pulse: a pot in its charge path, else its largest resistor.
-pub(super) fn timing_part(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<DeviceId> {
-    t.charge_path
-        .iter()
-        .copied()
-        .find(|&p| is_pot(cx, p))
-        .or_else(|| {
-            t.charge_path
-                .iter()
-                .copied()
-                .filter(|&p| is_resistor(cx, p))
-                .max_by(|a, b| {
-                    ohms_of(cx, *a)
-                        .unwrap_or(0.0)
-                        .total_cmp(&ohms_of(cx, *b).unwrap_or(0.0))
-                })
-        })
 }
