@@ -65,24 +65,7 @@ impl Hasher for FastHasher {
 
 pub(crate) type FastMap<K, V> = HashMap<K, V, BuildHasherDefault<FastHasher>>;
 
-/// Hash of a name with ASCII case folded.
-fn caseless_hash(name: &str) -> u64 {
-    let mut h = FastHasher::default();
-    let bytes = name.as_bytes();
-    let mut chunks = bytes.chunks_exact(8);
-    for chunk in &mut chunks {
-        let mut word = [0u8; 8];
-        word.copy_from_slice(chunk);
-        h.add(u64::from_le_bytes(word.map(|b| b.to_ascii_lowercase())));
-    }
-    let rest = chunks.remainder();
-    let mut word = [0u8; 8];
-    for (w, b) in word.iter_mut().zip(rest) {
-        *w = b.to_ascii_lowercase();
-    }
-    h.add(u64::from_le_bytes(word) ^ ((rest.len() as u64) << 56));
-    h.finish()
-}
+use crate::netlist::caseless_hash;
 
 /// Net names → nets, case-insensitive.
 #[derive(Clone, Debug, Default)]

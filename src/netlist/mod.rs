@@ -30,7 +30,7 @@ pub mod value;
 mod write;
 
 pub use flat::*;
-pub use text::decode;
+pub use text::{caseless_hash, decode};
 pub use write::write_flat;
 
 use crate::diagnostic::Finding;

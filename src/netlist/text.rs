@@ -80,8 +80,10 @@ impl Hash for Caseless<'_> {
     }
 }
 
-/// FNV-1a over the lower-cased bytes: names are short, so this beats a general hasher.
-fn caseless_hash(name: &str) -> u64 {
+/// FNV-1a over the lower-cased bytes: names are short, so this beats a general hasher. The one
+/// case-insensitive name hash of the crate (net, element and model tables all use it); equal
+/// keys still need the names compared.
+pub fn caseless_hash(name: &str) -> u64 {
     let mut h: u64 = 0xcbf2_9ce4_8422_2325;
     for b in name.bytes() {
         h ^= u64::from(b.to_ascii_lowercase());

@@ -107,14 +107,6 @@ pub fn finding_at(
     finding
 }
 
-/// FNV-1a over the ASCII-lower-cased bytes: a cheap case-insensitive key for large name tables
-/// (compare the names themselves when keys match; distinct names may share a key).
-pub fn fold_hash(text: &str) -> u64 {
-    text.bytes().fold(0xcbf2_9ce4_8422_2325, |h, b| {
-        (h ^ u64::from(b.to_ascii_lowercase())).wrapping_mul(0x0100_0000_01b3)
-    })
-}
-
 /// Remembers which definition lines a rule has already reported, so an element inside a
 /// subcircuit placed a hundred times gives one finding, not a hundred identical ones.
 #[derive(Default)]

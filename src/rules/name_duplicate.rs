@@ -4,10 +4,11 @@
 //! The finding points at the later line; the earlier one is labelled. When the two come from
 //! different instance lines (two `X` lines with one name), those lines are the ones shown.
 
-use super::hygiene_util::{fold_hash, Once};
+use super::hygiene_util::Once;
 use super::Rule;
 use super::RuleContext;
 use crate::diagnostic::{Finding, Severity};
+use crate::netlist::caseless_hash;
 use crate::netlist::FlatElement;
 use crate::source::Span;
 use std::collections::HashSet;
@@ -75,7 +76,7 @@ fn duplicate_pairs(elements: &[FlatElement]) -> Vec<(usize, usize)> {
     let mut keys: Vec<(u64, usize)> = elements
         .iter()
         .enumerate()
-        .map(|(i, e)| (fold_hash(&e.path), i))
+        .map(|(i, e)| (caseless_hash(&e.path), i))
         .collect();
     keys.sort_unstable();
     let mut pairs = Vec::new();
