@@ -48,7 +48,11 @@ impl<'a> Ctx<'_, 'a> {
             let word = self.word(Some(item));
             match word {
                 Some(w) if w.eq_ignore_ascii_case("dc") => {
-                    match self.value_item(next).or_else(|| self.any_value(next)) {
+                    let value = self
+                        .value_item(next)
+                        .or_else(|| self.any_value(next))
+                        .or_else(|| self.single_in_parens(next));
+                    match value {
                         Some(v) => form.dc = Some(v),
                         None => {
                             return Err(bad(
@@ -109,6 +113,20 @@ impl<'a> Ctx<'_, 'a> {
         out.value = form.dc.clone();
         out.source = Some(form);
         Ok(out)
+    }
+
+    /// `DC(5)`: one value written in parentheses.
+    fn single_in_parens(&self, item: Option<&Item>) -> Option<Val<'a>> {
+        let Some(&Item::Group(open, close)) = item else {
+            return None;
+        };
+        if close != open + 2 {
+            return None;
+        }
+        match self.view.kind(open + 1)? {
+            TokKind::Word | TokKind::Brace | TokKind::Quote => Some(self.val(open + 1)),
+            _ => None,
+        }
     }
 
     /// A bare name used as a value (a parameter the scope may or may not define).
