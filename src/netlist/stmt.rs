@@ -109,7 +109,10 @@ impl<'a> StmtView<'a> {
                 }
                 // Continued over `+` lines: the pieces without line breaks and markers.
                 let joined = self.text_between(first, last);
-                let inner = joined.get(1..joined.len().saturating_sub(1)).unwrap_or("");
+                let inner = joined.get(1..).unwrap_or("");
+                // A group never closed (already a finding) keeps its last character.
+                let closer = if t.starts_with('{') { '}' } else { '\'' };
+                let inner = inner.strip_suffix(closer).unwrap_or(inner);
                 return Cow::Owned(inner.to_string());
             }
         }
