@@ -117,13 +117,19 @@ fn a_param_block_continues_past_comment_and_blank_lines() {
 fn a_vertical_mosfet_with_thermal_nodes_keeps_its_model_and_nodes() {
     let (flat, findings) = fixture("mosfet_thermal.cir");
     assert!(findings.is_empty(), "{findings:#?}");
-    for name in ["M1", "M2", "M3"] {
-        assert_eq!(element(&flat, name).model.as_deref(), Some("pwrfet"), "{name}");
+    for name in ["M1", "M2", "M3", "M4", "M5"] {
+        assert_eq!(
+            element(&flat, name).model.as_deref(),
+            Some("pwrfet"),
+            "{name}"
+        );
     }
     // No body terminal on a vertical part: the body is its source, then the thermal nodes.
     assert_eq!(nodes(&flat, "M1"), ["d", "g", "0", "0", "tj", "tc"]);
     assert_eq!(nodes(&flat, "M2"), ["d", "g", "0", "0", "0", "tj2"]);
     assert_eq!(nodes(&flat, "M3"), ["d", "g", "0"]);
+    assert_eq!(nodes(&flat, "M4"), ["d", "g", "0", "0", "tj4", "tc4"]);
+    assert_eq!(nodes(&flat, "M5"), ["d", "g", "0", "0", "tj5"]);
 }
 
 #[test]
@@ -133,6 +139,8 @@ fn dc_in_parentheses_is_the_dc_value() {
     assert!(close(value(&flat, "V1"), 12.0));
     assert_eq!(value(&flat, "V2"), 0.0);
     assert!(close(value(&flat, "I1"), 2e-3));
+    // `DC ac=1 AC 1`: a bare `DC` gives no DC value, and the line still connects.
+    assert_eq!(nodes(&flat, "V3"), ["acin", "0"]);
 }
 
 #[test]

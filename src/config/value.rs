@@ -74,7 +74,9 @@ mod tests {
     /// One parser for the config and the netlist: every netlist number reads the same here.
     #[test]
     fn agrees_with_the_netlist_parser() {
-        for text in ["1mil", "10k", "2.2m", "1MEG", "4.7uF", "2200µ", "6.8kR", "0.1_r", "1e3k"] {
+        for text in [
+            "1mil", "10k", "2.2m", "1MEG", "4.7uF", "2200µ", "6.8kR", "0.1_r", "1e3k",
+        ] {
             let netlist = crate::netlist::value::parse_number(text).and_then(Result::ok);
             assert_eq!(parse_value(text), netlist, "{text}");
         }

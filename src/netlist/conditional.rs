@@ -141,7 +141,11 @@ mod tests {
 
     #[test]
     fn else_when_nothing_holds_and_first_when_unknown() {
-        let got = walk(&[(Dot::If, Some(false)), (Dot::Else, None), (Dot::Endif, None)]);
+        let got = walk(&[
+            (Dot::If, Some(false)),
+            (Dot::Else, None),
+            (Dot::Endif, None),
+        ]);
         assert_eq!(got, [false, true, true]);
         let got = walk(&[(Dot::If, None), (Dot::Else, None), (Dot::Endif, None)]);
         assert_eq!(got, [true, false, true]);

@@ -41,7 +41,17 @@ const VHDL_WORDS: &[&str] = &["entity", "architecture"];
 
 /// Second words of analysis statements in keyword-style netlists (`tran1 tran stop=1m`).
 const KEYWORD_ANALYSES: &[&str] = &[
-    "tran", "dc", "ac", "noise", "info", "options", "sweep", "montecarlo", "pss", "pac", "sp",
+    "tran",
+    "dc",
+    "ac",
+    "noise",
+    "info",
+    "options",
+    "sweep",
+    "montecarlo",
+    "pss",
+    "pac",
+    "sp",
 ];
 
 fn is_one_of(word: &str, list: &[&str]) -> bool {

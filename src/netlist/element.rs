@@ -39,9 +39,10 @@ pub(super) fn plural(n: usize) -> &'static str {
     }
 }
 
-/// Words that may follow a model name: initial-condition flags, and `thermal` (the thermal
-/// nodes of a vertical power MOS model are in use).
-const FLAGS: &[&str] = &["off", "on", "thermal"];
+/// Words that may follow a model name: initial-condition flags, and `thermal` or `tnodeout`
+/// (the thermal nodes of a vertical power MOS model are in use).
+const FLAGS: &[&str] = &["off", "on", "thermal", "tnodeout"];
+const THERMAL_FLAGS: &[&str] = &["thermal", "tnodeout"];
 
 /// Splits an element line. `Err` is a finding and the statement is skipped.
 pub fn parse<'a>(deck: &Deck<'a>, def: usize, view: StmtView<'a>, keep: &dyn Keep) -> Parse<'a> {
@@ -368,8 +369,8 @@ impl<'a> Ctx<'_, 'a> {
 
     /// `M d g s b model`; three nodes only for a vertical power MOS model (`VDMOS` type),
     /// which has its body tied inside. A vertical model with thermal nodes is written
-    /// `M d g s tj tc model [thermal]`: the model is found by name (or stands before
-    /// `thermal`), never taken from a node position.
+    /// `M d g s tj [tc] model [thermal]`: the model is found by name (or stands before
+    /// `thermal`), never taken from a node position, and the body is the source.
     fn mos(&self, pos: &[Item], mut out: Parsed<'a>) -> Parse<'a> {
         let found = self.count_words(pos);
         let is_vertical = |at: usize| {
@@ -386,20 +387,23 @@ impl<'a> Ctx<'_, 'a> {
         }
         let thermal_flag = self
             .word(pos.get(found - 1))
-            .is_some_and(|w| w.eq_ignore_ascii_case("thermal"));
+            .is_some_and(|w| THERMAL_FLAGS.iter().any(|f| w.eq_ignore_ascii_case(f)));
         let model_at = (3..found)
             .find(|&k| self.is_model(pos.get(k)))
             .or_else(|| thermal_flag.then(|| found - 2));
         match model_at {
             Some(3) if is_vertical(3) => self.with_model(pos, 3, out),
-            Some(at) if at >= 5 => {
-                let words: Vec<&'a str> = pos[..at].iter().filter_map(|i| self.word(Some(i))).collect();
+            Some(at) if at >= 5 || (at == 4 && is_vertical(4)) => {
+                let words: Vec<&'a str> = pos[..at]
+                    .iter()
+                    .filter_map(|i| self.word(Some(i)))
+                    .collect();
                 out.model = self.word(pos.get(at));
                 self.extras(&pos[at + 1..])?;
                 // Vertical parts have no body terminal: the body is the source, tied inside,
                 // and the thermal nodes follow it.
                 let vertical = is_vertical(at) || (thermal_flag && at == 5);
-                if vertical && at == 5 {
+                if vertical && at <= 5 {
                     out.nodes.extend(words[..3].iter().copied());
                     out.nodes.push(words[2]);
                     out.nodes.extend(words[3..].iter().copied());

@@ -45,8 +45,10 @@ pub fn shape(file_name: &str, lexed: &Lexed, text: &str) -> Shape {
     if !only_definitions(lexed) {
         return Shape::Deck;
     }
-    let comment_or_blank =
-        title.is_empty() || title.starts_with('*') || title.starts_with(';') || title.starts_with("//");
+    let comment_or_blank = title.is_empty()
+        || title.starts_with('*')
+        || title.starts_with(';')
+        || title.starts_with("//");
     if comment_or_blank {
         return Shape::Library;
     }

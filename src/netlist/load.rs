@@ -5,9 +5,9 @@
 
 use super::conditional::{Branches, ConditionParams};
 use super::dialect;
-use super::library::{self, Shape};
 use super::flat::MissingInclude;
 use super::lex::{lex, Dot, Head, Lexed, TokKind};
+use super::library::{self, Shape};
 use super::stmt::StmtView;
 use super::text::decode;
 use super::Limits;
@@ -265,7 +265,9 @@ impl<'s> Loader<'s> {
                         )),
                     }
                 }
-                Head::Dot(Dot::Endl | Dot::Other | Dot::If | Dot::Elseif | Dot::Else | Dot::Endif) => {}
+                Head::Dot(
+                    Dot::Endl | Dot::Other | Dot::If | Dot::Elseif | Dot::Else | Dot::Endif,
+                ) => {}
             }
             i += 1;
         }
