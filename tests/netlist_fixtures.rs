@@ -44,7 +44,18 @@ fn close(a: f64, b: f64) -> bool {
 }
 
 const CLEAN: &[&str] = &[
+    "behavioural_resistor.cir",
     "behavioural_sources.cir",
+    "brace_continued.cir",
+    "code_model_arrays.cir",
+    "dc_in_parens.cir",
+    "if_blocks.cir",
+    "mosfet_thermal.cir",
+    "multiplier.cir",
+    "param_block_gaps.cir",
+    "semicolon_comments.cir",
+    "step_param.cir",
+    "step_param_included.cir",
     "code_models.cir",
     "comments_dollar_slash.cir",
     "continuation_model.cir",
@@ -156,6 +167,15 @@ const WRONG: &[(&str, &[Expected])] = &[
     (
         "foreign_keyword_style.cir",
         &[("foreign_keyword_style.cir", 2, "dialect-foreign", "keyword-style netlist")],
+    ),
+    (
+        "foreign_type_first.cir",
+        &[("foreign_type_first.cir", 2, "dialect-foreign", "type-first netlist")],
+    ),
+    (
+        // The first line is read as the title; the rest is enough to tell the family.
+        "foreign_keyword_first_line.cir",
+        &[("foreign_keyword_first_line.cir", 2, "dialect-foreign", "5 of 5 statements")],
     ),
     (
         "foreign_behavioural.cir",

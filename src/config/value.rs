@@ -1,81 +1,24 @@
 //! Numbers written as strings in `kickback.toml`: a decimal number with an optional SPICE scale
 //! suffix, unit letters after it ignored (`"2.2m"`, `"10k"`, `"4.7uF"`, `"1MEG"`, `"2200µ"`).
-//! As in SPICE, `M` is milli and `MEG` is mega; `F` is femto.
+//! The config reads numbers with the netlist's own number parser, so a value means the same in
+//! both places (`M` is milli, `MEG` mega, `F` femto, `MIL` 25.4 µm).
+
+use crate::netlist::value::{number_prefix, parse_number};
 
 /// Parses a config value string into SI base units, or `None` when it is not a number.
+/// Beyond what a netlist accepts, a space may stand between the number and its suffix (`10 k`).
 pub(crate) fn parse_value(text: &str) -> Option<f64> {
     let text = text.trim();
-    let (number, rest) = split_number(text)?;
-    let mantissa: f64 = number.parse().ok()?;
-    let scale = scale_of(rest.trim_start())?;
-    let value = mantissa * scale;
-    value.is_finite().then_some(value)
-}
-
-/// Splits `text` after its leading decimal number (sign, digits, point, exponent).
-fn split_number(text: &str) -> Option<(&str, &str)> {
-    let bytes = text.as_bytes();
-    let mut end = 0;
-    if matches!(bytes.first(), Some(b'+' | b'-')) {
-        end += 1;
-    }
-    let digits_start = end;
-    while bytes.get(end).is_some_and(u8::is_ascii_digit) {
-        end += 1;
-    }
-    let mut digits = end - digits_start;
-    if bytes.get(end) == Some(&b'.') {
-        end += 1;
-        let fraction_start = end;
-        while bytes.get(end).is_some_and(u8::is_ascii_digit) {
-            end += 1;
-        }
-        digits += end - fraction_start;
-    }
-    if digits == 0 {
+    let (value, rest) = number_prefix(text)?;
+    let value = if rest.is_empty() {
+        value
+    } else if rest.starts_with(char::is_whitespace) {
+        let digits = &text[..text.len() - rest.len()];
+        parse_number(&format!("{digits}{}", rest.trim_start()))?
+    } else {
         return None;
-    }
-    // An exponent only counts when digits follow it; otherwise `e` is a unit letter.
-    if matches!(bytes.get(end), Some(b'e' | b'E')) {
-        let mut probe = end + 1;
-        if matches!(bytes.get(probe), Some(b'+' | b'-')) {
-            probe += 1;
-        }
-        if bytes.get(probe).is_some_and(u8::is_ascii_digit) {
-            while bytes.get(probe).is_some_and(u8::is_ascii_digit) {
-                probe += 1;
-            }
-            end = probe;
-        }
-    }
-    Some((&text[..end], &text[end..]))
-}
-
-/// The multiplier of a suffix; trailing unit letters are ignored, anything else is refused.
-fn scale_of(suffix: &str) -> Option<f64> {
-    if !suffix
-        .chars()
-        .all(|c| c.is_alphabetic() || c == 'µ' || c == 'Ω')
-    {
-        return None;
-    }
-    let upper = suffix.to_uppercase();
-    if upper.starts_with("MEG") {
-        return Some(1e6);
-    }
-    let scale = match upper.chars().next() {
-        None => 1.0,
-        Some('T') => 1e12,
-        Some('G') => 1e9,
-        Some('K') => 1e3,
-        Some('M') => 1e-3,
-        Some('U') | Some('µ') | Some('Μ') => 1e-6,
-        Some('N') => 1e-9,
-        Some('P') => 1e-12,
-        Some('F') => 1e-15,
-        Some(_) => 1.0,
     };
-    Some(scale)
+    value.ok()
 }
 
 #[cfg(test)]
@@ -86,7 +29,8 @@ mod tests {
         (a - b).abs() <= 1e-12 * b.abs().max(1e-30)
     }
 
-    // Scale suffixes as in the SPICE3 user's manual (from memory): T G MEG K M U N P F,
+    // Scale suffixes as in the SPICE3 user's manual's scale-factor table (Quarles et al.,
+    // SPICE3 Version 3f3 User's Manual, section 2.1): T G MEG K MIL M U N P F,
     // case-insensitive, letters after the suffix ignored.
     #[test]
     fn spice_suffixes() {
@@ -113,6 +57,10 @@ mod tests {
             (".5", 0.5),
             ("10 k", 10e3),
             ("4.7kOhm", 4.7e3),
+            // The SPICE3 user's manual scale-factor table: MIL = 25.4e-6 (one thousandth
+            // of an inch, in metres).
+            ("1mil", 25.4e-6),
+            ("2MIL", 50.8e-6),
         ];
         for (text, want) in cases {
             let got = parse_value(text);
@@ -120,6 +68,17 @@ mod tests {
                 got.is_some_and(|g| close(g, want)),
                 "{text}: got {got:?}, want {want}"
             );
+        }
+    }
+
+    /// One parser for the config and the netlist: every netlist number reads the same here.
+    #[test]
+    fn agrees_with_the_netlist_parser() {
+        for text in [
+            "1mil", "10k", "2.2m", "1MEG", "4.7uF", "2200µ", "6.8kR", "0.1_r", "1e3k",
+        ] {
+            let netlist = crate::netlist::value::parse_number(text).and_then(Result::ok);
+            assert_eq!(parse_value(text), netlist, "{text}");
         }
     }
 

@@ -155,6 +155,11 @@ pub fn build<'a>(loaded: &'a Loaded, sources: &'a SourceMap) -> Deck<'a> {
                 params(&view, &mut def, &deck.sink);
             }
         }
+        for &st in &build.steps {
+            if let Some(view) = deck.view(st) {
+                step(&view, &mut def);
+            }
+        }
         for &f in &build.funcs {
             if let Some(view) = deck.view(f) {
                 func(&view, &mut def, &deck.sink);
@@ -229,6 +234,40 @@ fn params<'a>(view: &StmtView<'a>, def: &mut Def<'a>, sink: &Sink<'a>) {
             }
         }
     }
+}
+
+/// `.step [lin|oct|dec] param NAME (list v1 v2 ... | start stop step)`: NAME is defined by its
+/// first value, unless a `.param` card defines it. Other sweeps (a source, the temperature) define
+/// nothing.
+fn step<'a>(view: &StmtView<'a>, def: &mut Def<'a>) {
+    let Some(key) = (1..view.toks.len()).find(|&i| view.tok(i).eq_ignore_ascii_case("param"))
+    else {
+        return;
+    };
+    let name_at = key + 1;
+    let mut value_at = name_at + 1;
+    if view.tok(value_at).eq_ignore_ascii_case("list") {
+        value_at += 1;
+    }
+    let (Some(TokKind::Word), Some(kind)) = (view.kind(name_at), view.kind(value_at)) else {
+        return;
+    };
+    if !matches!(kind, TokKind::Word | TokKind::Brace | TokKind::Quote) {
+        return;
+    }
+    let name = view.tok(name_at);
+    if def.locals.contains(name) {
+        return;
+    }
+    def.locals.insert(
+        name,
+        Assign {
+            name,
+            text: view.value_text(value_at, value_at),
+            written: view.text_between(value_at, value_at),
+            span: view.range_span(name_at, value_at),
+        },
+    );
 }
 
 fn func<'a>(view: &StmtView<'a>, def: &mut Def<'a>, sink: &Sink<'a>) {
@@ -323,7 +362,16 @@ fn models<'a>(deck: &mut Deck<'a>, loaded: &'a Loaded) {
         let mut params: Vec<(String, Num)> = Vec::new();
         // Items with their parenthesis depth; cards use one level, deeper ones are not read.
         let mut stack: Vec<(Item, u8)> = items.iter().skip(2).rev().map(|i| (*i, 0)).collect();
+        // Inside an array value (`in=[0 1 2]`) of a mixed-signal code model.
+        let mut in_array = false;
         while let Some((item, level)) = stack.pop() {
+            if in_array {
+                if let Item::Tok(i) = item {
+                    in_array = !view.tok(i).ends_with(']');
+                    continue;
+                }
+                in_array = false;
+            }
             match item {
                 Item::Group(open, close) if level < 2 => {
                     let inner = view.items(open + 1, close, false);
@@ -334,7 +382,19 @@ fn models<'a>(deck: &mut Deck<'a>, loaded: &'a Loaded) {
                     let Some(a) = assign(view, item) else {
                         continue;
                     };
-                    params.push((lower(a.name).into_owned(), model_value(scope, &a, name)));
+                    let value = match item {
+                        // Arrays and quoted strings (`in=[0 1 2]`, `input_file="x.txt"`) are
+                        // parameters of code models; kickback reads no number from them.
+                        Item::Assign { last, .. } if a.text.starts_with('[') => {
+                            in_array = !view.tok(last).ends_with(']');
+                            Num::Varies
+                        }
+                        Item::Assign { first, .. } if view.kind(first) == Some(TokKind::Str) => {
+                            Num::Varies
+                        }
+                        _ => model_value(scope, &a, name),
+                    };
+                    params.push((lower(a.name).into_owned(), value));
                 }
                 Item::Tok(_) | Item::Stray(_) => {}
             }

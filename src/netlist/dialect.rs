@@ -2,6 +2,7 @@
 //! syntax error per line.
 
 use super::lex::{Dot, Head, Lexed, TokKind};
+use super::value::is_number;
 use crate::diagnostic::{Finding, Severity};
 
 /// First words of statements in keyword-style netlists (no leading dot).
@@ -22,68 +23,159 @@ const KEYWORD_CARDS: &[&str] = &[
     "statistics",
 ];
 
-const VERILOG_WORDS: &[&str] = &["module", "endmodule", "`include", "analog", "`define"];
+const VERILOG_WORDS: &[&str] = &[
+    "module",
+    "endmodule",
+    "`include",
+    "`define",
+    "`timescale",
+    "analog",
+    "electrical",
+    "inout",
+    "input",
+    "output",
+    "parameter",
+    "branch",
+];
 const VHDL_WORDS: &[&str] = &["entity", "architecture"];
+
+/// Second words of analysis statements in keyword-style netlists (`tran1 tran stop=1m`).
+const KEYWORD_ANALYSES: &[&str] = &[
+    "tran",
+    "dc",
+    "ac",
+    "noise",
+    "info",
+    "options",
+    "sweep",
+    "montecarlo",
+    "pss",
+    "pac",
+    "sp",
+];
 
 fn is_one_of(word: &str, list: &[&str]) -> bool {
     list.iter().any(|w| word.eq_ignore_ascii_case(w))
+}
+
+/// Which family one statement's form belongs to.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+enum Form {
+    Spice,
+    Keyword,
+    /// `Type:Name` element lines (the type before the name).
+    TypeFirst,
+    Verilog,
+    Vhdl,
+    /// Could be either (`D1 (a k) dmod`, comments, cards both share).
+    Neutral,
+}
+
+/// The form of the statement whose tokens are `toks`.
+fn form(lexed: &Lexed, stmt: &super::lex::Stmt, text: &str) -> Form {
+    let toks = lexed.toks_of(stmt);
+    let word_at = |i: usize| {
+        toks.get(i)
+            .filter(|t| t.kind == TokKind::Word)
+            .and_then(|t| text.get(t.start as usize..t.end as usize))
+    };
+    let kind_at = |i: usize| toks.get(i).map(|t| t.kind);
+    let Some(first) = word_at(0) else {
+        return Form::Neutral;
+    };
+    if is_one_of(first, VERILOG_WORDS) {
+        return Form::Verilog;
+    }
+    if is_one_of(first, VHDL_WORDS) {
+        return Form::Vhdl;
+    }
+    if is_one_of(first, KEYWORD_CARDS) {
+        return Form::Keyword;
+    }
+    // `R:R1`, `.DC:DC1`: a type, a colon, a name.
+    if let Some((kind, name)) = first.trim_start_matches('.').split_once(':') {
+        let alnum = |s: &str| !s.is_empty() && s.chars().all(|c| c.is_alphanumeric() || c == '_');
+        if alnum(kind) && alnum(name) && !first.eq_ignore_ascii_case("params:") {
+            return Form::TypeFirst;
+        }
+    }
+    if matches!(stmt.head, Head::Dot(_)) {
+        return match stmt.head {
+            Head::Dot(Dot::Subckt | Dot::Model) => Form::Spice,
+            _ => Form::Neutral,
+        };
+    }
+    // `name (nodes) master k=v ...`: nodes in parentheses, then a master name followed by
+    // parameters or nothing. SPICE writes node pairs so only before a value or a second pair
+    // (`E1 (out 0) (in 0) 10`, `F1 (a 0) VSNS 2`).
+    if kind_at(1) == Some(TokKind::LParen) {
+        let close = (2..toks.len()).find(|&i| kind_at(i) == Some(TokKind::RParen));
+        let Some(close) = close else {
+            return Form::Neutral;
+        };
+        let master = word_at(close + 1).filter(|w| !is_number(w));
+        let then_params_or_end = match kind_at(close + 2) {
+            None => true,
+            Some(TokKind::Word) => kind_at(close + 3) == Some(TokKind::Eq),
+            _ => false,
+        };
+        return if master.is_some() && then_params_or_end {
+            Form::Keyword
+        } else {
+            Form::Neutral
+        };
+    }
+    // `tran1 tran stop=1m`: an analysis statement.
+    if word_at(1).is_some_and(|w| is_one_of(w, KEYWORD_ANALYSES))
+        && word_at(2).is_some()
+        && kind_at(3) == Some(TokKind::Eq)
+    {
+        return Form::Keyword;
+    }
+    match stmt.head {
+        Head::Element(_) => Form::Spice,
+        _ => Form::Neutral,
+    }
 }
 
 /// One finding when `lexed` is not a SPICE deck; `None` when it is (or might be).
 pub fn detect(lexed: &Lexed, text: &str) -> Option<Finding> {
     let mut spice = 0usize;
     let mut keyword = 0usize;
+    let mut type_first = 0usize;
     let mut verilog = 0usize;
     let mut vhdl = 0usize;
     let mut first_foreign = None;
     for stmt in &lexed.stmts {
-        let toks = lexed.toks_of(stmt);
-        let Some(first) = toks.first() else {
-            continue;
-        };
-        let word = text
-            .get(first.start as usize..first.end as usize)
-            .unwrap_or("");
-        let second_is_paren = toks.get(1).is_some_and(|t| t.kind == TokKind::LParen);
-        // Every foreign first word starts with one of these; element names mostly do not.
-        let maybe_keyword = matches!(
-            word.as_bytes().first().map(u8::to_ascii_lowercase),
-            Some(b's' | b'p' | b'e' | b'm' | b'i' | b'a' | b'g' | b'l' | b'`')
-        );
-        let foreign = if !maybe_keyword && !second_is_paren {
-            if matches!(
-                stmt.head,
-                Head::Element(_) | Head::Dot(Dot::Subckt) | Head::Dot(Dot::Model)
-            ) {
+        let foreign = match form(lexed, stmt, text) {
+            Form::Spice => {
                 spice += 1;
+                false
             }
-            false
-        } else if is_one_of(word, VERILOG_WORDS) {
-            verilog += 1;
-            true
-        } else if is_one_of(word, VHDL_WORDS) {
-            vhdl += 1;
-            true
-        } else if is_one_of(word, KEYWORD_CARDS)
-            || (second_is_paren && !matches!(stmt.head, Head::Dot(_)))
-        {
-            keyword += 1;
-            true
-        } else {
-            if matches!(
-                stmt.head,
-                Head::Element(_) | Head::Dot(Dot::Subckt) | Head::Dot(Dot::Model)
-            ) {
-                spice += 1;
+            Form::Neutral => false,
+            Form::Keyword => {
+                keyword += 1;
+                true
             }
-            false
+            Form::TypeFirst => {
+                type_first += 1;
+                true
+            }
+            Form::Verilog => {
+                verilog += 1;
+                true
+            }
+            Form::Vhdl => {
+                vhdl += 1;
+                true
+            }
         };
         if foreign && first_foreign.is_none() {
             first_foreign = Some(lexed.span(stmt.start, stmt.end));
         }
     }
     let span = first_foreign?;
-    let total = spice + keyword + verilog + vhdl;
+    let total = spice + keyword + type_first + verilog + vhdl;
     let strong = |n: usize| n >= 2 || (n == 1 && spice == 0);
     let (family, hint) = if strong(verilog) && verilog >= vhdl {
         (
@@ -100,6 +192,11 @@ pub fn detect(lexed: &Lexed, text: &str) -> Option<Finding> {
             "a keyword-style netlist (element lines such as `R1 (a b) resistor r=1k`, cards without a leading dot)",
             "export the netlist in SPICE format: element letter first, nodes without parentheses, dot cards",
         )
+    } else if type_first >= 2 && type_first > spice {
+        (
+            "a type-first netlist (element lines such as `R:R1 a b R=\"1 kOhm\"`, the type before the name)",
+            "export the netlist in SPICE format: element letter first, nodes, then the value or model",
+        )
     } else {
         return None;
     };
@@ -110,7 +207,7 @@ pub fn detect(lexed: &Lexed, text: &str) -> Option<Finding> {
             span,
             format!(
                 "this file looks like {family}, not a SPICE netlist ({} of {total} statements are in that form); it is not checked",
-                keyword + verilog + vhdl
+                keyword + type_first + verilog + vhdl
             ),
         )
         .with_help(hint),

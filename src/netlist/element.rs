@@ -39,7 +39,10 @@ pub(super) fn plural(n: usize) -> &'static str {
     }
 }
 
-const FLAGS: &[&str] = &["off", "on"];
+/// Words that may follow a model name: initial-condition flags, and `thermal` or `tnodeout`
+/// (the thermal nodes of a vertical power MOS model are in use).
+const FLAGS: &[&str] = &["off", "on", "thermal", "tnodeout"];
+const THERMAL_FLAGS: &[&str] = &["thermal", "tnodeout"];
 
 /// Splits an element line. `Err` is a finding and the statement is skipped.
 pub fn parse<'a>(deck: &Deck<'a>, def: usize, view: StmtView<'a>, keep: &dyn Keep) -> Parse<'a> {
@@ -270,6 +273,8 @@ impl<'a> Ctx<'_, 'a> {
                 .position(|p| keys.iter().any(|k| p.name.eq_ignore_ascii_case(k)))
             {
                 let a = out.params.remove(pos);
+                // `R=V(a)/1m`: a behavioural resistor (or C, L); connected, not constant.
+                out.behavioural = depends_on_circuit(&a.text);
                 out.value = Some(Val::from_assign(a));
             }
         }
@@ -363,21 +368,52 @@ impl<'a> Ctx<'_, 'a> {
     }
 
     /// `M d g s b model`; three nodes only for a vertical power MOS model (`VDMOS` type),
-    /// which has its body tied inside.
-    fn mos(&self, pos: &[Item], out: Parsed<'a>) -> Parse<'a> {
+    /// which has its body tied inside. A vertical model with thermal nodes is written
+    /// `M d g s tj [tc] model [thermal]`: the model is found by name (or stands before
+    /// `thermal`), never taken from a node position, and the body is the source.
+    fn mos(&self, pos: &[Item], mut out: Parsed<'a>) -> Parse<'a> {
         let found = self.count_words(pos);
-        let vertical = self
-            .word(pos.get(3))
-            .and_then(|w| self.deck.find_model(self.def, w))
-            .and_then(|i| self.deck.model_kinds.get(i))
-            .is_some_and(|k| k.eq_ignore_ascii_case("VDMOS"));
-        if found == 4 && vertical {
+        let is_vertical = |at: usize| {
+            self.word(pos.get(at))
+                .and_then(|w| self.deck.find_model(self.def, w))
+                .and_then(|i| self.deck.model_kinds.get(i))
+                .is_some_and(|k| k.eq_ignore_ascii_case("VDMOS"))
+        };
+        if found == 4 && is_vertical(3) {
             return self.with_model(pos, 3, out);
         }
         if found < 5 {
             return Err(self.expected_model(pos, 4));
         }
-        self.with_model(pos, 4, out)
+        let thermal_flag = self
+            .word(pos.get(found - 1))
+            .is_some_and(|w| THERMAL_FLAGS.iter().any(|f| w.eq_ignore_ascii_case(f)));
+        let model_at = (3..found)
+            .find(|&k| self.is_model(pos.get(k)))
+            .or_else(|| thermal_flag.then(|| found - 2));
+        match model_at {
+            Some(3) if is_vertical(3) => self.with_model(pos, 3, out),
+            Some(at) if at >= 5 || (at == 4 && is_vertical(4)) => {
+                let words: Vec<&'a str> = pos[..at]
+                    .iter()
+                    .filter_map(|i| self.word(Some(i)))
+                    .collect();
+                out.model = self.word(pos.get(at));
+                self.extras(&pos[at + 1..])?;
+                // Vertical parts have no body terminal: the body is the source, tied inside,
+                // and the thermal nodes follow it.
+                let vertical = is_vertical(at) || (thermal_flag && at == 5);
+                if vertical && at <= 5 {
+                    out.nodes.extend(words[..3].iter().copied());
+                    out.nodes.push(words[2]);
+                    out.nodes.extend(words[3..].iter().copied());
+                } else {
+                    out.nodes.extend(words);
+                }
+                Ok(out)
+            }
+            _ => self.with_model(pos, 4, out),
+        }
     }
 
     fn current_switch(&self, pos: &[Item], mut out: Parsed<'a>) -> Parse<'a> {
@@ -447,4 +483,32 @@ impl<'a> Ctx<'_, 'a> {
         out.value = value;
         Ok(out)
     }
+}
+
+/// True when an expression reads the running circuit: a node voltage or branch current
+/// (`V(a)`, `I(V1)`, `vd(a,b)`...) or the simulation variables `time`, `temp`, `hertz`.
+fn depends_on_circuit(text: &str) -> bool {
+    const PROBES: &[&str] = &[
+        "v", "i", "vr", "vi", "vm", "vp", "vdb", "vd", "ir", "ii", "im", "ip", "idb",
+    ];
+    const VARIABLES: &[&str] = &["time", "temp", "hertz"];
+    let bytes = text.as_bytes();
+    let mut i = 0;
+    while i < bytes.len() {
+        if !(bytes[i].is_ascii_alphabetic() || bytes[i] == b'_') {
+            i += 1;
+            continue;
+        }
+        let start = i;
+        while i < bytes.len() && (bytes[i].is_ascii_alphanumeric() || bytes[i] == b'_') {
+            i += 1;
+        }
+        let word = &text[start..i];
+        let called = text[i..].trim_start().starts_with('(');
+        let list = if called { PROBES } else { VARIABLES };
+        if list.iter().any(|w| word.eq_ignore_ascii_case(w)) {
+            return true;
+        }
+    }
+    false
 }

@@ -47,8 +47,17 @@ impl<'a> Ctx<'_, 'a> {
             let next = pos.get(j + 1);
             let word = self.word(Some(item));
             match word {
+                // A bare `DC` before `AC` or a waveform (or at the end) gives no value; some
+                // schematic exports write it so (`DC ac=1 AC 1`).
+                Some(w) if w.eq_ignore_ascii_case("dc") && self.no_value_follows(next) => {
+                    j += 1;
+                }
                 Some(w) if w.eq_ignore_ascii_case("dc") => {
-                    match self.value_item(next).or_else(|| self.any_value(next)) {
+                    let value = self
+                        .value_item(next)
+                        .or_else(|| self.any_value(next))
+                        .or_else(|| self.single_in_parens(next));
+                    match value {
                         Some(v) => form.dc = Some(v),
                         None => {
                             return Err(bad(
@@ -109,6 +118,30 @@ impl<'a> Ctx<'_, 'a> {
         out.value = form.dc.clone();
         out.source = Some(form);
         Ok(out)
+    }
+
+    /// True at the end of the line or before `AC` or a waveform keyword.
+    fn no_value_follows(&self, next: Option<&Item>) -> bool {
+        match next {
+            None => true,
+            Some(_) => self.word(next).is_some_and(|n| {
+                is_one_of(n, &["ac", "distof1", "distof2"]) || is_one_of(n, WAVEFORMS)
+            }),
+        }
+    }
+
+    /// `DC(5)`: one value written in parentheses.
+    fn single_in_parens(&self, item: Option<&Item>) -> Option<Val<'a>> {
+        let Some(&Item::Group(open, close)) = item else {
+            return None;
+        };
+        if close != open + 2 {
+            return None;
+        }
+        match self.view.kind(open + 1)? {
+            TokKind::Word | TokKind::Brace | TokKind::Quote => Some(self.val(open + 1)),
+            _ => None,
+        }
     }
 
     /// A bare name used as a value (a parameter the scope may or may not define).

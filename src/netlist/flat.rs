@@ -173,6 +173,16 @@ impl FlatElement {
             .map(|(_, v)| *v)
     }
 
+    /// The `m=` multiplier: how many of this element stand in parallel (1 when not given or
+    /// not a known positive number). R, C and L values are already scaled by it (R/m, C·m,
+    /// L/m); for D, Q, M and J it multiplies the device's area and current.
+    pub fn multiplier(&self) -> f64 {
+        match self.param("m") {
+            Some(Num::Known(m)) if m.is_finite() && m > 0.0 => m,
+            _ => 1.0,
+        }
+    }
+
     /// `Some(path)` when the element sits inside an instance, for findings.
     pub fn instance_path(&self) -> Option<String> {
         if self.instances.is_empty() {
@@ -218,4 +228,9 @@ pub struct FlatNetlist {
     pub missing_includes: Vec<MissingInclude>,
     /// Names of subcircuits the deck defines (for model-missing).
     pub subckt_names: Vec<String>,
+    /// The file holds only definitions (`.subckt`, `.model`, `.param`, `.lib` sections): a
+    /// library checked on its own. It has no title, no top-level circuit, and its subcircuits
+    /// were checked as definitions (their lines for syntax) rather than flattened; rules about
+    /// a whole circuit (dangling nets, missing supplies) have nothing to judge in it.
+    pub is_library: bool,
 }

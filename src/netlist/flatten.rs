@@ -61,7 +61,8 @@ pub struct Flattener<'d, 'a> {
     blocked: HashSet<StmtRef>,
     memo: Vec<Option<(u64, usize)>>,
     on_stack: Vec<bool>,
-    used: Vec<bool>,
+    /// Definitions expanded at least once, by index.
+    pub used: Vec<bool>,
     items: Vec<super::stmt::Item>,
     pub out: Vec<FlatElement>,
 }
@@ -395,6 +396,7 @@ impl<'d, 'a> Flattener<'d, 'a> {
             }
             (_, v) => v,
         };
+        let value = scale_by_multiplier(parsed.letter, value, &params);
         let model_index = match parsed.link {
             XLink::None => parsed.model.and_then(|m| self.deck.find_model(def, m)),
             _ => None,
@@ -465,6 +467,26 @@ impl<'d, 'a> Flattener<'d, 'a> {
             ports: def.ports.iter().map(|p| p.to_string()).collect(),
             definition: def.header,
         }
+    }
+}
+
+/// `m=` elements in parallel: R/m, C·m, L/m. Other letters keep their value (their multiplier
+/// scales the device, which the analyses read from [`FlatElement::multiplier`]).
+fn scale_by_multiplier(letter: char, value: Option<Num>, params: &[(String, Num)]) -> Option<Num> {
+    let m = params.iter().find(|(k, _)| k == "m").map(|(_, v)| *v);
+    match (value, m) {
+        (Some(Num::Known(v)), Some(Num::Known(m))) if m.is_finite() && m > 0.0 => {
+            let scaled = match letter {
+                'R' | 'L' => v / m,
+                'C' => v * m,
+                _ => v,
+            };
+            Some(Num::Known(scaled))
+        }
+        (Some(Num::Known(_)), Some(Num::Varies)) if matches!(letter, 'R' | 'C' | 'L') => {
+            Some(Num::Varies)
+        }
+        (v, _) => v,
     }
 }
 

@@ -46,6 +46,12 @@ pub enum Dot {
     Lib,
     Endl,
     Title,
+    /// `.step`: a swept parameter is defined by its first value.
+    Step,
+    If,
+    Elseif,
+    Else,
+    Endif,
     Other,
 }
 
@@ -119,6 +125,11 @@ fn dot_kind(word: &str) -> Dot {
         (".lib", Dot::Lib),
         (".endl", Dot::Endl),
         (".title", Dot::Title),
+        (".step", Dot::Step),
+        (".if", Dot::If),
+        (".elseif", Dot::Elseif),
+        (".else", Dot::Else),
+        (".endif", Dot::Endif),
     ];
     CARDS
         .iter()
@@ -152,6 +163,21 @@ struct Lexer<'t> {
     open_line: u32,
     /// Whole-line suppressions waiting for the next statement.
     pending: Vec<usize>,
+    /// A `{`/`'` group still open at the end of a line: a `+` line may close it.
+    unclosed: Option<Unclosed>,
+}
+
+/// A bracketed group that runs past the end of its line.
+#[derive(Clone, Copy, Debug)]
+struct Unclosed {
+    /// Index of its token in [`Lexed::toks`].
+    tok: usize,
+    open: char,
+    close: char,
+    depth: usize,
+    /// Where it opened and where its first line ends, for the finding when nothing closes it.
+    at: usize,
+    line_end: usize,
 }
 
 /// Cuts `text` into statements. `is_top` makes the first line the title.
@@ -173,6 +199,7 @@ pub fn lex(file: FileId, text: &str, is_top: bool) -> Lexed {
         open: None,
         open_line: 0,
         pending: Vec::new(),
+        unclosed: None,
     };
     let mut block = Block::None;
     let mut line_no: u32 = 0;
@@ -206,7 +233,13 @@ pub fn lex(file: FileId, text: &str, is_top: bool) -> Lexed {
         }
         match content.chars().next() {
             None => continue,
-            Some('*') => {
+            // `*` in any column, and `;` or `//` as the first thing on a line, make the whole
+            // line a comment (simulators of the SPICE family accept all three).
+            Some('*') | Some(';') => {
+                lx.suppression(cstart, content, None);
+                continue;
+            }
+            Some('/') if content.starts_with("//") => {
                 lx.suppression(cstart, content, None);
                 continue;
             }
@@ -223,7 +256,11 @@ pub fn lex(file: FileId, text: &str, is_top: bool) -> Lexed {
                     }
                     continue;
                 }
-                lx.segment(cstart + 1, &content[1..]);
+                let body = &content[1..];
+                let consumed = lx.continue_group(cstart + 1, body);
+                if consumed == 0 || consumed < body.len() {
+                    lx.segment(cstart + 1 + consumed, &body[consumed..]);
+                }
                 continue;
             }
             Some(_) => {}
@@ -289,6 +326,17 @@ impl Lexer<'_> {
     }
 
     fn close(&mut self) {
+        if let Some(g) = self.unclosed.take() {
+            self.out.findings.push(Finding::new(
+                "syntax",
+                Severity::Error,
+                Span::new(self.out.file, g.at, g.line_end),
+                format!(
+                    "`{}` is never closed: expected `{}` before the end of the statement",
+                    g.open, g.close
+                ),
+            ));
+        }
         if let Some((start, tok_start, seg_start, head, end)) = self.open.take() {
             self.out.stmts.push(Stmt {
                 start,
@@ -417,14 +465,53 @@ impl Lexer<'_> {
                 depth += 1;
             }
         }
+        // A `+` line may still close it (`{a*` / `+ b}`); the finding waits for the end of
+        // the statement.
         let len = rest.trim_end_matches(is_ws).len().max(1);
-        self.out.findings.push(Finding::new(
-            "syntax",
-            Severity::Error,
-            Span::new(self.out.file, at, at + len),
-            format!("`{open}` is never closed: expected `{close}` before the end of the line"),
-        ));
+        self.unclosed = Some(Unclosed {
+            tok: self.out.toks.len(),
+            open,
+            close,
+            depth,
+            at,
+            line_end: at + len,
+        });
         rest.len()
+    }
+
+    /// Carries a group left open by the previous line into a `+` line at `base`: extends its
+    /// token up to the closing bracket (or the end of this line) and returns the bytes taken.
+    fn continue_group(&mut self, base: usize, code: &str) -> usize {
+        let Some(mut g) = self.unclosed.take() else {
+            return 0;
+        };
+        let mut closed_at = None;
+        for (i, c) in code.char_indices() {
+            if c == g.close {
+                if g.depth == 0 {
+                    closed_at = Some(i + c.len_utf8());
+                    break;
+                }
+                g.depth -= 1;
+            } else if c == g.open && g.open != g.close {
+                g.depth += 1;
+            }
+        }
+        let taken = closed_at.unwrap_or(code.len());
+        let end = base + code[..taken].trim_end_matches(is_ws).len();
+        if let Some(tok) = self.out.toks.get_mut(g.tok) {
+            tok.end = end as u32;
+        }
+        if end > base {
+            self.out.segs.push((base as u32, end as u32));
+        }
+        if let Some(open) = self.open.as_mut() {
+            open.4 = open.4.max(end as u32);
+        }
+        if closed_at.is_none() {
+            self.unclosed = Some(g);
+        }
+        taken
     }
 
     /// Records a `kickback: allow ...` comment; `own_line` is set for trailing comments.

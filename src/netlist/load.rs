@@ -3,9 +3,12 @@
 //! here: paths relative to the including file, cycles, nesting depth, size, and refusal of
 //! anything outside the top netlist's folder tree (checked before a file is opened).
 
+use super::conditional::{Branches, ConditionParams};
 use super::dialect;
 use super::flat::MissingInclude;
 use super::lex::{lex, Dot, Head, Lexed, TokKind};
+use super::library::{self, Shape};
+use super::stmt::StmtView;
 use super::text::decode;
 use super::Limits;
 use crate::diagnostic::{Finding, Severity};
@@ -25,6 +28,8 @@ pub struct DefBuild {
     pub models: Vec<StmtRef>,
     pub params: Vec<StmtRef>,
     pub funcs: Vec<StmtRef>,
+    /// `.step param NAME ...` cards, which define NAME.
+    pub steps: Vec<StmtRef>,
     pub children: Vec<usize>,
 }
 
@@ -38,6 +43,8 @@ pub struct Loaded {
     pub findings: Vec<Finding>,
     /// Set when the top file is of another netlist family; nothing else is read.
     pub foreign: bool,
+    /// Set when the top file holds only definitions (a library checked on its own).
+    pub library: bool,
     /// Statements the includes held when they passed `max_elements`; nothing more is read.
     pub statements_over_limit: Option<u64>,
 }
@@ -69,6 +76,8 @@ pub struct Loader<'s> {
     depth_reported: bool,
     /// Statements walked so far, counting a file again each time it is included.
     walked: u64,
+    /// Top-level `.param` values seen so far, for `.if` conditions.
+    condition_params: ConditionParams,
 }
 
 impl<'s> Loader<'s> {
@@ -85,6 +94,7 @@ impl<'s> Loader<'s> {
             def_stack: vec![0],
             depth_reported: false,
             walked: 0,
+            condition_params: ConditionParams::default(),
         }
     }
 
@@ -93,8 +103,13 @@ impl<'s> Loader<'s> {
         let Some(file) = self.sources.get(top) else {
             return self.out;
         };
-        let lexed = lex(top, &file.text, true);
+        let mut lexed = lex(top, &file.text, true);
         let name = file.name.clone();
+        let shape = library::shape(&name, &lexed, &file.text);
+        if shape == Shape::Library {
+            lexed = lex(top, &file.text, false);
+        }
+        self.out.library = shape != Shape::Deck;
         if let Some(finding) = dialect::detect(&lexed, &file.text) {
             self.out.findings.push(finding);
             self.out.files.push(lexed);
@@ -184,11 +199,21 @@ impl<'s> Loader<'s> {
 
     fn walk(&mut self, file: usize, from: usize, to: usize) {
         let mut i = from;
+        let mut branches = Branches::default();
         while i < to && self.out.statements_over_limit.is_none() {
             let Some(stmt) = self.out.files[file].stmts.get(i).copied() else {
                 break;
             };
             let at: StmtRef = (file as u32, i as u32);
+            if let Head::Dot(card @ (Dot::If | Dot::Elseif | Dot::Else | Dot::Endif)) = stmt.head {
+                branches.step(card, || self.condition(file, i));
+                i += 1;
+                continue;
+            }
+            if !branches.active() {
+                i += 1;
+                continue;
+            }
             match stmt.head {
                 Head::Element(_) | Head::Invalid => self.current().elements.push(at),
                 Head::Dot(Dot::Subckt) => self.open_subckt(at),
@@ -205,7 +230,13 @@ impl<'s> Loader<'s> {
                     }
                 }
                 Head::Dot(Dot::Model) => self.current().models.push(at),
-                Head::Dot(Dot::Param) => self.current().params.push(at),
+                Head::Dot(Dot::Param) => {
+                    if self.def_stack.len() == 1 {
+                        self.remember_params(file, i);
+                    }
+                    self.current().params.push(at)
+                }
+                Head::Dot(Dot::Step) => self.current().steps.push(at),
                 Head::Dot(Dot::Func) => self.current().funcs.push(at),
                 Head::Dot(Dot::Global) => self.out.globals.push(at),
                 Head::Dot(Dot::Title) => self.out.titles.push(at),
@@ -234,9 +265,41 @@ impl<'s> Loader<'s> {
                         )),
                     }
                 }
-                Head::Dot(Dot::Endl) | Head::Dot(Dot::Other) => {}
+                Head::Dot(
+                    Dot::Endl | Dot::Other | Dot::If | Dot::Elseif | Dot::Else | Dot::Endif,
+                ) => {}
             }
             i += 1;
+        }
+    }
+
+    /// The value of an `.if`/`.elseif` condition when it is a constant.
+    fn condition(&self, file: usize, stmt: usize) -> Option<bool> {
+        let lexed = self.out.files.get(file)?;
+        let text = &self.sources.get(lexed.file)?.text;
+        let view = StmtView::new(lexed, text, stmt)?;
+        if view.toks.len() < 2 {
+            return None;
+        }
+        let condition = view.text_between(1, view.toks.len() - 1);
+        self.condition_params.evaluate(&condition)
+    }
+
+    /// Records a top-level `.param` card's values for later `.if` conditions.
+    fn remember_params(&mut self, file: usize, stmt: usize) {
+        let Some(lexed) = self.out.files.get(file) else {
+            return;
+        };
+        let Some(source) = self.sources.get(lexed.file) else {
+            return;
+        };
+        let Some(view) = StmtView::new(lexed, &source.text, stmt) else {
+            return;
+        };
+        for item in view.items(1, view.toks.len(), true) {
+            if let Some(a) = super::deck::assign(&view, item) {
+                self.condition_params.define(a.name, &a.text);
+            }
         }
     }
 

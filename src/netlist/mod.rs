@@ -9,6 +9,7 @@
 //! `element*` (per-letter grammar into `parsed` parts), `flatten` and `source_spec` (hierarchy
 //! to [`FlatElement`]s), `write` (flat deck back to text).
 
+mod conditional;
 mod deck;
 mod dialect;
 mod element;
@@ -19,6 +20,7 @@ pub mod flat;
 mod flatten;
 mod functions;
 mod lex;
+mod library;
 mod load;
 mod parsed;
 mod scope;
@@ -263,6 +265,9 @@ fn run(
     let elements = {
         let mut flattener = flatten::Flattener::new(&deck, limits, keep_whole);
         flattener.run()?;
+        if loaded.library {
+            findings.extend(library::check_definitions(&deck, &flattener.used));
+        }
         std::mem::take(&mut flattener.out)
     };
     findings.extend(deck.sink.take());
@@ -274,6 +279,7 @@ fn run(
         globals: deck.globals.iter().map(|g| g.to_string()).collect(),
         suppressions,
         missing_includes: loaded.missing.clone(),
+        is_library: loaded.library,
         subckt_names: deck
             .defs
             .iter()

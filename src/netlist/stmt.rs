@@ -103,8 +103,17 @@ impl<'a> StmtView<'a> {
         if first == last {
             let t = self.tok(first);
             if matches!(self.kind(first), Some(TokKind::Brace | TokKind::Quote)) && t.len() >= 2 {
-                let inner = t.get(1..t.len() - 1).unwrap_or("");
-                return Cow::Borrowed(inner);
+                if !t.contains('\n') {
+                    let inner = t.get(1..t.len() - 1).unwrap_or("");
+                    return Cow::Borrowed(inner);
+                }
+                // Continued over `+` lines: the pieces without line breaks and markers.
+                let joined = self.text_between(first, last);
+                let inner = joined.get(1..).unwrap_or("");
+                // A group never closed (already a finding) keeps its last character.
+                let closer = if t.starts_with('{') { '}' } else { '\'' };
+                let inner = inner.strip_suffix(closer).unwrap_or(inner);
+                return Cow::Owned(inner.to_string());
             }
         }
         self.text_between(first, last)
