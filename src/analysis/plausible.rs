@@ -291,13 +291,17 @@ fn check_hull(
         return Ok(());
     };
     if hull.current > 0.0 {
-        // Current sources (a timer pin's bias current, say) can push a net held by nothing
-        // else anywhere: that is the stand-in, not the board. What the voltage sources drive
-        // on their own must still stay inside their reach.
-        let quiet = cx
-            .build_variant(component, state, variant)
-            .network
-            .without_current_sources();
+        // A stand-in's current source (a timer pin's bias current) can push a net held by
+        // nothing else anywhere: that is the stand-in, not the board. What the netlist's own
+        // sources drive without it must still stay inside their reach.
+        let built = cx.build_variant(component, state, variant);
+        let own: Vec<_> = component
+            .devices
+            .iter()
+            .filter(|&&d| cx.circuit.devices[d].kind == Kind::CurrentSource)
+            .filter_map(|d| built.devices.get(d)?.main)
+            .collect();
+        let quiet = built.network.without_current_sources(&own);
         if let Ok(op) = cx.solve_network(&quiet) {
             let voltage = |net| op.voltage(*solved.nodes.get(&net)?);
             if outside(&voltage, 0.0).is_none() {

@@ -278,13 +278,15 @@ impl Network {
         ElementId(self.elements.len() - 1)
     }
 
-    /// The same network with every independent current source set to zero (elements keep
-    /// their positions), to tell what the voltage sources alone drive.
-    pub fn without_current_sources(&self) -> Network {
+    /// The same network with its independent current sources set to zero, all but those in
+    /// `keep` (elements keep their positions), to tell what the other sources alone drive.
+    pub fn without_current_sources(&self, keep: &[ElementId]) -> Network {
         let mut quiet = self.clone();
-        for element in &mut quiet.elements {
+        for (index, element) in quiet.elements.iter_mut().enumerate() {
             if let Element::CurrentSource { amps, .. } = element {
-                *amps = 0.0;
+                if !keep.contains(&ElementId(index)) {
+                    *amps = 0.0;
+                }
             }
         }
         quiet
