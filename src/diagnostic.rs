@@ -45,14 +45,77 @@ pub struct Label {
     pub message: String,
 }
 
-/// A named number behind a finding, in SI base units, with where it came from
-/// (`from config`, `from .model DSW BV`, `built-in default for timer-555`, `computed`).
+/// Where a number came from, strongest first: what a finding may rest on. Only `Assumed`
+/// numbers (a kind's or the tool's default) are guesses; the others were stated somewhere or
+/// computed from what was.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, PartialOrd, Ord, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Provenance {
+    /// `[elements]`, `[parts]` or `[supply]` in `kickback.toml`.
+    Config,
+    /// The element's own line: its value or an instance parameter.
+    Instance,
+    /// A `.model` card (or a spread derived from one, such as thresholds around `VTO`).
+    Model,
+    /// The built-in library of registered part numbers.
+    Library,
+    /// A default of the part's kind or of the tool: not known for this part.
+    Assumed,
+    /// Worked out by the analyses from the netlist and the numbers above.
+    Computed,
+}
+
+impl Provenance {
+    /// The provenance a display text such as `from .model DSW BV` or `built-in default for
+    /// npn (...)` stands for. Every producer of part data writes one of these openings
+    /// (`circuit::data`, `circuit::defaults`, `circuit::library`, the rules' fallbacks).
+    pub fn of_source(text: &str) -> Provenance {
+        let t = text.trim_start();
+        if t.starts_with("from config") {
+            Provenance::Config
+        } else if t.starts_with("from instance parameter") || t.starts_with("from element value") {
+            Provenance::Instance
+        } else if t.starts_with("from .model") || t.starts_with("the model's") {
+            Provenance::Model
+        } else if t.starts_with("built-in default")
+            || t.starts_with("default ")
+            || t.contains("(DESIGN default)")
+            || t.starts_with("√(power_rating/R)")
+        {
+            Provenance::Assumed
+        } else if t.starts_with("built-in ") {
+            Provenance::Library
+        } else {
+            Provenance::Computed
+        }
+    }
+
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Provenance::Config => "config",
+            Provenance::Instance => "instance",
+            Provenance::Model => "model",
+            Provenance::Library => "library",
+            Provenance::Assumed => "assumed",
+            Provenance::Computed => "computed",
+        }
+    }
+}
+
+/// A named number behind a finding, in SI base units, with where it came from: the display
+/// text (`from config`, `from .model DSW BV`, `built-in default for timer-555`, `computed`)
+/// and its [`Provenance`] tag.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Quantity {
     pub name: String,
     pub value: f64,
     pub unit: String,
     pub source: String,
+    pub provenance: Provenance,
+    /// The finding's verdict turns on this number (a rating it is compared with): when it is
+    /// only assumed, the finding is a note unless it holds over the number's plausible range
+    /// (see [`Finding::holds_over_range`]).
+    pub decides: bool,
 }
 
 impl Quantity {
@@ -62,11 +125,14 @@ impl Quantity {
         unit: impl Into<String>,
         source: impl Into<String>,
     ) -> Self {
+        let source = source.into();
         Quantity {
             name: name.into(),
             value,
             unit: unit.into(),
-            source: source.into(),
+            provenance: Provenance::of_source(&source),
+            source,
+            decides: false,
         }
     }
 }
@@ -95,6 +161,9 @@ pub struct Finding {
     pub labels: Vec<Label>,
     pub help: Option<String>,
     pub values: Vec<Quantity>,
+    /// The rule checked that its verdict holds over the whole plausible range of every
+    /// assumed number it rests on, so it keeps its severity.
+    pub holds_over_range: bool,
 }
 
 impl Finding {
@@ -115,6 +184,7 @@ impl Finding {
             labels: Vec::new(),
             help: None,
             values: Vec::new(),
+            holds_over_range: false,
         }
     }
 
@@ -146,5 +216,37 @@ impl Finding {
     ) -> Self {
         self.values.push(Quantity::new(name, value, unit, source));
         self
+    }
+
+    /// As [`Finding::with_value`], for the number the verdict turns on (see
+    /// [`Quantity::decides`]).
+    pub fn with_deciding_value(
+        self,
+        name: impl Into<String>,
+        value: f64,
+        unit: impl Into<String>,
+        source: impl Into<String>,
+    ) -> Self {
+        let mut f = self.with_value(name, value, unit, source);
+        if let Some(q) = f.values.last_mut() {
+            q.decides = true;
+        }
+        f
+    }
+
+    /// Marks that the verdict holds over the plausible range of its assumed numbers.
+    pub fn holding_over_range(mut self, holds: bool) -> Self {
+        self.holds_over_range = holds;
+        self
+    }
+
+    /// The assumed number the verdict turns on, unless the verdict holds regardless.
+    pub fn resting_on_assumption(&self) -> Option<&Quantity> {
+        if self.holds_over_range {
+            return None;
+        }
+        self.values
+            .iter()
+            .find(|q| q.decides && q.provenance == Provenance::Assumed)
     }
 }

@@ -334,7 +334,7 @@ fn json_has_the_documented_shape() {
     assert_eq!(underdrive["instance_path"], serde_json::Value::Null);
     assert_eq!(
         underdrive["values"]["vgs_on"],
-        serde_json::json!({"value": 3.3, "unit": "V", "source": "from VPIN PULSE high level"})
+        serde_json::json!({"value": 3.3, "unit": "V", "source": "from VPIN PULSE high level", "provenance": "computed"})
     );
     assert_eq!(
         underdrive["labels"][1],

@@ -7,6 +7,7 @@ pub mod budget;
 pub mod dc;
 pub mod facts;
 pub mod partition;
+pub mod plausible;
 mod solved;
 pub mod stand_in;
 pub mod states;

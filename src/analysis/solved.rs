@@ -51,6 +51,7 @@ impl Built {
             op,
             nodes: self.nodes,
             devices: self.devices,
+            notes: Vec::new(),
         })
     }
 }
@@ -61,6 +62,9 @@ pub struct Solved {
     pub op: OperatingPoint,
     pub nodes: BTreeMap<NetId, Node>,
     pub devices: BTreeMap<DeviceId, DeviceElements>,
+    /// How the state was solved where that differs from the stand-ins' defaults (an ideal
+    /// inductor taken as a current ramp), for the provenance of its numbers.
+    pub notes: Vec<String>,
 }
 
 impl Solved {

@@ -6,6 +6,7 @@
 
 use super::dc::{self, DcError, Network, Node, OperatingPoint, SolveCache, SolveOptions};
 use super::partition::{Component, Fixed, Partition};
+use super::plausible::Variant;
 pub use super::solved::{Built, Solved};
 use super::stand_in;
 use crate::circuit::{Circuit, DeviceId, Kind, NetId};
@@ -285,12 +286,14 @@ impl<'a> Context<'a> {
         states
     }
 
-    /// Solves one component in one state.
+    /// Solves one component in one state, and checks that the answer means something: inside
+    /// what its sources can drive, and not resting on an assumed transistor gain (see
+    /// [`super::plausible`]); a state that fails the check is [`DcError::Implausible`].
     pub fn solve(&self, component: &Component, state: &State) -> Result<Solved, DcError> {
         if let Some(e) = self.oversized(component) {
             return Err(e);
         }
-        self.build(component, state).solve_in(self)
+        super::plausible::solve(self, component, state)
     }
 
     /// Solves a network built from a component (with elements of the caller's own), through
@@ -324,6 +327,12 @@ impl<'a> Context<'a> {
     /// An [oversized](Context::oversized) component builds an empty network that refuses to
     /// solve.
     pub fn build(&self, component: &Component, state: &State) -> Built {
+        self.build_variant(component, state, &Variant::default())
+    }
+
+    /// As [`Context::build`], with some devices stamped another way (an assumed gain at one
+    /// end of its range, an ideal inductor as a current ramp; see [`super::plausible`]).
+    pub fn build_variant(&self, component: &Component, state: &State, variant: &Variant) -> Built {
         if let Some(e) = self.oversized(component) {
             return Built {
                 network: Network::new(),
@@ -365,7 +374,14 @@ impl<'a> Context<'a> {
                 nodes.insert(net, n);
                 n
             };
-            let elements = stand_in::stamp(self, device, state, &mut network, &mut node_of);
+            let special = if *variant == Variant::default() {
+                None
+            } else {
+                super::plausible::stamp(self, device, variant, &mut network, &mut node_of)
+            };
+            let elements = special.unwrap_or_else(|| {
+                stand_in::stamp(self, device, state, &mut network, &mut node_of)
+            });
             devices.insert(device, elements);
         }
         Built {

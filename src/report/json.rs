@@ -62,6 +62,8 @@ pub struct Value {
     pub value: Option<f64>,
     pub unit: String,
     pub source: String,
+    /// `config`, `instance`, `model`, `library`, `assumed` or `computed`.
+    pub provenance: &'static str,
 }
 
 #[derive(Debug, Serialize)]
@@ -142,6 +144,7 @@ pub fn output(reports: &[FileReport]) -> CheckOutput {
                             value: q.value.is_finite().then_some(q.value),
                             unit: q.unit.clone(),
                             source: q.source.clone(),
+                            provenance: q.provenance.as_str(),
                         };
                         (q.name.clone(), value)
                     })

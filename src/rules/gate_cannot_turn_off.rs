@@ -22,6 +22,10 @@ pub const RULE: Rule = Rule {
     page: include_str!("../../rules/gate-cannot-turn-off.md"),
     check: Some(check),
 };
+/// The highest `vgs_th_min` a MOSFET with no stated threshold plausibly has (from memory:
+/// datasheet minimum thresholds run from about 1 V for logic-level parts to 3 V for standard
+/// ones).
+const UNSTATED_TH_MIN_HIGH_V: f64 = 3.0;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = SwitchIndex::new(cx);
@@ -128,9 +132,16 @@ fn finding(
             format_si(0.5 * th.value, "V")
         )
     };
+    // Where the threshold is only assumed, the verdict stands only if it would with the highest
+    // lowest-threshold an unstated switch plausibly has.
+    let holds = match severity {
+        Severity::Error => v >= UNSTATED_TH_MIN_HIGH_V,
+        _ => v > 0.5 * UNSTATED_TH_MIN_HIGH_V,
+    };
     Some(
         f.with_help(help)
             .with_value("off_state_vgs", v, "V", "computed")
-            .with_value("vgs_th_min", th.value, "V", th.source),
+            .with_deciding_value("vgs_th_min", th.value, "V", th.source)
+            .holding_over_range(holds),
     )
 }

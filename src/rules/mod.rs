@@ -132,7 +132,8 @@ pub fn find(id: &str) -> Option<&'static Rule> {
 }
 
 /// Runs every enabled rule; findings inside behavioural part models are left out
-/// ([`part_models`]).
+/// ([`part_models`]), and findings that rest on an assumed rating become notes
+/// ([`assumed`]).
 pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
     let mut out = Vec::new();
     for rule in REGISTRY {
@@ -142,9 +143,11 @@ pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
     }
     let models = part_models::model_instances(cx.netlist);
     out.retain(|f| !part_models::inside_model(f, &models));
+    assumed::settle(&mut out);
     out
 }
 
+pub mod assumed;
 pub mod eseries;
 pub mod front_end;
 pub mod hygiene_util;

@@ -24,6 +24,9 @@ pub const RULE: Rule = Rule {
 };
 /// Share of the rating a resistor may run at continuously (common practice derating).
 const DERATING: f64 = 0.6;
+/// The largest rating a resistor or pot fitted without a stated one plausibly has (from memory:
+/// general-purpose SMD and through-hole parts run from ⅒ W to ½ W).
+const UNSTATED_RATING_MAX_W: f64 = 0.5;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
@@ -165,9 +168,16 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Opt
             ));
         }
     }
+    // Where the rating is only assumed, the verdict stands only if it would with the largest
+    // rating an unstated part plausibly has.
+    let limit = match severity {
+        Severity::Error => UNSTATED_RATING_MAX_W,
+        _ => DERATING * UNSTATED_RATING_MAX_W,
+    };
     Some(
         f.with_help(help)
             .with_value("power", p, "W", "computed")
-            .with_value("power_rating", rating.value, "W", rating.source),
+            .with_deciding_value("power_rating", rating.value, "W", rating.source)
+            .holding_over_range(p > limit),
     )
 }

@@ -44,6 +44,7 @@ pub use cache::SolveCache;
 pub use models::MosRegion;
 pub use network::{
     BjtParams, BjtPolarity, DiodeParams, ElementId, MosParams, MosPolarity, Network, Node,
+    SourceHull, LEAK_OHMS,
 };
 pub use newton::Fallback;
 pub use options::{DcError, SolveOptions};

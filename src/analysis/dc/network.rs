@@ -183,6 +183,32 @@ impl Element {
     }
 }
 
+/// Resistances at or above this many ohms are taken as leaks that keep a node solvable, not
+/// as parts of the circuit (the analyses tie every net to ground through 1 TΩ).
+pub const LEAK_OHMS: f64 = 1e11;
+
+/// The reach of a network's independent sources. A network of resistors, diodes and
+/// transistors is passive: none of its node voltages can leave the interval `[lo, hi]` of its
+/// voltage sources (ground included; a source with neither terminal on ground widens both
+/// ends by its value, since it can stack on any other) except by what its current sources
+/// push through its resistors. Linear controlled sources can multiply that by their gain.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct SourceHull {
+    /// Lowest voltage-source value, or 0 (ground).
+    pub lo: f64,
+    /// Highest voltage-source value, or 0 (ground).
+    pub hi: f64,
+    /// Sum of the independent current sources' magnitudes, in amperes.
+    pub current: f64,
+    /// Largest resistance below [`LEAK_OHMS`].
+    pub largest_ohms: f64,
+    /// Largest gain of a controlled source (a VCVS's gain, a VCCS's transconductance times
+    /// the largest resistance), at least 1.
+    pub gain: f64,
+    /// The network holds a controlled source.
+    pub controlled: bool,
+}
+
 /// A small circuit to solve: nodes with names (kept for error messages) and primitive
 /// elements between them. Capacitors are left out (open at DC) and inductors are added as
 /// 0 V sources or low resistances by the caller.
@@ -250,6 +276,71 @@ impl Network {
     fn push(&mut self, element: Element) -> ElementId {
         self.elements.push(element);
         ElementId(self.elements.len() - 1)
+    }
+
+    /// The same network with its independent current sources set to zero, all but those in
+    /// `keep` (elements keep their positions), to tell what the other sources alone drive.
+    pub fn without_current_sources(&self, keep: &[ElementId]) -> Network {
+        let mut quiet = self.clone();
+        for (index, element) in quiet.elements.iter_mut().enumerate() {
+            if let Element::CurrentSource { amps, .. } = element {
+                if !keep.contains(&ElementId(index)) {
+                    *amps = 0.0;
+                }
+            }
+        }
+        quiet
+    }
+
+    /// What the independent sources allow the solution to reach (see [`SourceHull`]).
+    pub fn source_hull(&self) -> SourceHull {
+        let mut hull = SourceHull {
+            lo: 0.0,
+            hi: 0.0,
+            current: 0.0,
+            largest_ohms: 0.0,
+            gain: 1.0,
+            controlled: false,
+        };
+        let mut floating = 0.0;
+        for element in &self.elements {
+            match *element {
+                // A source from ground bounds its node; a floating one (a pack whose negative
+                // is not ground) can stack on any other, so it widens both ends.
+                Element::VoltageSource { p, n, volts } if volts.is_finite() => {
+                    if n == Node(0) || p == Node(0) {
+                        let v = if n == Node(0) { volts } else { -volts };
+                        hull.lo = hull.lo.min(v);
+                        hull.hi = hull.hi.max(v);
+                    } else {
+                        floating += volts.abs();
+                    }
+                }
+                Element::CurrentSource { amps, .. } if amps.is_finite() => {
+                    hull.current += amps.abs();
+                }
+                Element::Resistor { ohms, .. } if ohms.is_finite() && ohms < LEAK_OHMS => {
+                    hull.largest_ohms = hull.largest_ohms.max(ohms);
+                }
+                _ => {}
+            }
+        }
+        hull.lo -= floating;
+        hull.hi += floating;
+        for element in &self.elements {
+            match *element {
+                Element::Vcvs { gain, .. } => {
+                    hull.controlled = true;
+                    hull.gain = hull.gain.max(gain.abs());
+                }
+                Element::Vccs { gm, .. } => {
+                    hull.controlled = true;
+                    hull.gain = hull.gain.max(gm.abs() * hull.largest_ohms);
+                }
+                _ => {}
+            }
+        }
+        hull
     }
 
     /// A resistor of `ohms` between `a` and `b`. Zero (anything below 1 nΩ) is allowed and acts

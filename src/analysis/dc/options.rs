@@ -85,6 +85,15 @@ pub enum DcError {
         /// Solves the analysis may request.
         limit: usize,
     },
+    /// The operating point is outside what the network's sources allow, or rests on a value
+    /// only assumed: the model is incomplete (an unbounded controlled source, an ideal
+    /// inductor taken as a short across a rail, a transistor whose gain is not stated). Raised
+    /// by the analyses after a solve, never by the engine; `cause` says what to add.
+    #[error("{cause}")]
+    Implausible {
+        /// What makes the solve meaningless, naming the parts.
+        cause: String,
+    },
     /// An element has a value the models cannot use (negative or non-finite resistance,
     /// non-positive saturation current, a node from another network, ...).
     #[error("element {} is invalid: {reason}", element.index())]

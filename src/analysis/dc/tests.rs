@@ -302,3 +302,30 @@ fn elimination_matches_the_library_lu_to_the_last_bit() {
         assert!(same, "trial {trial}: {ours:?} vs {theirs:?}");
     }
 }
+
+#[test]
+fn source_hull_spans_the_sources_and_ignores_leaks() {
+    let mut net = Network::new();
+    let (a, b, c) = (net.add_node("a"), net.add_node("b"), net.add_node("c"));
+    let gnd = net.ground();
+    net.add_voltage_source(a, gnd, 12.0);
+    net.add_voltage_source(b, gnd, -5.0);
+    net.add_resistor(a, c, 4.7e3);
+    net.add_resistor(c, gnd, 1e12);
+    net.add_current_source(c, gnd, 2e-6);
+    let hull = net.source_hull();
+    assert_eq!((hull.lo, hull.hi), (-5.0, 12.0));
+    assert_eq!(hull.largest_ohms, 4.7e3);
+    assert_eq!(hull.current, 2e-6);
+    assert!(!hull.controlled);
+    assert_eq!(hull.gain, 1.0);
+    // A floating 24 V pack can sit anywhere: it widens both ends.
+    let (d, e) = (net.add_node("d"), net.add_node("e"));
+    net.add_voltage_source(d, e, 24.0);
+    let hull = net.source_hull();
+    assert_eq!((hull.lo, hull.hi), (-29.0, 36.0));
+    net.add_vcvs(c, gnd, a, b, 1e5);
+    let hull = net.source_hull();
+    assert!(hull.controlled);
+    assert_eq!(hull.gain, 1e5);
+}

@@ -127,6 +127,14 @@ pub fn on_off(
         ..OnOff::default()
     };
     let partner = partner.filter(|(p, _)| Some(*p) != control && solves.inputs.contains(p));
+    // A switching input whose level could not be told apart because the states of one level
+    // have no trustworthy solve: which states are on is not known, so none is published.
+    let undecided = on_high.is_none()
+        && control.is_some_and(|c| solves.inputs.contains(&c))
+        && solves.states.iter().any(|s| s.solved.is_none());
+    if undecided {
+        return out;
+    }
     for (i, s) in solves.states.iter().enumerate() {
         if s.solved.is_none() {
             continue;

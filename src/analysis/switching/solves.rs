@@ -152,9 +152,15 @@ pub fn solve_component(
     let states = states_for(cx, component, key_inputs, wiper_grid)
         .into_iter()
         .map(|state| {
-            let label = state.describe(cx, &inputs);
+            let mut label = state.describe(cx, &inputs);
             let solved = match cx.solve(component, &state) {
-                Ok(s) => Some(s),
+                Ok(s) => {
+                    // How the state was solved is part of its numbers' provenance.
+                    for note in &s.notes {
+                        label = format!("{label}; {note}");
+                    }
+                    Some(s)
+                }
                 Err(e) => {
                     if failure.is_none() {
                         failure = Some((label.clone(), e));
@@ -186,7 +192,16 @@ pub fn failure_finding(
     let (label, error) = solves.failure.as_ref()?;
     let d = cx.circuit.devices.get(device)?;
     let element = cx.netlist.elements.get(d.element)?;
+    let mut severity = Severity::Warning;
     let message = match error {
+        // The solve itself succeeded, but means nothing: a note that says what to add.
+        DcError::Implausible { cause } => {
+            severity = Severity::Note;
+            format!(
+                "the sub-network around {} has no trustworthy DC state (`{label}`): {cause}",
+                element.path
+            )
+        }
         DcError::TooLarge { unknowns, limit } => format!(
             "the sub-network around {} has {unknowns} unknowns, more than the {limit} the DC engine solves densely; its voltages, currents and dissipation are not checked",
             element.path
@@ -197,7 +212,7 @@ pub fn failure_finding(
         ),
     };
     Some(
-        Finding::new("solve-failed", Severity::Warning, element.span, message)
+        Finding::new("solve-failed", severity, element.span, message)
             .with_element(element.name.clone(), element.instance_path()),
     )
 }

@@ -461,7 +461,12 @@ fn solve_failed(cx: &Context<'_>, setup: &Setup, e: &DcError) -> Finding {
             cx.name(setup.device)
         ),
     };
-    let mut f = Finding::new("solve-failed", Severity::Warning, span, message);
+    let severity = if matches!(e, DcError::Implausible { .. }) {
+        Severity::Note
+    } else {
+        Severity::Warning
+    };
+    let mut f = Finding::new("solve-failed", severity, span, message);
     if let Some(e) = element {
         f = f.with_element(e.name.clone(), e.instance_path());
     }

@@ -1,0 +1,272 @@
+//! The layering that DEVELOPERS.md states as "X never depends on Y", enforced: every
+//! `crate::…` path in `src/` is read and checked against the allowed directions, and no rule
+//! module reaches into another rule module.
+
+use std::collections::{BTreeMap, BTreeSet};
+use std::path::{Path, PathBuf};
+
+/// What each top-level module may use. Anything not listed is a backward or sideways edge.
+/// Keep in step with the "never depends on" list in DEVELOPERS.md.
+fn allowed() -> BTreeMap<&'static str, Vec<&'static str>> {
+    let mut a = BTreeMap::new();
+    a.insert("source", vec![]);
+    a.insert("diagnostic", vec!["source"]);
+    a.insert("vocabulary", vec![]);
+    a.insert("units", vec![]);
+    a.insert("netlist", vec!["source", "diagnostic"]);
+    a.insert(
+        "config",
+        vec!["source", "diagnostic", "netlist", "vocabulary"],
+    );
+    a.insert(
+        "circuit",
+        vec!["source", "diagnostic", "netlist", "config", "vocabulary"],
+    );
+    a.insert(
+        "analysis",
+        vec![
+            "source",
+            "diagnostic",
+            "netlist",
+            "config",
+            "vocabulary",
+            "circuit",
+        ],
+    );
+    a.insert(
+        "rules",
+        vec![
+            "source",
+            "diagnostic",
+            "netlist",
+            "config",
+            "vocabulary",
+            "circuit",
+            "analysis",
+        ],
+    );
+    a.insert("outcome", vec!["source", "diagnostic", "netlist", "config"]);
+    a.insert(
+        "report",
+        vec![
+            "source",
+            "diagnostic",
+            "netlist",
+            "config",
+            "vocabulary",
+            "circuit",
+            "analysis",
+            "rules",
+            "outcome",
+        ],
+    );
+    a.insert(
+        "check",
+        vec![
+            "source",
+            "diagnostic",
+            "netlist",
+            "config",
+            "vocabulary",
+            "circuit",
+            "analysis",
+            "rules",
+            "outcome",
+        ],
+    );
+    a.insert(
+        "app",
+        vec![
+            "source",
+            "diagnostic",
+            "netlist",
+            "config",
+            "vocabulary",
+            "circuit",
+            "analysis",
+            "rules",
+            "outcome",
+            "check",
+            "report",
+        ],
+    );
+    // Leaves every stage may use.
+    for (name, uses) in a.iter_mut() {
+        if !["source", "units", "vocabulary"].contains(name) {
+            uses.push("units");
+        }
+    }
+    a
+}
+
+fn rust_files(dir: &Path, out: &mut Vec<PathBuf>) {
+    let Ok(entries) = std::fs::read_dir(dir) else {
+        return;
+    };
+    for entry in entries.flatten() {
+        let path = entry.path();
+        if path.is_dir() {
+            rust_files(&path, out);
+        } else if path.extension().is_some_and(|e| e == "rs") {
+            out.push(path);
+        }
+    }
+}
+
+/// The code of a file without its comments (line comments and doc comments), so prose that
+/// names a module is not taken for a dependency.
+fn code_lines(text: &str) -> impl Iterator<Item = (usize, &str)> {
+    text.lines().enumerate().filter_map(|(i, line)| {
+        let code = match line.find("//") {
+            Some(at) => &line[..at],
+            None => line,
+        };
+        (!code.trim().is_empty()).then_some((i + 1, code))
+    })
+}
+
+/// Every `crate::NAME` in a piece of code.
+fn crate_paths(code: &str) -> Vec<String> {
+    let mut out = Vec::new();
+    let mut rest = code;
+    while let Some(at) = rest.find("crate::") {
+        let before = rest[..at].chars().last();
+        let after = &rest[at + "crate::".len()..];
+        let name: String = after
+            .chars()
+            .take_while(|c| c.is_ascii_alphanumeric() || *c == '_')
+            .collect();
+        if !before.is_some_and(|c| c.is_ascii_alphanumeric() || c == '_') && !name.is_empty() {
+            out.push(name);
+        }
+        rest = after;
+    }
+    out
+}
+
+fn src() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("src")
+}
+
+/// `src/rules/gate_underdrive.rs` → `rules`; `src/lib.rs` and `src/main.rs` → `None`.
+fn top_module(path: &Path) -> Option<String> {
+    let rel = path.strip_prefix(src()).ok()?;
+    let first = rel
+        .components()
+        .next()?
+        .as_os_str()
+        .to_string_lossy()
+        .to_string();
+    let name = first.strip_suffix(".rs").unwrap_or(&first).to_string();
+    (name != "lib" && name != "main").then_some(name)
+}
+
+#[test]
+fn no_module_depends_on_a_later_stage() {
+    let allowed = allowed();
+    let mut files = Vec::new();
+    rust_files(&src(), &mut files);
+    files.sort();
+    let mut problems = Vec::new();
+    for file in &files {
+        let Some(module) = top_module(file) else {
+            continue;
+        };
+        let Some(may_use) = allowed.get(module.as_str()) else {
+            problems.push(format!(
+                "{}: module `{module}` is not in the layering table; add it to DEVELOPERS.md \
+                 and to this test",
+                file.display()
+            ));
+            continue;
+        };
+        let text = std::fs::read_to_string(file).unwrap_or_default();
+        for (line, code) in code_lines(&text) {
+            for used in crate_paths(code) {
+                if used != module && !may_use.contains(&used.as_str()) {
+                    problems.push(format!(
+                        "{}:{line}: `{module}` never depends on `{used}`",
+                        file.display()
+                    ));
+                }
+            }
+        }
+    }
+    assert!(problems.is_empty(), "{}", problems.join("\n"));
+}
+
+/// Rule modules: files in `src/rules/` that declare a rule's identity.
+fn rule_modules() -> BTreeMap<String, PathBuf> {
+    let mut files = Vec::new();
+    rust_files(&src().join("rules"), &mut files);
+    files
+        .into_iter()
+        .filter(|f| {
+            std::fs::read_to_string(f)
+                .unwrap_or_default()
+                .lines()
+                .any(|l| l.starts_with("pub const RULE: Rule ="))
+        })
+        .filter_map(|f| Some((f.file_stem()?.to_string_lossy().to_string(), f)))
+        .collect()
+}
+
+#[test]
+fn no_rule_imports_another_rule() {
+    let modules = rule_modules();
+    assert!(modules.len() > 30, "rule modules not found: {modules:?}");
+    let names: BTreeSet<&str> = modules.keys().map(|s| s.as_str()).collect();
+    let mut problems = Vec::new();
+    for (name, file) in &modules {
+        let text = std::fs::read_to_string(file).unwrap_or_default();
+        for (line, code) in code_lines(&text) {
+            for other in &names {
+                if other == name {
+                    continue;
+                }
+                let paths = [
+                    format!("super::{other}::"),
+                    format!("rules::{other}::"),
+                    format!("super::{other}}}"),
+                    format!("super::{other},"),
+                    format!("super::{other};"),
+                ];
+                if paths.iter().any(|p| code.contains(p.as_str())) {
+                    problems.push(format!(
+                        "{}:{line}: rule `{name}` uses rule `{other}`; move what they share \
+                         into the analysis (a fact) or into `rules/support`",
+                        file.display()
+                    ));
+                }
+            }
+        }
+    }
+    assert!(problems.is_empty(), "{}", problems.join("\n"));
+}
+
+#[test]
+fn every_rule_module_is_registered_once() {
+    let registry = std::fs::read_to_string(src().join("rules/mod.rs")).unwrap();
+    for name in rule_modules().keys() {
+        let line = format!("&{name}::RULE,");
+        assert_eq!(
+            registry.matches(line.as_str()).count(),
+            1,
+            "`{name}` declares a rule; list it once in REGISTRY as `{line}`"
+        );
+    }
+}
+
+#[test]
+fn the_checker_sees_what_it_must() {
+    // The scanner itself: paths in code are found, prose in comments is not.
+    assert_eq!(crate_paths("use crate::analysis::Range;"), ["analysis"]);
+    assert_eq!(
+        crate_paths("let x = crate::rules::find(id); mycrate::x"),
+        ["rules"]
+    );
+    let lines: Vec<_> =
+        code_lines("// crate::report\nuse crate::source; // crate::app\n").collect();
+    assert_eq!(lines.len(), 1);
+    assert_eq!(crate_paths(lines[0].1), ["source"]);
+}
