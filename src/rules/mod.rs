@@ -30,6 +30,7 @@ pub mod net_dangling;
 pub mod pin_unconnected;
 pub mod pot_wiper_overcurrent;
 pub mod pwm_audible;
+pub mod pwm_frequency_unsuitable;
 pub mod resistor_overpower;
 pub mod shoot_through;
 pub mod supply_out_of_range;
@@ -321,6 +322,12 @@ pub static REGISTRY: &[RuleInfo] = &[
         Note,
         "The switching frequency lies in the audible band",
         Some(pwm_audible::check)
+    ),
+    rule!(
+        "pwm-frequency-unsuitable",
+        Warning,
+        "The PWM period is longer than the motor's L/R, or too short for the gate's edges",
+        Some(pwm_frequency_unsuitable::check)
     ),
     rule!(
         "suppression-unused",
