@@ -90,7 +90,10 @@ fn stirrer_effective_voltage_by_hand() {
     let off = -vf * r / r;
     // Periodic steady state, continuous conduction: i_max = V1(1−a) + a·i_min and
     // i_min = V2(1−b) + b·i_max with a = e^(−DT/τ), b = e^(−(1−D)T/τ), in volts across R.
-    let (d, t) = (0.9, 50e-6);
+    // The PULSE's duty counts half of each 20 ns edge: 90.04 % of 50 µs.
+    let d = stir.duty.as_ref().expect("duty").max;
+    let t = 1.0 / stir.frequency_hz.as_ref().expect("frequency").min;
+    assert!((d - 0.9).abs() < 1e-3 && (t - 50e-6).abs() < 1e-9);
     let (a, b) = ((-d * t / tau).exp(), (-(1.0 - d) * t / tau).exp());
     let max = (vpk * (1.0 - a) + a * (1.0 - b) * off) / (1.0 - a * b);
     let min = off * (1.0 - b) + b * max;

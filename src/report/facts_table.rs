@@ -390,7 +390,7 @@ impl Table<'_> {
         let how = match l.effective_method {
             EffectiveMethod::ClosedForm => format!("I_rms·R, R-L closed form{tau}"),
             EffectiveMethod::RmsAssumed => "Vpk·√D: L/R or frequency unknown".to_string(),
-            EffectiveMethod::Peak => "the peak: no duty known".to_string(),
+            EffectiveMethod::Peak => "the peak: on all the time, or no duty known".to_string(),
         };
         self.range(out, "average", &l.avg_v, "V", "");
         self.range(out, "effective", &l.effective_v, "V", &how);

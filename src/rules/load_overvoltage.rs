@@ -63,6 +63,9 @@ fn finding(
              taken to follow each pulse)"
                 .to_string()
         }
+        EffectiveMethod::Peak if load.duty.is_some() => {
+            "effective (on all the time: the peak)".to_string()
+        }
         EffectiveMethod::Peak => "effective (no duty known: the peak)".to_string(),
     };
     let duty_part = load

@@ -123,7 +123,8 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Opt
     };
     // Thermal ratings hold for the average; the peak inside a pulse is reported beside it.
     let peak = facts.peak_power_w.max;
-    let averaged = peak > p * (1.0 + 1e-6);
+    // Worth a word only where the pulse makes a difference (more than 5 %).
+    let averaged = peak > p * 1.05;
     let power_text = if averaged {
         format!(
             "{} on average ({}; {} peak while it conducts)",

@@ -34,7 +34,7 @@ fn driver_ohms(cx: &Context<'_>, driver: DeviceId) -> Option<(f64, String)> {
     match d.kind {
         Kind::VoltageSource => Some(match d.data.value("rser").filter(|r| *r >= 0.0) {
             Some(r) => (r, format!("{name}'s Rser")),
-            None => (0.0, format!("{name} an ideal source")),
+            None => (0.0, format!("{name} (an ideal source, 0 Ω)")),
         }),
         Kind::Timer555 | Kind::Timer555Cmos => Some((
             stand_in::TIMER_OUTPUT_OHMS,
