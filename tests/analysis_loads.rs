@@ -35,11 +35,17 @@ fn effective_voltage_follows_the_r_l_closed_form() {
         let eff = load.effective_v.as_ref().expect("effective").max;
         let avg = load.avg_v.as_ref().expect("average").max;
         // The freewheel drop pulls the average a little below Vpk·D; never above it.
-        assert!(avg <= peak * 0.25 + 1e-9 && avg > peak * 0.2, "avg {avg} of {peak}");
+        assert!(
+            avg <= peak * 0.25 + 1e-9 && avg > peak * 0.2,
+            "avg {avg} of {peak}"
+        );
         if toward_average {
             assert!((eff - avg).abs() < 0.01 * avg, "{eff} vs {avg}");
         } else {
-            assert!((eff - peak * 0.5).abs() < 0.03 * peak * 0.5, "{eff} vs {peak}");
+            assert!(
+                (eff - peak * 0.5).abs() < 0.03 * peak * 0.5,
+                "{eff} vs {peak}"
+            );
         }
         assert!(eff >= avg - 1e-9);
         assert!(load.ripple_a.is_some());

@@ -36,7 +36,10 @@ fn resistor_into_the_discharge_pin_at_the_pots_zero_end() {
     // astable's period it dissipates the peak times the low share, 1 − D.
     let duty = a.timers[0].duty.as_ref().expect("duty");
     let avg = r1.power_w.max;
-    assert!(avg < p && avg >= p * (1.0 - duty.max) - 1e-9, "{avg} of {p}, {duty:?}");
+    assert!(
+        avg < p && avg >= p * (1.0 - duty.max) - 1e-9,
+        "{avg} of {p}, {duty:?}"
+    );
     assert_close(p, 0.81, 0.2, "about 0.8 W");
     let i = pot.wiper_current_a.as_ref().expect("wiper current").max;
     assert_close(i, 9.0 / 110.0, 1e-3, "wiper current");

@@ -324,5 +324,8 @@ fn relay_on_npn_and_pulsed_solenoid() {
     // At T ≈ 10·τ the current rests at zero for most of the off phase and rises with τ in
     // each pulse: between the average Vpk·D and Vpk·√D (9.41 V by hand on 24 V with a 0.4 V
     // freewheel drop).
-    assert!(eff > peak * 0.25 && eff < peak * 0.25f64.sqrt(), "{eff} of {peak}");
+    assert!(
+        eff > peak * 0.25 && eff < peak * 0.25f64.sqrt(),
+        "{eff} of {peak}"
+    );
 }

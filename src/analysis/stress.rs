@@ -372,13 +372,19 @@ fn timing_swing(timers: &[TimerFacts], c: &mut CapacitorFacts) {
         // A one-shot's capacitor rests discharged between pulses.
         (0.0, "discharged between pulses".to_string())
     } else {
-        (lower.min, format!("{} (the trigger threshold)", lower.min_state))
+        (
+            lower.min,
+            format!("{} (the trigger threshold)", lower.min_state),
+        )
     };
     c.voltage_v = Range {
         min,
         max: upper.max,
         min_state,
-        max_state: format!("{} (the threshold, ⅔ of the control voltage)", upper.max_state),
+        max_state: format!(
+            "{} (the threshold, ⅔ of the control voltage)",
+            upper.max_state
+        ),
     };
 }
 

@@ -235,4 +235,3 @@ pub fn render_json(analysis: &Analysis, netlist: &FlatNetlist, circuit: &Circuit
     text.push('\n');
     text
 }
-

@@ -457,7 +457,8 @@ impl Table<'_> {
                 "W",
                 &note,
             );
-            if r.peak_power_w.max > r.power_w.max * (1.0 + 1e-6) {
+            // The peak beside the average only where the pulse makes a difference.
+            if r.peak_power_w.max > r.power_w.max * 1.05 && r.peak_power_w.max > 1e-9 {
                 self.range(
                     out,
                     "  peak",

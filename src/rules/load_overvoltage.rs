@@ -186,4 +186,3 @@ fn supply_of(
         .map(|s| s.device)
         .or_else(|| own_switch.and_then(|s| s.rail_supply))
 }
-

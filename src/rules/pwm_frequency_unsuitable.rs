@@ -129,8 +129,8 @@ fn slow_gate(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
             finding = label(finding, cx, r, "in series with the gate");
         }
     }
-    let ohms = EDGE_SHARE * period / (crate::analysis::switching::edges::RC_EDGE_FACTOR
-        * edges.input_capacitance_f);
+    let ohms = EDGE_SHARE * period
+        / (crate::analysis::switching::edges::RC_EDGE_FACTOR * edges.input_capacitance_f);
     finding = finding
         .with_help(format!(
             "drive the gate through at most {} in all (a gate driver, a smaller series resistor), \

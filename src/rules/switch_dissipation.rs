@@ -53,12 +53,10 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
         .map(|r| in_conduction_sense(r, k).weakest);
     // The analysis's on-resistance at the actual drive, from the gain it published.
     let rds = if k.is_mos() && !sw.linear_region && !sw.follower {
-        sw.rds_on_ohm.as_ref().map(|r| r.max).or_else(|| {
-            sw.gain
-                .as_ref()
-                .zip(vgs)
-                .and_then(|(g, v)| g.rds_at(v))
-        })
+        sw.rds_on_ohm
+            .as_ref()
+            .map(|r| r.max)
+            .or_else(|| sw.gain.as_ref().zip(vgs).and_then(|(g, v)| g.rds_at(v)))
     } else {
         None
     };
