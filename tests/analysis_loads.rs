@@ -3,6 +3,7 @@
 mod analysis_support;
 
 use analysis_support::{assert_close, Board};
+use kickback::analysis::EffectiveMethod;
 use kickback::circuit::Kind;
 
 /// A motor (10 Ω) on a low-side switch driven hard at 25 % duty and the given period.
@@ -21,25 +22,33 @@ fn pwm_motor(period: f64, inductance: Option<f64>) -> Board {
 }
 
 #[test]
-fn average_when_the_period_is_short_against_tau() {
-    // τ = L/R = 10 mH / 10 Ω = 1 ms. The rule (common practice): average when T < τ/3.
-    for (period, average) in [
-        (50e-6, true),
-        (300e-6, true),
-        (400e-6, false),
-        (1e-3, false),
-    ] {
+fn effective_voltage_follows_the_r_l_closed_form() {
+    // τ = L/R = 10 mH / 10 Ω = 1 ms. First-order R-L step response in its periodic steady
+    // state: the effective voltage I_rms·R tends to the average Vpk·D when T ≪ τ and to the
+    // RMS Vpk·√D when T ≫ τ (the current then follows each pulse).
+    for (period, toward_average) in [(20e-6, true), (100e-3, false)] {
         let (a, _) = pwm_motor(period, Some(10e-3)).analyze();
         let load = &a.loads[0];
         assert_close(load.time_constant_s.expect("tau"), 1e-3, 1e-12, "tau");
-        assert_eq!(load.effective_is_average, average, "period {period}");
+        assert_eq!(load.effective_method, EffectiveMethod::ClosedForm);
         let peak = load.peak_v.as_ref().expect("peak").max;
         let eff = load.effective_v.as_ref().expect("effective").max;
         let avg = load.avg_v.as_ref().expect("average").max;
-        // Vpk·D and Vpk·√D at D = 25 %.
-        assert_close(avg, peak * 0.25, 1e-6, "average");
-        let want = if average { peak * 0.25 } else { peak * 0.5 };
-        assert_close(eff, want, 1e-6, "effective");
+        // The freewheel drop pulls the average a little below Vpk·D; never above it.
+        assert!(
+            avg <= peak * 0.25 + 1e-9 && avg > peak * 0.2,
+            "avg {avg} of {peak}"
+        );
+        if toward_average {
+            assert!((eff - avg).abs() < 0.01 * avg, "{eff} vs {avg}");
+        } else {
+            assert!(
+                (eff - peak * 0.5).abs() < 0.03 * peak * 0.5,
+                "{eff} vs {peak}"
+            );
+        }
+        assert!(eff >= avg - 1e-9);
+        assert!(load.ripple_a.is_some());
     }
 }
 
@@ -48,7 +57,7 @@ fn rms_when_tau_is_unknown() {
     let (a, _) = pwm_motor(50e-6, None).analyze();
     let load = &a.loads[0];
     assert_eq!(load.time_constant_s, None);
-    assert!(!load.effective_is_average);
+    assert_eq!(load.effective_method, EffectiveMethod::RmsAssumed);
     let peak = load.peak_v.as_ref().expect("peak").max;
     assert_close(
         load.effective_v.as_ref().expect("eff").max,
@@ -160,24 +169,15 @@ fn duty_and_frequency_come_from_the_driving_timer() {
     assert_eq!(sw.frequency_hz, timer.frequency_hz);
     let duty = sw.duty.as_ref().expect("timer duty");
     let f = sw.frequency_hz.as_ref().expect("timer frequency");
-    // τ = 1 mH / 10 Ω = 100 µs; T ≈ 145 µs is not below τ/3: RMS over the duty range.
+    // τ = 1 mH / 10 Ω = 100 µs against T ≈ 145 µs: the closed form lands between the average
+    // Vpk·D and the RMS Vpk·√D at each end of the duty range.
     let load = &a.loads[0];
     assert!(1.0 / f.min > 1e-4 / 3.0);
-    assert!(!load.effective_is_average);
+    assert_eq!(load.effective_method, EffectiveMethod::ClosedForm);
     let peak = load.peak_v.as_ref().expect("peak");
     let eff = load.effective_v.as_ref().expect("eff");
-    assert_close(
-        eff.min,
-        peak.min * duty.min.sqrt(),
-        1e-9,
-        "RMS at the lowest duty",
-    );
-    assert_close(
-        eff.max,
-        peak.max * duty.max.sqrt(),
-        1e-9,
-        "RMS at the highest duty",
-    );
+    assert!(eff.min > peak.min * duty.min * 0.95 && eff.min < peak.min * duty.min.sqrt());
+    assert!(eff.max > peak.max * duty.max * 0.95 && eff.max < peak.max * duty.max.sqrt());
     // The 555's output high, 12 − 1.7 V, on the gate (no gate current at DC).
     assert_close(sw.vgs_on_v.as_ref().expect("vgs").min, 10.3, 1e-6, "gate");
 }

@@ -3,7 +3,7 @@
 mod analysis_support;
 
 use analysis_support::{assert_close, Board};
-use kickback::analysis::{FreewheelKind, Side};
+use kickback::analysis::{EffectiveMethod, FreewheelKind, Side};
 use kickback::circuit::Kind;
 
 /// Thermal voltage kT/q at 27 °C, the DC engine's default temperature.
@@ -316,13 +316,16 @@ fn relay_on_npn_and_pulsed_solenoid() {
     assert!(!relay.linear_region);
     assert!(relay.vds_on_v.as_ref().expect("vce").max < 0.3);
     let sol = a.loads.iter().find(|l| l.device == b.id("XV")).expect("XV");
-    // τ = L/R = 0.1 H / 24 Ω ≈ 4.2 ms; T = 40 ms is long against it: RMS.
-    assert!(!sol.effective_is_average);
+    // τ = L/R = 0.1 H / 24 Ω ≈ 4.2 ms; T = 40 ms is long against it: the closed form comes
+    // near the RMS Vpk·√D (first-order R-L step response, periodic steady state).
+    assert_eq!(sol.effective_method, EffectiveMethod::ClosedForm);
     let peak = sol.peak_v.as_ref().expect("peak").max;
-    assert_close(
-        sol.effective_v.as_ref().expect("eff").max,
-        peak * 0.25f64.sqrt(),
-        1e-6,
-        "RMS",
+    let eff = sol.effective_v.as_ref().expect("eff").max;
+    // At T ≈ 10·τ the current rests at zero for most of the off phase and rises with τ in
+    // each pulse: between the average Vpk·D and Vpk·√D (9.41 V by hand on 24 V with a 0.4 V
+    // freewheel drop).
+    assert!(
+        eff > peak * 0.25 && eff < peak * 0.25f64.sqrt(),
+        "{eff} of {peak}"
     );
 }

@@ -4,7 +4,9 @@
 
 mod motor_rules_kit;
 
-use kickback::analysis::{CapacitorFacts, FreewheelKind, ResistorFacts, Side, SupplyFacts};
+use kickback::analysis::{
+    CapacitorFacts, EffectiveMethod, FreewheelKind, ResistorFacts, Side, SupplyFacts,
+};
 use kickback::circuit::{Kind, PinRole};
 use kickback::diagnostic::Severity;
 use kickback::rules::{
@@ -59,7 +61,10 @@ fn small_motor(rail: f64) -> Kit {
         "RV1 at 0 %",
         "RV1 at 100 %",
     ));
-    l.effective_is_average = false;
+    l.effective_method = EffectiveMethod::RmsAssumed;
+    // L/R unknown: the duty that keeps Vpk·√D at the rating is (V/Vpk)², as the analysis
+    // publishes it.
+    l.duty_limit = Some((3.0 / (rail - 0.05)).powi(2));
     l.switch = Some(m);
     kit.analysis.loads.push(l);
     kit.analysis.switches.push(sw);
@@ -252,12 +257,19 @@ fn discharge_short() -> Kit {
             "XU1 high",
             "V1 at 9 V, XU1 low, XRV1 wiper at 0 %",
         ),
+        peak_power_w: range(
+            0.0,
+            0.81,
+            "XU1 high",
+            "V1 at 9 V, XU1 low, XRV1 wiper at 0 %",
+        ),
         wiper_current_a: None,
         current_a: None,
     });
     kit.analysis.resistors.push(ResistorFacts {
         device: pot,
         power_w: range(0.0, 0.2, "XU1 high", "XU1 low, XRV1 wiper at 40 %"),
+        peak_power_w: range(0.0, 0.2, "XU1 high", "XU1 low, XRV1 wiper at 40 %"),
         wiper_current_a: Some(range(
             0.0,
             0.09,

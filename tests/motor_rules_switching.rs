@@ -197,6 +197,10 @@ fn pump_on_timer(vcc: f64, amps: f64) -> Kit {
     sw.vgs_on_v = Some(point(vcc - 1.7, "XU1 high"));
     sw.vgs_off_v = Some(point(0.1, "XU1 low"));
     sw.current_a = Some(point(amps, "XU1 high"));
+    // The gain as the analysis publishes it: from rds_on at vgs_rated, no model card.
+    sw.gain = Some(kickback::analysis::stand_in::mos_gain_fact(
+        &kit.circuit.devices[m].data,
+    ));
     kit.analysis.switches.push(sw);
     kit
 }

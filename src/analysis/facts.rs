@@ -315,6 +315,62 @@ pub struct SwitchFacts {
     /// region a closed switch sits in: MOS in saturation instead of triode, BJT active
     /// instead of saturated.
     pub linear_region: bool,
+    /// Square-law gain of a MOSFET as the DC engine uses it, with where it came from.
+    pub gain: Option<MosGain>,
+    /// The branch current with the switch saturated: the rail (over its corners) less a
+    /// saturated switch's drop ([`SATURATED_BJT_DROP_V`] for a BJT, the rated on-resistance's
+    /// drop for a MOSFET) over the branch's resistance. The current the load draws once the
+    /// drive is right; `None` when a part of the branch has no known resistance.
+    pub saturated_current_a: Option<Range>,
+    /// Gate edges from the drive's source resistance and the switch's gate charge or input
+    /// capacitance (`None` for BJTs and when either is unknown).
+    pub gate_edges: Option<GateEdges>,
+}
+
+/// V_CE of a saturated BJT switch (from memory: 0.1–0.3 V for small-signal parts).
+pub const SATURATED_BJT_DROP_V: f64 = 0.2;
+
+/// A MOSFET's square-law gain k (A/V², `I_D = k/2·(V_GS − V_T)²` in saturation) and the
+/// threshold it goes with, computed once for the DC engine, the facts and the rules.
+#[derive(Clone, Debug, PartialEq)]
+pub struct MosGain {
+    pub k: f64,
+    /// The threshold V_T the engine uses with it: the model's VTO, else `vgs_th_max`.
+    pub threshold_v: f64,
+    /// How it was found (`KP·W/L from the model`, `rds_on 50 mΩ at V_GS 10 V`).
+    pub how: String,
+    /// Provenance of the number it came from.
+    pub source: String,
+    /// Neither KP nor `rds_on` was given: a placeholder the engine needs, not a fact a rule
+    /// may judge on.
+    pub placeholder: bool,
+}
+
+impl MosGain {
+    /// Channel resistance of the square law in the triode region at small V_DS:
+    /// 1/(k·(V_GS − V_T)), cold die.
+    pub fn rds_at(&self, vgs: f64) -> Option<f64> {
+        let overdrive = vgs - self.threshold_v;
+        (self.k > 0.0 && overdrive > 0.0).then(|| 1.0 / (self.k * overdrive))
+    }
+}
+
+/// How fast a MOSFET's gate moves: a first-order RC edge, 10–90 % in `2.2·R·C` (common
+/// practice), with `R` the drive's source resistance and `C` the input capacitance
+/// (`Qg/V_drive` when the gate charge is given).
+#[derive(Clone, Debug, PartialEq)]
+pub struct GateEdges {
+    pub rise_s: f64,
+    pub fall_s: f64,
+    /// Series gate resistance plus the driver's output resistance.
+    pub drive_ohms: f64,
+    /// The capacitance the drive charges.
+    pub input_capacitance_f: f64,
+    /// Where the resistance and capacitance came from.
+    pub how: String,
+    /// Hard-switching loss `½·V·I·(t_r + t_f)·f` (a standard estimate) at the worst corner,
+    /// when the rail, current and frequency are known.
+    pub switching_loss_w: Option<f64>,
 }
 
 impl SwitchFacts {
@@ -364,15 +420,27 @@ pub struct LoadFacts {
     pub resistance: Option<Rated>,
     pub inductance: Option<Rated>,
     /// On-state voltage across the load (magnitude), per corner from the on state with the
-    /// most current.
+    /// most current: the switch as it really is (a starved switch drops part of the rail).
     pub peak_v: Option<Range>,
-    /// Average `Vpk·D` over the duty range.
+    /// The on-state voltage with its switch saturated (see [`SwitchFacts::saturated_current_a`]),
+    /// set only when the switch now runs in its linear region or as a follower: what the load
+    /// gets once the drive is fixed. The load's ratings are judged on it.
+    pub full_on_v: Option<Range>,
+    /// Average `I_avg·R` over the duty range, from the same closed form as `effective_v`
+    /// (`Vpk·D` when the closed form cannot be used).
     pub avg_v: Option<Range>,
-    /// Average when the PWM period is short against L/R (T < τ/3 at the lowest frequency),
-    /// RMS `Vpk·√D` otherwise or when τ or the frequency is unknown.
+    /// Effective voltage `I_rms·R` over the duty range (see `effective_method`), from
+    /// `full_on_v` when set, else `peak_v`. Its states name the basis.
     pub effective_v: Option<Range>,
-    /// Whether `effective_v` is the average (true) or the RMS value (false).
-    pub effective_is_average: bool,
+    /// How `effective_v` was found.
+    pub effective_method: EffectiveMethod,
+    /// Peak-to-peak ripple of the winding current over one PWM period (closed form), at the
+    /// duty and frequency extreme where it is largest.
+    pub ripple_a: Option<Range>,
+    /// The largest duty whose effective voltage stays at `rated_v` (closed form solved for
+    /// D; `(V_rated/Vpk)²` when L/R is unknown). `None` when the load is not PWM-driven or has
+    /// no rating.
+    pub duty_limit: Option<f64>,
     /// τ = L/R of the branch (its inductances over its resistances), when both are known.
     pub time_constant_s: Option<f64>,
     /// On-state current through the load (magnitude); `None` when its resistance is unknown.
@@ -393,13 +461,33 @@ pub struct LoadFacts {
     pub driven_by: Option<DeviceId>,
 }
 
+/// How a load's effective voltage was found.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum EffectiveMethod {
+    /// `I_rms·R` from the closed-form periodic steady state of the R-L branch
+    /// (`analysis::switching::winding`).
+    ClosedForm,
+    /// `Vpk·√D`: L/R or the frequency is unknown, so the current is taken to follow each
+    /// pulse (never below the true value).
+    RmsAssumed,
+    /// The peak: the duty is unknown, or nothing switches the load.
+    Peak,
+}
+
 /// Dissipation of a resistor or pot over its sub-network's states, with the wipers of the
 /// sub-network's pots searched for the worst position (and the wiper current of a pot).
 #[derive(Clone, Debug, PartialEq)]
 pub struct ResistorFacts {
     pub device: DeviceId,
-    /// `max` is the worst state (named in `max_state`); `min` the lightest.
+    /// Dissipation averaged over the PWM period of the switching inputs it depends on (a
+    /// resistor that conducts only during the pulse dissipates `D·P` on average); inputs
+    /// slower than 20 Hz, or whose duty is unknown, are taken at their worst level. `max` is
+    /// the worst state (named in `max_state`); `min` the lightest. Thermal ratings are judged
+    /// on this.
     pub power_w: Range,
+    /// Instantaneous dissipation in the worst single state (the peak inside a pulse).
+    pub peak_power_w: Range,
     /// Current through a pot's wiper terminal (magnitude).
     pub wiper_current_a: Option<Range>,
     /// Largest current through the part (a pot: through either half).

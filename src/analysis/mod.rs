@@ -56,7 +56,7 @@ pub fn analyze(
     findings.extend(f);
     let (switches, loads, f) = switching::analyze(&cx, &timers);
     findings.extend(f);
-    let (resistors, capacitors, f) = stress::analyze(&cx);
+    let (resistors, capacitors, f) = stress::analyze(&cx, &timers);
     findings.extend(f);
     (
         Analysis {

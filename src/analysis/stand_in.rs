@@ -9,6 +9,7 @@
 use super::dc::{
     BjtParams, BjtPolarity, DiodeParams, ElementId, MosParams, MosPolarity, Network, Node,
 };
+use super::facts::MosGain;
 use super::states::{Context, State};
 use crate::circuit::{Device, DeviceId, Kind, NetId, PartData, PinRole};
 
@@ -355,18 +356,63 @@ pub fn mos_threshold(data: &PartData) -> f64 {
         .unwrap_or(4.0)
 }
 
-/// Square-law gain k = KP·W/L, else derived from `rds_on` at `vgs_rated` (in the triode region
-/// at small V_DS, R = 1/(k·(V_GS − V_T))).
-pub fn mos_gain(data: &PartData) -> f64 {
-    let vto = mos_threshold(data);
-    if let Some(kp) = data.value("kp").filter(|v| *v > 0.0) {
+/// True when a number was stated on purpose for this part: in `kickback.toml` or as an
+/// instance parameter (not a model card's fit, not the built-in library or a default).
+fn deliberate(source: &str) -> bool {
+    source.starts_with("from config") || source.starts_with("from instance parameter")
+}
+
+/// Square-law gain of a MOSFET and the threshold it goes with, computed once for the engine,
+/// the facts and the rules. The more deliberate input wins: an `rds_on` stated in the config
+/// or on the instance, else the model card's `KP·W/L`, else an `rds_on` from the library, else
+/// 100 mΩ at `vgs_rated` (a placeholder). From `rds_on` at `vgs_rated`:
+/// k = 1/(rds_on·(vgs_rated − V_T)), the triode region at small V_DS.
+pub fn mos_gain_fact(data: &PartData) -> MosGain {
+    let vt = mos_threshold(data);
+    let from_rds = |rds: f64, source: String, placeholder: bool| {
+        let vgs = data.value("vgs_rated").unwrap_or(10.0);
+        MosGain {
+            k: 1.0 / (rds * (vgs - vt).max(0.5)),
+            threshold_v: vt,
+            how: format!(
+                "from rds_on {} Ω at vgs_rated {} V, k = 1/(rds_on·(vgs_rated − V_T))",
+                plain(rds),
+                plain(vgs)
+            ),
+            source,
+            placeholder,
+        }
+    };
+    let rds = data.get("rds_on").filter(|r| r.value > 0.0);
+    if let Some(r) = rds.filter(|r| deliberate(&r.source)) {
+        return from_rds(r.value, r.source.clone(), false);
+    }
+    if let Some(kp) = data.get("kp").filter(|r| r.value > 0.0) {
         let w = data.value("w").filter(|v| *v > 0.0).unwrap_or(1.0);
         let l = data.value("l").filter(|v| *v > 0.0).unwrap_or(1.0);
-        return kp * w / l;
+        return MosGain {
+            k: kp.value * w / l,
+            threshold_v: vt,
+            how: "from KP·W/L".into(),
+            source: kp.source.clone(),
+            placeholder: false,
+        };
     }
-    let rds = data.value("rds_on").filter(|v| *v > 0.0).unwrap_or(0.1);
-    let vgs = data.value("vgs_rated").unwrap_or(10.0);
-    1.0 / (rds * (vgs - vto).max(0.5))
+    match rds {
+        Some(r) => from_rds(r.value, r.source.clone(), false),
+        None => from_rds(0.1, "placeholder: no KP and no rds_on given".into(), true),
+    }
+}
+
+/// A number in plain decimals for a provenance text (`0.05`, `10`).
+fn plain(v: f64) -> String {
+    let text = format!("{v:.4}");
+    text.trim_end_matches('0').trim_end_matches('.').to_string()
+}
+
+/// The gain alone (see [`mos_gain_fact`]).
+pub fn mos_gain(data: &PartData) -> f64 {
+    mos_gain_fact(data).k
 }
 
 pub fn mos_params(kind: Kind, data: &PartData) -> MosParams {

@@ -14,10 +14,11 @@
 //! values. So the cost per sub-network is bounded (at most [`solves::MAX_STATES`] +
 //! [`MAX_SEARCH_SOLVES`] solves) and the total grows with the number of sub-networks.
 
-use super::facts::{CapacitorFacts, Range, ResistorFacts};
+use super::facts::{CapacitorFacts, Range, ResistorFacts, TimerFacts};
 use super::partition::Component;
 use super::states::{Context, Solved, State};
 use super::switching::solves::{self, ComponentSolves};
+use crate::circuit::defaults::RESISTOR_POWER_RATING_W;
 use crate::circuit::{DeviceId, Kind, NetId, PinRole};
 use crate::diagnostic::Finding;
 use rayon::prelude::*;
@@ -32,10 +33,18 @@ pub const SCAN_POINTS: usize = 21;
 /// Golden-section steps around an objective's best scan point: the 10 % bracket shrinks to
 /// 7 ppm of the travel, fine enough for a peak a few tenths of a percent off the pot's end.
 pub const REFINE_STEPS: usize = 20;
-/// Rating assumed for ranking searches when a part states none (common practice: ¼ W).
-const DEFAULT_POWER_RATING_W: f64 = 0.25;
+/// Switching inputs averaged over at most this many at once (2⁴ duty corners per group).
+const MAX_AVERAGED_INPUTS: usize = 4;
+/// Below this frequency an input is an on/off command, not a PWM: a resistor is judged at its
+/// worst level, not at its average (common practice: the same 20 Hz that separates PWM from
+/// on/off elsewhere).
+const PWM_MIN_HZ: f64 = 20.0;
 
-pub fn analyze(cx: &Context<'_>) -> (Vec<ResistorFacts>, Vec<CapacitorFacts>, Vec<Finding>) {
+pub fn analyze(
+    cx: &Context<'_>,
+    timers: &[TimerFacts],
+) -> (Vec<ResistorFacts>, Vec<CapacitorFacts>, Vec<Finding>) {
+    let timer_map: super::switching::Timers<'_> = timers.iter().map(|t| (t.device, t)).collect();
     let mut by_component: BTreeMap<usize, Vec<DeviceId>> = BTreeMap::new();
     for (id, d) in cx.circuit.devices.iter().enumerate() {
         if !matches!(
@@ -79,7 +88,7 @@ pub fn analyze(cx: &Context<'_>) -> (Vec<ResistorFacts>, Vec<CapacitorFacts>, Ve
                 .copied()
                 .filter(|&d| cx.circuit.devices[d].kind != Kind::Capacitor)
                 .collect();
-            let facts = resistor_facts(cx, component, &s, &parts);
+            let facts = resistor_facts(cx, &timer_map, component, &s, &parts);
             Some((c, s, finding, facts))
         })
         .collect();
@@ -103,6 +112,9 @@ pub fn analyze(cx: &Context<'_>) -> (Vec<ResistorFacts>, Vec<CapacitorFacts>, Ve
         .filter_map(|(id, _)| capacitor_facts(cx, &solved, id))
         .collect();
     capacitors.sort_by_key(|c| c.device);
+    for c in &mut capacitors {
+        timing_swing(timers, c);
+    }
     (resistors, capacitors, findings)
 }
 
@@ -164,12 +176,121 @@ fn sampled(
     range.map(|r| (r, worst))
 }
 
+/// A switching input that is averaged over: a PWM (at least [`PWM_MIN_HZ`]) with a known duty.
+struct InputDuty {
+    device: DeviceId,
+    low: f64,
+    high: f64,
+}
+
+fn pwm_inputs(
+    cx: &Context<'_>,
+    timers: &super::switching::Timers<'_>,
+    inputs: &[DeviceId],
+) -> Vec<InputDuty> {
+    let mut out: Vec<InputDuty> = inputs
+        .iter()
+        .filter_map(|&device| {
+            let (duty, freq) = super::switching::drive::input_timing(cx, timers, device);
+            let (duty, freq) = (duty?, freq?);
+            (freq.min >= PWM_MIN_HZ).then(|| InputDuty {
+                device,
+                low: duty.min.clamp(0.0, 1.0),
+                high: duty.max.clamp(0.0, 1.0),
+            })
+        })
+        .collect();
+    out.truncate(MAX_AVERAGED_INPUTS);
+    out
+}
+
+/// Dissipation averaged over the PWM period of `pwm` inputs: states that differ only in those
+/// inputs' levels are weighed by the share of time each level holds (`D` high, `1 − D` low),
+/// at the duty ends that give the most (the average is linear in each duty, so an end is the
+/// worst). `None` when a group misses a solve.
+fn averaged(
+    cx: &Context<'_>,
+    s: &ComponentSolves,
+    pwm: &[InputDuty],
+    f: &dyn Fn(&Solved) -> Option<f64>,
+) -> Option<Range> {
+    let others: Vec<DeviceId> = s
+        .inputs
+        .iter()
+        .copied()
+        .filter(|i| !pwm.iter().any(|p| p.device == *i))
+        .collect();
+    // Group key: the state with the PWM inputs' levels removed.
+    let mut groups: Vec<(State, Vec<(f64, &State)>)> = Vec::new();
+    for st in &s.states {
+        let value = st.solved.as_ref().and_then(f).filter(|v| v.is_finite())?;
+        let mut key = st.state.clone();
+        key.high.retain(|d| !pwm.iter().any(|p| p.device == *d));
+        match groups.iter_mut().find(|(k, _)| *k == key) {
+            Some((_, members)) => members.push((value, &st.state)),
+            None => groups.push((key, vec![(value, &st.state)])),
+        }
+    }
+    let names: Vec<&str> = pwm.iter().map(|p| cx.name(p.device)).collect();
+    let mut range: Option<Range> = None;
+    for (key, members) in &groups {
+        let mut best = f64::NEG_INFINITY;
+        let mut least = f64::INFINITY;
+        for corner in 0..(1usize << pwm.len()) {
+            let duty = |i: usize| {
+                if corner & (1 << i) == 0 {
+                    pwm[i].low
+                } else {
+                    pwm[i].high
+                }
+            };
+            let total: f64 = members
+                .iter()
+                .map(|(v, st)| {
+                    let w: f64 = (0..pwm.len())
+                        .map(|i| {
+                            if st.is_high(pwm[i].device) {
+                                duty(i)
+                            } else {
+                                1.0 - duty(i)
+                            }
+                        })
+                        .product();
+                    w * v
+                })
+                .sum();
+            best = best.max(total);
+            least = least.min(total);
+        }
+        let label = format!(
+            "{}; averaged over the PWM period of {}",
+            key.describe(cx, &others),
+            names.join(" and ")
+        );
+        match &mut range {
+            Some(r) => {
+                r.include(best, &label);
+                r.include(least, &label);
+            }
+            None => {
+                range = Some(Range::point(best, label.clone()));
+                if let Some(r) = &mut range {
+                    r.include(least, &label);
+                }
+            }
+        }
+    }
+    range
+}
+
 fn resistor_facts(
     cx: &Context<'_>,
+    timers: &super::switching::Timers<'_>,
     component: &Component,
     s: &ComponentSolves,
     parts: &[DeviceId],
 ) -> Vec<ResistorFacts> {
+    let pwm = pwm_inputs(cx, timers, &s.inputs);
     let mut facts: Vec<ResistorFacts> = Vec::new();
     // (device, objective, worst state index, stress against rating)
     let mut searches: Vec<(usize, Objective, usize, f64)> = Vec::new();
@@ -181,7 +302,7 @@ fn resistor_facts(
         let rating = data
             .value("power_rating")
             .filter(|r| *r > 0.0)
-            .unwrap_or(DEFAULT_POWER_RATING_W);
+            .unwrap_or(RESISTOR_POWER_RATING_W);
         if let Some(w) = worst {
             searches.push((facts.len(), Objective::Power, w, power.max / rating));
         }
@@ -203,19 +324,68 @@ fn resistor_facts(
                 current.max / limit,
             ));
         }
+        let average = if pwm.is_empty() {
+            None
+        } else {
+            averaged(cx, s, &pwm, &|x| measure(device, Objective::Power, x))
+        };
         facts.push(ResistorFacts {
             device,
-            power_w: power,
+            power_w: average.unwrap_or_else(|| power.clone()),
+            peak_power_w: power,
             wiper_current_a: wiper.map(|(r, _)| r),
             current_a: sampled(s, &|x| largest_current(device, x)).map(|(r, _)| r),
         });
     }
+    let grid_peaks: Vec<f64> = facts.iter().map(|f| f.peak_power_w.max).collect();
     let pots = cx.pots(component);
     if !pots.is_empty() {
         searches.sort_by(|a, b| b.3.total_cmp(&a.3));
         refine(cx, component, s, &mut facts, &searches, &pots);
     }
+    // A wiper search that found a worse peak raises the average by the same share the grid's
+    // worst state had of its average (the search moves a wiper, not a duty).
+    for (fact, grid) in facts.iter_mut().zip(grid_peaks) {
+        let peak = &fact.peak_power_w;
+        if peak.max > grid && grid > 0.0 {
+            let share = (fact.power_w.max / grid).clamp(0.0, 1.0);
+            let (value, label) = (peak.max * share, peak.max_state.clone());
+            fact.power_w.include(value, &label);
+        }
+    }
     facts
+}
+
+/// A timing capacitor swings between the timer's thresholds (⅓ and ⅔ of its control voltage):
+/// its voltage is the thresholds' range, not what a DC solve with the capacitor open shows.
+fn timing_swing(timers: &[TimerFacts], c: &mut CapacitorFacts) {
+    let Some(t) = timers
+        .iter()
+        .find(|t| t.timing_capacitor == Some(c.device) && t.mode != super::TimerMode::Unknown)
+    else {
+        return;
+    };
+    let (Some(lower), Some(upper)) = (&t.lower_threshold_v, &t.upper_threshold_v) else {
+        return;
+    };
+    let (min, min_state) = if t.mode == super::TimerMode::Monostable {
+        // A one-shot's capacitor rests discharged between pulses.
+        (0.0, "discharged between pulses".to_string())
+    } else {
+        (
+            lower.min,
+            format!("{} (the trigger threshold)", lower.min_state),
+        )
+    };
+    c.voltage_v = Range {
+        min,
+        max: upper.max,
+        min_state,
+        max_state: format!(
+            "{} (the threshold, ⅔ of the control voltage)",
+            upper.max_state
+        ),
+    };
 }
 
 /// Objectives that share a base state (the searched pot's own wiper aside): one scan of the
@@ -300,7 +470,7 @@ fn refine(
             );
             let label = at(x).describe(cx, &s.inputs);
             let range = match objective {
-                Objective::Power => Some(&mut facts[index].power_w),
+                Objective::Power => Some(&mut facts[index].peak_power_w),
                 Objective::WiperCurrent => facts[index].wiper_current_a.as_mut(),
             };
             if let Some(r) = range {

@@ -3,6 +3,10 @@
 
 use super::{Kind, PartData};
 
+/// Power rating of a resistor or pot that states none (common practice: a ¼ W part; for pots,
+/// small trimmers and panel pots, conservative). Every default rating is read from here.
+pub const RESISTOR_POWER_RATING_W: f64 = 0.25;
+
 /// `vgs_th_max` at or below this marks a logic-level MOSFET (common practice).
 pub const LOGIC_LEVEL_VGS_TH_MAX: f64 = 2.5;
 
@@ -72,10 +76,16 @@ pub(crate) fn apply_defaults(data: &mut PartData, kind: Kind) {
                 default(data, kind, name, *value, "from memory");
             }
         }
-        Kind::Resistor => default(data, kind, "power_rating", 0.25, "common practice"),
+        Kind::Resistor => default(
+            data,
+            kind,
+            "power_rating",
+            RESISTOR_POWER_RATING_W,
+            "common practice",
+        ),
         Kind::Potentiometer => {
             let why = "common practice: small trimmers and panel pots, conservative";
-            default(data, kind, "power_rating", 0.25, why);
+            default(data, kind, "power_rating", RESISTOR_POWER_RATING_W, why);
             if let (Some(power), Some(resistance)) =
                 (data.value("power_rating"), data.value("resistance"))
             {

@@ -132,7 +132,7 @@ impl Device {
 }
 
 mod data;
-mod defaults;
+pub mod defaults;
 pub mod glob;
 pub mod graph;
 mod layouts;

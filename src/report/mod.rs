@@ -5,6 +5,7 @@
 //! number is written for a person ([`format_quantity`]).
 
 pub mod facts;
+mod facts_table;
 pub mod human;
 pub mod json;
 pub mod sarif;

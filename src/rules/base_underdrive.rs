@@ -9,7 +9,7 @@ use super::switch_util::{
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
-use crate::analysis::SwitchFacts;
+use crate::analysis::{SwitchFacts, SATURATED_BJT_DROP_V};
 use crate::circuit::{DeviceId, Kind};
 use crate::diagnostic::{Finding, Severity};
 
@@ -24,8 +24,6 @@ pub const RULE: Rule = Rule {
 };
 /// Forced β for a saturated switch (common practice).
 const FORCED_BETA: f64 = 10.0;
-/// V_CE of a saturated small-signal switch (from memory: 0.1–0.3 V).
-const VCE_SAT_V: f64 = 0.2;
 /// V_BE of a silicon switch driven hard (from memory).
 const VBE_ON_V: f64 = 0.8;
 
@@ -43,23 +41,24 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     }
 }
 
-/// The collector current the load needs: the branch at full voltage, or what the DC engine
-/// finds through the switch and the load, whichever is larger.
-fn collector_current(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<f64> {
-    let saturated = saturated_current(cx, sw, VCE_SAT_V);
+/// The collector current the load needs and the state it is taken in: the branch with the
+/// switch saturated (the analysis's), or what the DC engine finds through the switch and the
+/// load, whichever is larger.
+fn collector_current(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<(f64, String)> {
+    let saturated = saturated_current(sw).map(|r| (r.max, r.max_state.clone()));
     let through_switch = sw
         .current_a
         .as_ref()
-        .map(|r| r.max.abs())
-        .filter(|_| !shorted_through(cx, sw));
+        .filter(|_| !shorted_through(cx, sw))
+        .map(|r| (r.max.abs(), r.max_state.clone()));
     let through_load = load_of(cx, sw)
         .and_then(|l| l.current_a.as_ref())
-        .map(|r| r.max.abs());
+        .map(|r| (r.max.abs(), r.max_state.clone()));
     [saturated, through_switch, through_load]
         .into_iter()
         .flatten()
-        .reduce(f64::max)
-        .filter(|i| *i > 0.0)
+        .reduce(|a, b| if b.0 > a.0 { b } else { a })
+        .filter(|(i, _)| *i > 0.0)
 }
 
 /// The single resistor between driver and base, when that is the whole base network.
@@ -72,7 +71,7 @@ fn base_resistor(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<DeviceId> {
 
 fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
     let (ib, state) = weakest_magnitude(sw.base_current_a.as_ref()?);
-    let ic = collector_current(cx, sw)?;
+    let (ic, ic_state) = collector_current(cx, sw)?;
     let need = ic / FORCED_BETA;
     if ib >= need {
         return None;
@@ -81,15 +80,15 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
     let load = load_device(cx, sw);
     let load_name = load.map_or_else(|| "its load".to_string(), |l| name(cx, l));
     let mut message = format!(
-        "{q} gets {} of base current ({state}); to saturate at {load_name}'s {} it needs {} \
-         (I_C/10, a forced β of 10)",
+        "{q} gets {} of base current ({state}); to saturate at {load_name}'s {} ({ic_state}) it \
+         needs {} (I_C/10, a forced β of 10)",
         format_si(ib, "A"),
         format_si(ic, "A"),
         format_si(need, "A")
     );
     let vce = sw.vds_on_v.as_ref().map(|r| r.max.abs());
     let power = sw.dissipation_w.as_ref().map(|r| r.max);
-    let active = sw.linear_region || vce.is_some_and(|v| v > 2.0 * VCE_SAT_V);
+    let active = sw.linear_region || vce.is_some_and(|v| v > 2.0 * SATURATED_BJT_DROP_V);
     if active {
         message.push_str(": it runs in its active region");
     } else {

@@ -75,16 +75,10 @@ fn finding(
         .or(sw.current_a.as_ref())
         .filter(|r| r.max > 0.0);
     // A starved switch carries less than the load draws once it saturates: rate for that.
-    let current = match (solved, saturated_current(cx, sw, 0.0)) {
-        (Some(r), Some(full)) if full > r.max => Some(Range::point(
-            full,
-            format!("with {} fully on", name(cx, sw.device)),
-        )),
+    let current = match (solved, saturated_current(sw)) {
+        (Some(r), Some(full)) if full.max > r.max => Some(full.clone()),
         (Some(r), _) => Some(r.clone()),
-        (None, Some(full)) => Some(Range::point(
-            full,
-            format!("with {} fully on", name(cx, sw.device)),
-        )),
+        (None, Some(full)) => Some(full.clone()),
         (None, None) => None,
     };
     let current = current.as_ref();

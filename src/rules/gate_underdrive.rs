@@ -8,7 +8,7 @@
 
 use super::switch_util::{
     drive_level, finding_at, held_off, in_conduction_sense, is_switched, kind, label, load_device,
-    load_of, mos_gain, name, rated_or, rds_at, saturated_current, shorted_through,
+    load_of, name, rated_or, saturated_current, shorted_through,
 };
 use super::units::format_si;
 use super::Rule;
@@ -74,25 +74,26 @@ fn thresholds(cx: &RuleContext<'_>, sw: &SwitchFacts) -> (Rated, Rated) {
     (th, rated)
 }
 
-/// The current the switch must carry: the largest of what the DC engine finds through the
-/// switch and through its load, and what the load draws with the switch fully on.
-fn load_current(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<f64> {
+/// The current the switch must carry and the state it is taken in: the largest of what the DC
+/// engine finds through the switch and through its load, and what the load draws with the
+/// switch saturated (the analysis's).
+fn load_current(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<(f64, String)> {
     let through_switch = sw
         .current_a
         .as_ref()
-        .map(|r| r.max)
-        .filter(|_| !shorted_through(cx, sw));
+        .filter(|_| !shorted_through(cx, sw))
+        .map(|r| (r.max, r.max_state.clone()));
     let through_load = load_of(cx, sw)
         .and_then(|l| l.current_a.as_ref())
-        .map(|r| r.max);
+        .map(|r| (r.max, r.max_state.clone()));
     // A starved switch limits its own current; the load wants what it draws with the switch
-    // fully on.
-    let full_on = saturated_current(cx, sw, 0.0);
+    // saturated.
+    let full_on = saturated_current(sw).map(|r| (r.max, r.max_state.clone()));
     [through_switch, through_load, full_on]
         .into_iter()
         .flatten()
-        .reduce(f64::max)
-        .filter(|i| *i > 0.0)
+        .reduce(|a, b| if b.0 > a.0 { b } else { a })
+        .filter(|(i, _)| *i > 0.0)
 }
 
 fn follower(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding> {
@@ -188,21 +189,22 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
     let vgs = drive.weakest;
     let state = &drive.weakest_state;
     let (th, rated) = thresholds(cx, sw);
-    let gain = mos_gain(cx, sw.device);
+    let gain = sw.gain.as_ref().filter(|g| !g.placeholder);
     let current = load_current(cx, sw);
     let s = name(cx, sw.device);
     let driver = sw.driver.as_ref().map(|d| d.device);
     let from = driver.map_or_else(String::new, |d| format!(" from {}", name(cx, d)));
 
-    let (need, reason, overdrive) = match (&gain, current) {
-        (Some(g), Some(i)) if g.k > 0.0 => {
+    let (need, reason, overdrive) = match (gain, &current) {
+        (Some(g), Some((i, i_state))) if g.k > 0.0 => {
+            let i = *i;
             let ov = (2.0 * i / g.k).sqrt();
             (
                 th.value + ov + MARGIN_V,
                 format!(
-                    "to stay in its triode region at {} it needs vgs_th_max {} + √(2·I/k) {} + \
-                     {} margin = {} (k = {} A/V² {}); below that it saturates, its on-resistance \
-                     climbs and it heats",
+                    "to stay in its triode region at {} ({i_state}) it needs vgs_th_max {} + \
+                     √(2·I/k) {} + {} margin = {} (k = {} A/V² {}); below that it saturates, its \
+                     on-resistance climbs and it heats",
                     format_si(i, "A"),
                     format_si(th.value, "V"),
                     format_si(ov, "V"),
@@ -235,7 +237,7 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
         .rds_on_ohm
         .as_ref()
         .map(|r| r.max)
-        .or_else(|| gain.as_ref().and_then(|g| rds_at(g, vgs, th.value)));
+        .or_else(|| gain.and_then(|g| g.rds_at(vgs)));
     let th_min = rated_or(
         cx,
         sw.device,
@@ -318,10 +320,10 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
         .with_value("vgs_th_max", th.value, "V", th.source)
         .with_value("vgs_rated", rated.value, "V", rated.source)
         .with_value("required_vgs", need, "V", "computed");
-    if let Some(i) = current {
+    if let Some((i, _)) = current {
         f = f.with_value("load_current", i, "A", "computed");
     }
-    if let Some(g) = &gain {
+    if let Some(g) = gain {
         f = f.with_value(
             "k",
             g.k,

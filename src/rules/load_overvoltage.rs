@@ -2,14 +2,13 @@
 //! `rules/load-overvoltage.md`.
 
 use super::switch_util::{
-    dc_resistance, duty_text, finding_at, label, name, supply_facts, timer_facts, NetIndex,
-    SwitchIndex,
+    duty_text, finding_at, label, name, supply_facts, timer_facts, NetIndex, SwitchIndex,
 };
 use super::units::{format_si, percent};
 use super::Rule;
 use super::RuleContext;
-use crate::analysis::{LoadFacts, SwitchFacts};
-use crate::circuit::{PinRole, Rated};
+use crate::analysis::{EffectiveMethod, LoadFacts, SwitchFacts};
+use crate::circuit::PinRole;
 use crate::diagnostic::{Finding, Severity};
 
 /// This rule's identity: its ID, the severities it gives and its page.
@@ -45,19 +44,14 @@ fn finding(
     load: &LoadFacts,
 ) -> Option<Finding> {
     let rated = load.rated_v.as_ref().filter(|r| r.value > 0.0)?;
-    let peak = load.peak_v.as_ref()?;
-    let effective = load.effective_v.as_ref().unwrap_or(peak);
-    let (mut pk, mut eff) = (peak.max.abs(), effective.max.abs());
-    let r = rated.value;
     // A switch stuck in its linear region hides the rail from the load; once its drive is
-    // fixed the load gets the rail. Judge the load on that.
+    // fixed the load gets the rail. The analysis judges the load on that (`full_on_v`).
+    let basis = load.full_on_v.as_ref().or(load.peak_v.as_ref())?;
+    let effective = load.effective_v.as_ref().unwrap_or(basis);
+    let (pk, eff) = (basis.max.abs(), effective.max.abs());
+    let r = rated.value;
     let own_switch = load.switch.and_then(|s| switches.get(s));
-    let starved = full_on_peak(cx, own_switch, load).filter(|full| *full > pk);
-    if let Some(full) = starved {
-        let scale = if pk > 0.0 { eff / pk } else { 1.0 };
-        eff = full * scale.clamp(0.0, 1.0);
-        pk = full;
-    }
+    let starved = load.full_on_v.is_some();
     let severity = if eff > EFFECTIVE_ERROR * r || pk > PEAK_ERROR * r {
         Severity::Error
     } else if eff > EFFECTIVE_WARNING * r || pk > PEAK_WARNING * r {
@@ -66,10 +60,22 @@ fn finding(
         return None;
     };
     let l = name(cx, load.device);
-    let measure = if load.effective_is_average {
-        "average (its L/R smooths the PWM)"
-    } else {
-        "RMS (its current follows each pulse)"
+    let measure = match load.effective_method {
+        EffectiveMethod::ClosedForm => {
+            let tau = load
+                .time_constant_s
+                .map_or_else(String::new, |t| format!(", τ = L/R {}", format_si(t, "s")));
+            format!("effective (I_rms·R of its R-L current over the PWM period{tau})")
+        }
+        EffectiveMethod::RmsAssumed => {
+            "effective (RMS Vpk·√D: its L/R or the PWM frequency is unknown, so its current is \
+             taken to follow each pulse)"
+                .to_string()
+        }
+        EffectiveMethod::Peak if load.duty.is_some() => {
+            "effective (on all the time: the peak)".to_string()
+        }
+        EffectiveMethod::Peak => "effective (no duty known: the peak)".to_string(),
     };
     let duty_part = load
         .duty
@@ -82,17 +88,14 @@ fn finding(
         format_si(eff, "V"),
         effective.max_state
     );
-    if starved.is_some() {
-        let sw = load
-            .switch
-            .map_or_else(|| "its switch".into(), |s| name(cx, s));
+    if starved {
         let drop = own_switch
             .and_then(|s| s.vds_on_v.as_ref())
             .map_or_else(String::new, |v| {
                 format!(" and drops {}", format_si(v.max.abs(), "V"))
             });
         message.push_str(&format!(
-            "; with {sw} fully on: it now runs in its linear region{drop}"
+            "; judged with its switch saturated: it now runs in its linear region{drop}"
         ));
     }
     message.push_str("): ");
@@ -114,7 +117,7 @@ fn finding(
     } else {
         ", a stretch that shortens its life"
     });
-    let limit = duty_limit(load, rated, pk);
+    let limit = load.duty_limit.filter(|d| *d < 1.0);
     if let Some(d) = limit {
         message.push_str(&format!(
             "; duty up to {} keeps it within its rating",
@@ -177,21 +180,6 @@ fn finding(
     Some(f)
 }
 
-/// The largest duty that keeps the effective voltage at the rating: `V/Vpk` for an average,
-/// `(V/Vpk)²` for RMS. `None` when the load is not PWM-driven.
-fn duty_limit(load: &LoadFacts, rated: &Rated, peak: f64) -> Option<f64> {
-    load.duty.as_ref()?;
-    if peak <= 0.0 {
-        return None;
-    }
-    let ratio = (rated.value / peak).min(1.0);
-    Some(if load.effective_is_average {
-        ratio
-    } else {
-        ratio * ratio
-    })
-}
-
 /// The supply on either end of the load, when one end sits on a rail.
 fn supply_of(
     cx: &RuleContext<'_>,
@@ -206,20 +194,4 @@ fn supply_of(
         .find_map(|n| index.supply_on(cx, n))
         .map(|s| s.device)
         .or_else(|| own_switch.and_then(|s| s.rail_supply))
-}
-
-/// The load's peak voltage with its switch fully on, when the switch now runs in its linear
-/// region (a starved gate or base, a follower): the rail shared over the branch's resistances.
-fn full_on_peak(cx: &RuleContext<'_>, sw: Option<&SwitchFacts>, load: &LoadFacts) -> Option<f64> {
-    let sw = sw?;
-    if !(sw.linear_region || sw.follower) {
-        return None;
-    }
-    let rail = super::switch_util::rail(cx, sw)?.v.max;
-    let own = dc_resistance(cx, load.device);
-    let total: Option<f64> = sw.branch.iter().map(|&d| dc_resistance(cx, d)).sum();
-    match (own, total) {
-        (Some(r), Some(t)) if t > 0.0 => Some(rail * r / t),
-        _ => Some(rail),
-    }
 }

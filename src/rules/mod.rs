@@ -30,6 +30,7 @@ pub mod net_dangling;
 pub mod pin_unconnected;
 pub mod pot_wiper_overcurrent;
 pub mod pwm_audible;
+pub mod pwm_frequency_unsuitable;
 pub mod resistor_overpower;
 pub mod shoot_through;
 pub mod supply_out_of_range;
@@ -122,6 +123,7 @@ pub static REGISTRY: &[&Rule] = &[
     &front_end::SUPPRESSION_INVALID,
     &front_end::SOLVE_FAILED,
     &value_suspicious::RULE,
+    &pwm_frequency_unsuitable::RULE,
 ];
 
 pub fn find(id: &str) -> Option<&'static Rule> {

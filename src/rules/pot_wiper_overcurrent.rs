@@ -34,7 +34,10 @@ fn wiper_limit(cx: &RuleContext<'_>, id: DeviceId) -> Option<Rated> {
     if let Some(r) = d.data.get("wiper_current_max") {
         return Some(r.clone());
     }
-    let power = d.data.value("power_rating").unwrap_or(0.25);
+    let power = d
+        .data
+        .value("power_rating")
+        .unwrap_or(crate::circuit::defaults::RESISTOR_POWER_RATING_W);
     let r = dc_resistance(cx, id).filter(|r| *r > 0.0)?;
     Some(Rated {
         value: (power / r).sqrt(),

@@ -10,6 +10,7 @@ use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
 use crate::analysis::ResistorFacts;
+use crate::circuit::defaults::RESISTOR_POWER_RATING_W;
 use crate::circuit::{DeviceId, Kind};
 use crate::diagnostic::{Finding, Severity};
 
@@ -75,23 +76,29 @@ fn involved(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> Vec<(Device
     found
 }
 
-/// True when the resistor is the copper of a winding model: inside a subcircuit instance, in
-/// series with an inductor of the same instance through a net nothing else touches. Exported
-/// motor and coil models draw a winding that way; its dissipation is the load's own copper
-/// loss, not a discrete resistor's.
+/// True when the resistor is the copper of a winding model: in series with an inductor
+/// through a net nothing else touches, either inside a subcircuit instance (with an inductive
+/// part of the same instance: exported motor and coil models draw a winding that way) or at
+/// top level beside a plain inductor (an R-L stand-in for a motor or coil, the L having no
+/// resistance of its own). Its dissipation is the load's own copper loss, not a discrete
+/// resistor's.
 fn is_winding_copper(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> bool {
     let (Some(device), Some(own)) = (cx.circuit.devices.get(id), element(cx, id)) else {
         return false;
     };
-    if own.instances.is_empty() {
-        return false;
-    }
+    let nested = !own.instances.is_empty();
     device.pins.iter().any(|pin| match index.on(pin.net) {
         [(a, _), (b, _)] => {
             let other = if *a == id { *b } else { *a };
+            let other_kind = kind(cx, other);
+            let same_instance = element(cx, other).is_some_and(|e| e.instances == own.instances);
             other != id
-                && kind(cx, other).is_some_and(Kind::is_inductive)
-                && element(cx, other).is_some_and(|e| e.instances == own.instances)
+                && same_instance
+                && if nested {
+                    other_kind.is_some_and(Kind::is_inductive)
+                } else {
+                    other_kind == Some(Kind::Inductor)
+                }
         }
         _ => false,
     })
@@ -107,7 +114,7 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Opt
         cx,
         id,
         "power_rating",
-        0.25,
+        RESISTOR_POWER_RATING_W,
         "default power_rating (common practice)",
     );
     if rating.value <= 0.0 {
@@ -126,10 +133,22 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Opt
     } else {
         "above the 60 % a resistor should run at continuously"
     };
+    // Thermal ratings hold for the average; the peak inside a pulse is reported beside it.
+    let peak = facts.peak_power_w.max;
+    // Worth a word only where the pulse makes a difference (more than 5 %).
+    let averaged = peak > p * 1.05;
+    let power_text = if averaged {
+        format!(
+            "{} on average ({}; {} peak while it conducts)",
+            format_si(p, "W"),
+            facts.power_w.max_state,
+            format_si(peak, "W")
+        )
+    } else {
+        format!("{} ({})", format_si(p, "W"), facts.power_w.max_state)
+    };
     let message = format!(
-        "{r} dissipates {} ({}): {} of its {} rating, {consequence}",
-        format_si(p, "W"),
-        facts.power_w.max_state,
+        "{r} dissipates {power_text}: {} of its {} rating, {consequence}",
         super::units::percent(p / rating.value),
         format_si(rating.value, "W")
     );
@@ -158,8 +177,10 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Opt
     }
     if let Some(ohm) = dc_resistance(cx, id).filter(|r| plain && *r > 0.0) {
         // With the same voltage across it, P = V²/R falls as R rises.
-        let volts = (p * ohm).sqrt();
-        if let Some(bigger) = round_up(volts * volts / (DERATING * rating.value), &E12) {
+        // The voltage while it conducts; the average scales with the share of time it does.
+        let volts = (peak.max(p) * ohm).sqrt();
+        let share = if peak > 0.0 { (p / peak).min(1.0) } else { 1.0 };
+        if let Some(bigger) = round_up(share * volts * volts / (DERATING * rating.value), &E12) {
             help.push_str(&format!(
                 ", or, where the {} across it is fixed, at least {} keeps it within 60 % of its \
                  rating",
@@ -177,6 +198,7 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Opt
     Some(
         f.with_help(help)
             .with_value("power", p, "W", "computed")
+            .with_value("peak_power", peak, "W", "computed")
             .with_deciding_value("power_rating", rating.value, "W", rating.source)
             .holding_over_range(p > limit),
     )

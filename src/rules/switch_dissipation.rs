@@ -5,8 +5,8 @@
 //! hot die (common practice), or `V_CE·I_C·D` for a BJT, at the worst state and duty.
 
 use super::switch_util::{
-    duty_text, finding_at, in_conduction_sense, kind, label, load_device, mos_gain, name, rated,
-    rated_or, rds_at, shorted_through,
+    duty_text, finding_at, in_conduction_sense, kind, label, load_device, name, rated_or,
+    shorted_through,
 };
 use super::units::format_si;
 use super::Rule;
@@ -60,16 +60,12 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
         .vgs_on_v
         .as_ref()
         .map(|r| in_conduction_sense(r, k).weakest);
-    let threshold = rated(cx, sw.device, "vgs_th_max").map(|r| r.value);
+    // The analysis's on-resistance at the actual drive, from the gain it published.
     let rds = if k.is_mos() && !sw.linear_region && !sw.follower {
         sw.rds_on_ohm
             .as_ref()
             .map(|r| r.max)
-            .or(match (mos_gain(cx, sw.device), vgs, threshold) {
-                (Some(g), Some(v), Some(t)) => rds_at(&g, v, t),
-                _ => None,
-            })
-            .or_else(|| rated(cx, sw.device, "rds_on").map(|r| r.value))
+            .or_else(|| sw.gain.as_ref().zip(vgs).and_then(|(g, v)| g.rds_at(v)))
     } else {
         None
     };
@@ -78,8 +74,12 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
         how.push(format!("I = {}", format_si(i, "A")));
     }
     if let (Some(r), Some(v)) = (rds, vgs) {
+        let from = sw
+            .gain
+            .as_ref()
+            .map_or_else(String::new, |g| format!(", k {} ({})", g.how, g.source));
         how.push(format!(
-            "on-resistance about {} at V_GS {} × {HOT_DIE} hot die",
+            "on-resistance about {} at V_GS {} × {HOT_DIE} hot die{from}",
             format_si(r, "Ω"),
             format_si(v, "V")
         ));

@@ -5,8 +5,8 @@
 #![allow(dead_code)]
 
 use kickback::analysis::{
-    Analysis, DriverFacts, Freewheel, FreewheelKind, LoadFacts, Range, Side, SupplyFacts,
-    SwitchFacts, TimerFacts, TimerMode,
+    Analysis, DriverFacts, EffectiveMethod, Freewheel, FreewheelKind, LoadFacts, Range, Side,
+    SupplyFacts, SwitchFacts, TimerFacts, TimerMode,
 };
 use kickback::circuit::{
     Circuit, Device, DeviceId, Kind, Net, NetId, PartData, Pin, PinRole, Rated,
@@ -290,6 +290,9 @@ pub fn switch(device: DeviceId, kind: Kind, side: Side) -> SwitchFacts {
         frequency_hz: None,
         follower: false,
         linear_region: false,
+        gain: None,
+        saturated_current_a: None,
+        gate_edges: None,
     }
 }
 
@@ -301,9 +304,12 @@ pub fn load(device: DeviceId, kind: Kind) -> LoadFacts {
         resistance: None,
         inductance: None,
         peak_v: None,
+        full_on_v: None,
         avg_v: None,
         effective_v: None,
-        effective_is_average: false,
+        effective_method: EffectiveMethod::RmsAssumed,
+        ripple_a: None,
+        duty_limit: None,
         time_constant_s: None,
         current_a: None,
         duty: None,

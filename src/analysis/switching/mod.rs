@@ -6,14 +6,19 @@
 //! the number of sub-networks times their states, so it grows with the board, not its square.
 
 pub mod drive;
+pub mod edges;
 pub mod freewheel;
 pub mod gate_network;
 pub mod load;
 pub mod nets;
 pub mod solves;
 pub mod topology;
+pub mod winding;
 
-use super::facts::{DriverFacts, LoadFacts, Range, SwitchFacts, TimerFacts};
+use super::facts::{
+    DriverFacts, Freewheel, FreewheelKind, LoadFacts, Range, SwitchFacts, TimerFacts,
+    SATURATED_BJT_DROP_V,
+};
 use super::states::{Context, Corner};
 use crate::circuit::{DeviceId, Kind};
 use crate::diagnostic::Finding;
@@ -122,6 +127,10 @@ pub fn analyze(
             } else {
                 vec![load_device]
             };
+            let path = facts.freewheel.iter().find(|f| !f.reversed);
+            let full_on_v = (Some(load_device) == t.load)
+                .then(|| full_on_voltage(cx, &facts, load_device, s, &states.conducting))
+                .flatten();
             let setting = LoadSetting {
                 solves: s,
                 conducting: &states.conducting,
@@ -129,11 +138,9 @@ pub fn analyze(
                 frequency_hz: facts.frequency_hz.clone(),
                 branch: &branch,
                 switch: Some(t.device),
-                freewheel: facts
-                    .freewheel
-                    .iter()
-                    .find(|f| !f.reversed)
-                    .map(|f| f.device),
+                freewheel: path.map(|f| f.device),
+                freewheel_drop_v: path.map(|f| freewheel_drop(cx, f, &facts)),
+                full_on_v,
                 driven_by: None,
             };
             load_index.insert(load_device, loads.len());
@@ -268,6 +275,9 @@ fn bare_switch(cx: &Context<'_>, t: &SwitchTopology, all: &[SwitchTopology]) -> 
         frequency_hz: None,
         follower: t.switched_is_source,
         linear_region: false,
+        gain: None,
+        saturated_current_a: None,
+        gate_edges: None,
     }
 }
 
@@ -348,6 +358,42 @@ fn switch_facts(
         }
     });
     let (rail_v, rail) = rail_range(cx, t, all);
+    let device = cx.circuit.devices.get(t.device);
+    let gain = device
+        .filter(|d| d.kind.is_mos())
+        .map(|d| crate::analysis::stand_in::mos_gain_fact(&d.data));
+    let saturated_current_a = rail_v.as_ref().and_then(|rail| {
+        let (drop_v, ohms) = match (&gain, device) {
+            (Some(g), Some(d)) => {
+                let rated = d.data.value("vgs_rated").unwrap_or(10.0);
+                (0.0, g.rds_at(rated).unwrap_or(0.0))
+            }
+            _ => (SATURATED_BJT_DROP_V, 0.0),
+        };
+        load::saturated_current(cx, &t.branch.devices, rail, drop_v, ohms, cx.name(t.device))
+    });
+    let enhancement = numbers
+        .vgs_on_v
+        .as_ref()
+        .map(|v| if t.n_type { v.max } else { -v.min });
+    let edge_current = [
+        numbers.current_a.as_ref().map(|r| r.max),
+        saturated_current_a.as_ref().map(|r| r.max),
+    ]
+    .into_iter()
+    .flatten()
+    .reduce(f64::max);
+    let gate_edges = edges::gate_edges(
+        cx,
+        t.device,
+        &edges::EdgeSetting {
+            drive: gate,
+            vgs_on_v: enhancement,
+            rail_v: rail_v.as_ref(),
+            current_a: edge_current,
+            frequency_hz: frequency_hz.as_ref(),
+        },
+    );
     SwitchFacts {
         device: t.device,
         kind: t.kind,
@@ -375,6 +421,9 @@ fn switch_facts(
         frequency_hz,
         follower: t.switched_is_source && !boosted,
         linear_region: numbers.linear_region,
+        gain,
+        saturated_current_a,
+        gate_edges,
     }
 }
 
@@ -451,7 +500,69 @@ fn unswitched_load(
         branch: &branch,
         switch: None,
         freewheel: None,
+        // Hung on a pin or a source: the pin's own output stage carries the current both ways.
+        freewheel_drop_v: Some(0.0),
+        full_on_v: None,
         driven_by,
     };
     load::load_facts(cx, device, &setting)
+}
+
+/// Forward drop of a freewheel path while it carries the winding's current: a diode's from its
+/// Shockley model (IS, N, RS) at the load's on-state current, a clamp's breakdown above the
+/// rail, a body diode about 0.7 V (common practice).
+fn freewheel_drop(cx: &Context<'_>, path: &Freewheel, sw: &SwitchFacts) -> f64 {
+    const BODY_DIODE_V: f64 = 0.7;
+    /// Thermal voltage kT/q at 300 K.
+    const VT: f64 = 0.025_85;
+    let Some(d) = cx.circuit.devices.get(path.device) else {
+        return BODY_DIODE_V;
+    };
+    match path.kind {
+        FreewheelKind::OppositeBodyDiode => BODY_DIODE_V,
+        FreewheelKind::Clamp => {
+            let p = crate::analysis::stand_in::diode_params(d.kind, &d.data);
+            let rail = sw.rail_v.as_ref().map_or(0.0, |r| r.max);
+            p.bv.map_or(BODY_DIODE_V, |bv| (bv - rail).max(BODY_DIODE_V))
+        }
+        FreewheelKind::AcrossLoad | FreewheelKind::ToRail => {
+            let p = crate::analysis::stand_in::diode_params(d.kind, &d.data);
+            let i = path.peak_current_a.filter(|i| *i > 0.0).unwrap_or(0.1);
+            let v = p.n * VT * (i / p.is + 1.0).ln() + i * p.rs;
+            if v.is_finite() && v >= 0.0 {
+                v
+            } else {
+                BODY_DIODE_V
+            }
+        }
+    }
+}
+
+/// The load's on-state voltage with its switch saturated, when the switch now runs in its
+/// linear region or as a follower and saturating it would put more across the load.
+fn full_on_voltage(
+    cx: &Context<'_>,
+    sw: &SwitchFacts,
+    load_device: DeviceId,
+    s: &ComponentSolves,
+    conducting: &[usize],
+) -> Option<Range> {
+    if !(sw.linear_region || sw.follower) {
+        return None;
+    }
+    let i = sw.saturated_current_a.as_ref()?;
+    let d = cx.circuit.devices.get(load_device)?;
+    let r = crate::analysis::stand_in::winding_resistance(cx, d)
+        .or_else(|| crate::analysis::stand_in::resistance(cx, d))?;
+    let solved = drive::range_over(s, conducting, &|_, x| load::across(cx, load_device, x));
+    let full = Range {
+        min: i.min * r,
+        max: i.max * r,
+        min_state: i.min_state.clone(),
+        max_state: i.max_state.clone(),
+    };
+    match solved {
+        Some(v) if v.max >= full.max => None,
+        _ => Some(full),
+    }
 }

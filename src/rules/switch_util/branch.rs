@@ -116,15 +116,11 @@ pub fn dc_resistance(cx: &RuleContext<'_>, id: DeviceId) -> Option<f64> {
     }
     .filter(|r| r.is_finite() && *r >= 0.0)
 }
-/// The current the load branch draws with the switch fully on (V_rail less a saturated switch's
-/// drop, over the branch's resistance), when every part of the branch is resistive.
-pub fn saturated_current(cx: &RuleContext<'_>, sw: &SwitchFacts, switch_drop: f64) -> Option<f64> {
-    let v = rail(cx, sw)?.v.max;
-    let mut r = 0.0;
-    for &d in &sw.branch {
-        r += dc_resistance(cx, d)?;
-    }
-    (r > 0.0 && v > switch_drop).then(|| (v - switch_drop) / r)
+/// The branch current with the switch saturated, as the analysis found it (the rail less a
+/// saturated switch's drop over the branch's resistance; see
+/// [`SwitchFacts::saturated_current_a`]).
+pub fn saturated_current(sw: &SwitchFacts) -> Option<&Range> {
+    sw.saturated_current_a.as_ref().filter(|r| r.max > 0.0)
 }
 /// True when something other than the load flows through the switch in the on state: a
 /// freewheel diode fitted backwards, or one whose reverse rating is below the rail so that it

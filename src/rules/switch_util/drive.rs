@@ -88,50 +88,6 @@ pub fn drive_level(cx: &RuleContext<'_>, driver: DeviceId) -> Option<DriveLevel>
         _ => None,
     }
 }
-/// Square-law gain of a MOSFET and how it was found.
-#[derive(Clone, Debug, PartialEq)]
-pub struct Gain {
-    /// k in A/V² (I_D = k/2·(V_GS − V_th)² in saturation).
-    pub k: f64,
-    /// How it was found, for messages (`from rds_on 50 mΩ at 10 V`).
-    pub how: String,
-    /// Provenance of the data it came from.
-    pub source: String,
-}
-/// `k = KP·W/L` from the model, else `1/(rds_on·(vgs_rated − vgs_th_max))` (the triode
-/// region at small V_DS: R = 1/(k·(V_GS − V_th))).
-pub fn mos_gain(cx: &RuleContext<'_>, id: DeviceId) -> Option<Gain> {
-    let data = &device(cx, id)?.data;
-    if let Some(kp) = data.get("kp").filter(|r| r.value > 0.0) {
-        let w = data.value("w").filter(|v| *v > 0.0).unwrap_or(1.0);
-        let l = data.value("l").filter(|v| *v > 0.0).unwrap_or(1.0);
-        return Some(Gain {
-            k: kp.value * w / l,
-            how: "from KP·W/L".into(),
-            source: kp.source.clone(),
-        });
-    }
-    let rds = data.get("rds_on").filter(|r| r.value > 0.0)?;
-    let rated = data.value("vgs_rated")?;
-    let th = data.value("vgs_th_max")?;
-    if rated - th < 0.1 {
-        return None;
-    }
-    Some(Gain {
-        k: 1.0 / (rds.value * (rated - th)),
-        how: format!(
-            "from rds_on {} at {}, k = 1/(rds_on·(vgs_rated − vgs_th_max))",
-            format_si(rds.value, "Ω"),
-            format_si(rated, "V")
-        ),
-        source: rds.source.clone(),
-    })
-}
-/// Estimated on-resistance at a gate drive, `1/(k·(V_GS − V_th))`.
-pub fn rds_at(gain: &Gain, vgs: f64, threshold: f64) -> Option<f64> {
-    let over = vgs - threshold;
-    (over > 0.0 && gain.k > 0.0).then(|| 1.0 / (gain.k * over))
-}
 /// True when the drive is a repeating PWM (a known frequency of at least 20 Hz) rather than an
 /// on/off command.
 pub fn is_pwm(sw: &SwitchFacts) -> bool {
