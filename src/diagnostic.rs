@@ -114,7 +114,7 @@ pub struct Quantity {
     pub provenance: Provenance,
     /// The finding's verdict turns on this number (a rating it is compared with): when it is
     /// only assumed, the finding is a note unless it holds over the number's plausible range
-    /// (see [`Finding::holds_over_range`]).
+    /// (see [`Finding::holds_at`]).
     pub decides: bool,
 }
 
@@ -161,9 +161,9 @@ pub struct Finding {
     pub labels: Vec<Label>,
     pub help: Option<String>,
     pub values: Vec<Quantity>,
-    /// The rule checked that its verdict holds over the whole plausible range of every
-    /// assumed number it rests on, so it keeps its severity.
-    pub holds_over_range: bool,
+    /// The severest level the verdict keeps over the whole plausible range of its assumed
+    /// numbers (`None`: it keeps none, and becomes a note).
+    pub holds_at: Option<Severity>,
 }
 
 impl Finding {
@@ -184,7 +184,7 @@ impl Finding {
             labels: Vec::new(),
             help: None,
             values: Vec::new(),
-            holds_over_range: false,
+            holds_at: None,
         }
     }
 
@@ -234,15 +234,23 @@ impl Finding {
         f
     }
 
-    /// Marks that the verdict holds over the plausible range of its assumed numbers.
-    pub fn holding_over_range(mut self, holds: bool) -> Self {
-        self.holds_over_range = holds;
+    /// Marks that the verdict holds, at its own severity, over the plausible range of its
+    /// assumed numbers.
+    pub fn holding_over_range(self, holds: bool) -> Self {
+        let severity = self.severity;
+        self.holding_at(holds.then_some(severity))
+    }
+
+    /// Marks the severest level the verdict keeps over the plausible range of its assumed
+    /// numbers (an error that would still be a warning with the largest plausible rating).
+    pub fn holding_at(mut self, level: Option<Severity>) -> Self {
+        self.holds_at = level.map(|l| l.min(self.severity));
         self
     }
 
     /// The assumed number the verdict turns on, unless the verdict holds regardless.
     pub fn resting_on_assumption(&self) -> Option<&Quantity> {
-        if self.holds_over_range {
+        if self.holds_at == Some(self.severity) {
             return None;
         }
         self.values

@@ -10,7 +10,7 @@ use crate::diagnostic::{Finding, Severity};
 /// Demotes every finding whose verdict rests on an assumed number (see the module notes).
 pub fn settle(findings: &mut [Finding]) {
     for f in findings.iter_mut() {
-        if f.severity == Severity::Note {
+        if f.severity == Severity::Note || f.holds_at == Some(f.severity) {
             continue;
         }
         let Some(q) = f.resting_on_assumption() else {
@@ -23,13 +23,24 @@ pub fn settle(findings: &mut [Finding]) {
             .clone()
             .or_else(|| f.element.clone())
             .unwrap_or_else(|| "the part".into());
-        f.message = format!(
-            "{}; but this rests on an assumed {name} of {} ({source}), so it is a note until the \
-             part's rating is stated: add `{name} = …` for {part} to confirm",
-            f.message,
-            format_si(value, &unit)
-        );
-        f.severity = Severity::Note;
+        let settled = f.holds_at.unwrap_or(Severity::Note);
+        f.message = if settled == Severity::Note {
+            format!(
+                "{}; but this rests on an assumed {name} of {} ({source}), so it is a note until \
+                 the part's rating is stated: add `{name} = …` for {part} to confirm",
+                f.message,
+                format_si(value, &unit)
+            )
+        } else {
+            format!(
+                "{}; this rests on an assumed {name} of {} ({source}): with the largest {name} \
+                 such a part plausibly has it is still a {settled}, so it is reported as one \
+                 until the part's rating is stated: add `{name} = …` for {part} to settle it",
+                f.message,
+                format_si(value, &unit)
+            )
+        };
+        f.severity = settled;
     }
 }
 
@@ -72,5 +83,19 @@ mod tests {
         let mut all = vec![stated, robust, undecided];
         settle(&mut all);
         assert!(all.iter().all(|f| f.severity == Severity::Error));
+    }
+
+    #[test]
+    fn an_error_that_is_a_warning_at_the_largest_plausible_rating_becomes_a_warning() {
+        let mut all = vec![finding()
+            .with_deciding_value("power_rating", 0.25, "W", "built-in default for resistor")
+            .holding_at(Some(Severity::Warning))];
+        settle(&mut all);
+        assert_eq!(all[0].severity, Severity::Warning);
+        assert!(
+            all[0].message.contains("still a warning"),
+            "{}",
+            all[0].message
+        );
     }
 }

@@ -191,15 +191,18 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Opt
     }
     // Where the rating is only assumed, the verdict stands only if it would with the largest
     // rating an unstated part plausibly has.
-    let limit = match severity {
-        Severity::Error => UNSTATED_RATING_MAX_W,
-        _ => DERATING * UNSTATED_RATING_MAX_W,
+    let holds_at = if p > UNSTATED_RATING_MAX_W {
+        Some(Severity::Error)
+    } else if p > DERATING * UNSTATED_RATING_MAX_W {
+        Some(Severity::Warning)
+    } else {
+        None
     };
     Some(
         f.with_help(help)
             .with_value("power", p, "W", "computed")
             .with_value("peak_power", peak, "W", "computed")
             .with_deciding_value("power_rating", rating.value, "W", rating.source)
-            .holding_over_range(p > limit),
+            .holding_at(holds_at),
     )
 }
