@@ -63,7 +63,19 @@ pub fn write_flat(flat: &FlatNetlist) -> String {
         out.push('\n');
     }
     for e in &flat.elements {
-        element(&mut out, e);
+        let vertical = e.letter == 'M'
+            && e.model_index
+                .and_then(|i| flat.models.get(i))
+                .is_some_and(|m| m.kind.eq_ignore_ascii_case("VDMOS"));
+        if vertical && e.nodes.len() > 4 {
+            // The parser reads a vertical part's body as its source; written back, the line
+            // carries only the drain, gate, source and thermal nodes, as it was written.
+            let mut written = e.clone();
+            written.nodes.remove(3);
+            element(&mut out, &written);
+        } else {
+            element(&mut out, e);
+        }
         out.push('\n');
     }
     out.push_str(".end\n");
