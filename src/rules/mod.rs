@@ -246,8 +246,8 @@ pub static REGISTRY: &[RuleInfo] = &[
     ),
     rule!(
         "part-pins",
-        Warning,
-        "A part's port count does not fit its kind",
+        Note,
+        "A part's ports cannot be matched to its pins; say which is which in the config",
         None
     ),
     rule!(
@@ -353,7 +353,8 @@ pub fn find(id: &str) -> Option<&'static RuleInfo> {
 }
 
 /// Runs every enabled rule; findings inside behavioural part models are left out
-/// ([`part_models`]).
+/// ([`part_models`]), and so are findings that rest on a default of a part whose model is
+/// missing ([`unknown_parts`]).
 pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
     let mut out = Vec::new();
     for rule in REGISTRY {
@@ -363,6 +364,8 @@ pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
     }
     let models = part_models::model_instances(cx.netlist);
     out.retain(|f| !part_models::inside_model(f, &models));
+    let undefined = unknown_parts::undefined_spans(cx);
+    out.retain(|f| !unknown_parts::rests_on_missing_model(f, &undefined));
     out
 }
 
@@ -373,3 +376,4 @@ pub mod suppress;
 pub mod switch_util;
 pub mod timer_util;
 pub mod units;
+pub mod unknown_parts;
