@@ -3,7 +3,7 @@
 //! its `.model` card, the built-in library, the kind's defaults.
 
 use super::defaults::apply_defaults;
-use super::{glob, library, parts, pins, Kind, PartData, PinRole};
+use super::{glob, library, parts, pins, Kind, PartData, PinRole, UnknownPart};
 use crate::config::{Config, PartConfig};
 use crate::netlist::{FlatElement, Model, Num};
 use std::collections::HashMap;
@@ -15,7 +15,9 @@ pub(crate) struct Resolved {
     pub roles: Vec<PinRole>,
     pub data: PartData,
     /// Why the element's ports do not fit its kind, if they do not.
-    pub pin_problem: Option<String>,
+    pub pin_problem: Option<pins::PinProblem>,
+    /// What part knowledge could not settle (then `kind` is `Unknown` and every role `other`).
+    pub unknown: Option<UnknownPart>,
 }
 
 /// The config's part entries, indexed once per build.
@@ -32,6 +34,9 @@ pub(crate) struct PartSources<'a> {
     shared_count: usize,
     /// The last element with an entry of its own in `[elements]` (never shared).
     own: Option<Resolved>,
+    /// An include could not be read: a part kept by its name but defined nowhere in the deck
+    /// may have been defined, with its own port order, in the missing file.
+    definitions_missing: bool,
 }
 
 /// Distinct likenesses kept at most; past that, elements are resolved one by one.
@@ -115,7 +120,7 @@ impl Likeness {
 }
 
 impl<'a> PartSources<'a> {
-    pub fn new(config: &'a Config) -> Self {
+    pub fn new(config: &'a Config, definitions_missing: bool) -> Self {
         let mut elements = HashMap::new();
         for (path, entry) in &config.elements {
             elements
@@ -129,6 +134,7 @@ impl<'a> PartSources<'a> {
             shared: HashMap::new(),
             shared_count: 0,
             own: None,
+            definitions_missing,
         }
     }
 
@@ -231,13 +237,36 @@ fn resolve(element: &FlatElement, models: &[Model], sources: &mut PartSources<'_
 
     let count = element.nodes.len();
     let configured_pins = entries().find_map(|e| e.pins.as_ref());
-    let (roles, pin_problem) = match (configured_pins, &element.subckt) {
-        (Some(names), _) => pins::from_config(kind, names, count),
-        (None, Some(kept)) => pins::for_kept(kind, &kept.ports, count),
-        (None, None) if configured_kind.is_some() && element.letter != 'X' => {
-            pins::by_kind_order(kind, count)
+    let mapped = match (configured_pins, &element.subckt) {
+        (Some(names), _) => pins::from_config(kind, names, count).map_err(Some),
+        (None, Some(kept))
+            if kept.definition.is_none()
+                && configured_kind.is_none()
+                && sources.definitions_missing =>
+        {
+            // The missing file may define it, in a port order of its own.
+            Err(None)
         }
-        (None, None) => (pins::by_letter(element.letter, kind, count), None),
+        (None, Some(kept)) => pins::for_kept(kind, &kept.ports, count).map_err(Some),
+        (None, None) if configured_kind.is_some() && element.letter != 'X' => {
+            pins::by_kind_order(kind, count).map_err(Some)
+        }
+        (None, None) => Ok(pins::by_letter(element.letter, kind, count)),
+    };
+    let (kind, roles, pin_problem, unknown) = match mapped {
+        Ok(roles) => (kind, roles, None, None),
+        Err(problem) => {
+            let why = match problem {
+                Some(_) => UnknownPart::Pins(kind),
+                None => UnknownPart::Undefined,
+            };
+            (
+                Kind::Unknown,
+                vec![PinRole::Other; count],
+                problem,
+                Some(why),
+            )
+        }
     };
 
     let mut data = PartData::default();
@@ -271,6 +300,7 @@ fn resolve(element: &FlatElement, models: &[Model], sources: &mut PartSources<'_
         roles,
         data,
         pin_problem,
+        unknown,
     }
 }
 

@@ -2,7 +2,10 @@
 
 use super::data::{toml_key, PartSources};
 use super::names::NameIndex;
-use super::{pins, Device, DeviceId, Kind, Net, NetId, Pin, PinRole};
+use super::pins::PinProblem;
+use super::unknown::KnownNames;
+use super::wires::Wires;
+use super::{Device, DeviceId, Kind, Net, NetId, Pin, PinRole, UnknownPart};
 use crate::config::Config;
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::{FlatElement, FlatNetlist};
@@ -46,15 +49,21 @@ pub struct Circuit {
     /// Component of each net through DC-conducting paths only (capacitors, current sources,
     /// gates and control inputs do not conduct).
     pub(super) dc_component: Vec<usize>,
+    /// Parts whose model is defined nowhere or whose ports could not be given roles, in device
+    /// order (see `unknown.rs`).
+    pub(super) unknown_parts: Vec<(DeviceId, UnknownPart)>,
+    /// Nets joined through 0 V sources (see `wires.rs`).
+    pub(super) wires: Wires,
 }
 
 impl Circuit {
     /// Builds the graph: part kinds and pin roles from part knowledge, part data with provenance.
-    /// Findings: `part-pins` where a part's ports do not fit its kind.
+    /// Findings: `part-pins` where a part's ports cannot be given their roles.
     pub fn build(netlist: &FlatNetlist, config: &Config) -> (Circuit, Vec<Finding>) {
         let mut circuit = Circuit::default();
         let mut findings = Vec::new();
-        let mut sources = PartSources::new(config);
+        let mut sources = PartSources::new(config, !netlist.missing_includes.is_empty());
+        let known = KnownNames::new(netlist, config);
         circuit.devices.reserve(netlist.elements.len());
         circuit.paths.reserve(netlist.elements.len());
         // Most elements bring at most one new net; reserving avoids rehashing as the map grows.
@@ -62,7 +71,15 @@ impl Circuit {
         for (index, element) in netlist.elements.iter().enumerate() {
             let resolved = sources.resolve(element, &netlist.models);
             if let Some(problem) = &resolved.pin_problem {
-                findings.push(pin_finding(element, resolved.kind, problem));
+                findings.push(pin_finding(element, resolved.unknown, problem));
+            }
+            let unknown = if known.is_undefined(element) {
+                Some(UnknownPart::Undefined)
+            } else {
+                resolved.unknown
+            };
+            if let Some(why) = unknown {
+                circuit.unknown_parts.push((circuit.devices.len(), why));
             }
             let pins = element
                 .nodes
@@ -85,6 +102,7 @@ impl Circuit {
         }
         circuit.index_pins();
         circuit.build_components(netlist);
+        circuit.wires = Wires::build(&circuit, netlist, config);
         (circuit, findings)
     }
 
@@ -313,7 +331,11 @@ fn conducts_dc(kind: Kind, letter: char, role: PinRole) -> bool {
     }
 }
 
-fn pin_finding(element: &FlatElement, kind: Kind, problem: &str) -> Finding {
+fn pin_finding(
+    element: &FlatElement,
+    unknown: Option<UnknownPart>,
+    problem: &PinProblem,
+) -> Finding {
     let part = element
         .subckt
         .as_ref()
@@ -325,20 +347,36 @@ fn pin_finding(element: &FlatElement, kind: Kind, problem: &str) -> Finding {
     } else {
         format!("[elements.{}]", toml_key(&element.path))
     };
+    // A deck that does not say is a gap to fill (a note); a wrong `pins` list is a mistake.
+    let severity = if problem.in_config {
+        Severity::Warning
+    } else {
+        Severity::Note
+    };
+    let skipped = match unknown {
+        Some(UnknownPart::Pins(kind)) => format!("; its {kind} checks are skipped until then"),
+        _ => String::new(),
+    };
+    let list = problem
+        .suggestion
+        .iter()
+        .map(|r| format!("\"{r}\""))
+        .collect::<Vec<_>>()
+        .join(", ");
+    let blanks = if problem.suggestion.iter().any(|r| r == "?") {
+        " and replace each \"?\" with that port's role from the model's pin list"
+    } else {
+        ""
+    };
     let mut finding = Finding::new(
         "part-pins",
-        Severity::Warning,
+        severity,
         element.span,
-        format!("{} ({part}): {problem}", element.path),
+        format!("{} ({part}): {}", element.path, problem.message),
     )
     .with_element(element.name.clone(), element.instance_path())
     .with_help(format!(
-        "give the roles in port order in kickback.toml: {table} with pins = [{}]",
-        pins::expected_roles(kind)
-            .split(' ')
-            .map(|r| format!("\"{r}\""))
-            .collect::<Vec<_>>()
-            .join(", ")
+        "give the roles in port order in kickback.toml: {table} pins = [{list}]{blanks}{skipped}"
     ));
     finding.instances = element.instances.clone();
     if let Some(definition) = element.subckt.as_ref().and_then(|s| s.definition) {

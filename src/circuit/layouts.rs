@@ -19,6 +19,9 @@ pub(super) struct Layout {
     pub named_min: usize,
     /// Whether `x+` / `x-` port names mean the first / second role.
     pub sign_suffixes: bool,
+    /// Whether ports whose names say nothing may take their position's role: parts whose ends
+    /// swap with little consequence (a load's two ends, a pot's two ends around its wiper).
+    pub words_by_position: bool,
 }
 
 const GND_NAMES: &[&str] = &["GND", "VSS", "VN", "V-", "VEE", "GROUND", "0"];
@@ -32,7 +35,7 @@ static TIMER: Layout = Layout {
         },
         RoleNames {
             role: PinRole::Trig,
-            names: &["TRIG", "TRIGGER", "TR", "TRG", "TRIGBAR", "TRIGN"],
+            names: &["TRIG", "TRIGGER", "TR", "TRI", "TRG", "TRIGBAR", "TRIGN"],
         },
         RoleNames {
             role: PinRole::Out,
@@ -64,6 +67,7 @@ static TIMER: Layout = Layout {
     by_order: (8, 8),
     named_min: 4,
     sign_suffixes: false,
+    words_by_position: false,
 };
 
 static MOS: Layout = Layout {
@@ -88,6 +92,7 @@ static MOS: Layout = Layout {
     by_order: (3, 4),
     named_min: 3,
     sign_suffixes: false,
+    words_by_position: false,
 };
 
 static JFET: Layout = Layout {
@@ -108,6 +113,7 @@ static JFET: Layout = Layout {
     by_order: (3, 3),
     named_min: 3,
     sign_suffixes: false,
+    words_by_position: false,
 };
 
 static BJT: Layout = Layout {
@@ -132,6 +138,7 @@ static BJT: Layout = Layout {
     by_order: (3, 4),
     named_min: 3,
     sign_suffixes: false,
+    words_by_position: false,
 };
 
 static DIODE: Layout = Layout {
@@ -148,6 +155,7 @@ static DIODE: Layout = Layout {
     by_order: (2, 2),
     named_min: 2,
     sign_suffixes: false,
+    words_by_position: false,
 };
 
 pub(super) static TWO_TERMINAL: Layout = Layout {
@@ -164,6 +172,7 @@ pub(super) static TWO_TERMINAL: Layout = Layout {
     by_order: (2, 2),
     named_min: 2,
     sign_suffixes: true,
+    words_by_position: true,
 };
 
 /// Counter-clockwise end = `a`, clockwise end = `b` (the wiper moves towards `b` when turned
@@ -186,6 +195,7 @@ static POT: Layout = Layout {
     by_order: (3, 3),
     named_min: 3,
     sign_suffixes: false,
+    words_by_position: true,
 };
 
 static LOGIC: Layout = Layout {
@@ -206,6 +216,7 @@ static LOGIC: Layout = Layout {
     by_order: (1, 3),
     named_min: 1,
     sign_suffixes: false,
+    words_by_position: false,
 };
 
 static FOUR_TERMINAL: Layout = Layout {
@@ -230,6 +241,7 @@ static FOUR_TERMINAL: Layout = Layout {
     by_order: (4, 4),
     named_min: 4,
     sign_suffixes: false,
+    words_by_position: false,
 };
 
 pub(super) static ALL_LAYOUTS: [&Layout; 9] = [

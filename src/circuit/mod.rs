@@ -141,7 +141,10 @@ mod names;
 pub mod parts;
 pub mod pins;
 mod query;
+mod unknown;
+mod wires;
 
 pub use defaults::LOGIC_LEVEL_VGS_TH_MAX;
 pub use graph::{Circuit, GraphNode};
 pub use query::SeriesChain;
+pub use unknown::UnknownPart;

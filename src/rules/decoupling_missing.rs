@@ -4,7 +4,7 @@
 //!
 //! A netlist carries no placement, so one capacitor across the pair counts for every IC on it.
 
-use super::hygiene_util::{between, finding_at, net_name, NetIndex};
+use super::hygiene_util::{between, finding_at, net_name, wire_pins, NetIndex};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Kind, NetId, PinRole};
@@ -41,7 +41,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         let key = (vcc.min(gnd), vcc.max(gnd));
         let has_cap = *decoupled
             .entry(key)
-            .or_insert_with(|| !between(cx, &index, vcc, gnd, |k| k == Kind::Capacitor).is_empty());
+            .or_insert_with(|| capacitor_across(cx, &index, vcc, gnd));
         if has_cap {
             continue;
         }
@@ -80,6 +80,22 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             .with_value("decoupling_suggested", DECOUPLING_F, "F", "common practice"),
         );
     }
+}
+
+/// A capacitor from the supply pin's node to the ground pin's node; 0 V sources (ammeters in
+/// the supply lines) are wires.
+fn capacitor_across(cx: &RuleContext<'_>, index: &NetIndex<'_>, vcc: NetId, gnd: NetId) -> bool {
+    if !between(cx, index, vcc, gnd, |k| k == Kind::Capacitor).is_empty() {
+        return true;
+    }
+    wire_pins(cx, index, vcc).iter().any(|&(id, _)| {
+        cx.circuit.devices.get(id).is_some_and(|d| {
+            d.kind == Kind::Capacitor
+                && d.pins.len() == 2
+                && d.pins.iter().any(|p| cx.circuit.same_wire(p.net, vcc))
+                && d.pins.iter().any(|p| cx.circuit.same_wire(p.net, gnd))
+        })
+    })
 }
 
 #[cfg(test)]

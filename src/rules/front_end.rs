@@ -61,9 +61,9 @@ pub const DIALECT_FOREIGN: Rule = Rule {
 
 pub const PART_PINS: Rule = Rule {
     id: "part-pins",
-    default_severity: Severity::Warning,
-    grades: &[Severity::Warning],
-    summary: "A part's port count does not fit its kind",
+    default_severity: Severity::Note,
+    grades: &[Severity::Warning, Severity::Note],
+    summary: "A part's ports cannot be matched to its pins; say which is which in the config",
     page: include_str!("../../rules/part-pins.md"),
     check: None,
 };

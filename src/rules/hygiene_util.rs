@@ -94,6 +94,25 @@ pub fn is_global(cx: &RuleContext<'_>, net: NetId) -> bool {
         .any(|g| g.eq_ignore_ascii_case(name))
 }
 
+/// Every pin on the node `net` belongs to once 0 V sources are read as wires, the sources' own
+/// pins left out (see `Circuit::wire_nets`).
+pub fn wire_pins(cx: &RuleContext<'_>, index: &NetIndex<'_>, net: NetId) -> Vec<(DeviceId, usize)> {
+    cx.circuit
+        .wire_nets(net)
+        .into_iter()
+        .flat_map(|n| index.on(n).iter().copied())
+        .filter(|&(device, _)| !cx.circuit.is_ammeter(device))
+        .collect()
+}
+
+/// True when the node `net` belongs to (through 0 V sources) holds ground or a `.global` net.
+pub fn wire_is_ground_or_global(cx: &RuleContext<'_>, net: NetId) -> bool {
+    cx.circuit
+        .wire_nets(net)
+        .into_iter()
+        .any(|n| is_ground(cx, n) || is_global(cx, n))
+}
+
 /// A finding on an element's line, with its instance path and the instance lines that placed it.
 pub fn finding_at(
     rule: super::Rule,

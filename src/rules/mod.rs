@@ -134,8 +134,9 @@ pub fn find(id: &str) -> Option<&'static Rule> {
 }
 
 /// Runs every enabled rule; findings inside behavioural part models are left out
-/// ([`part_models`]), and findings that rest on an assumed rating become notes
-/// ([`assumed`]).
+/// ([`part_models`]), and so are findings that rest on a default of a part whose model is
+/// missing ([`unknown_parts`]); findings that rest on an assumed rating are lowered to what
+/// holds over the rating's plausible range ([`assumed`]).
 pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
     let mut out = Vec::new();
     for rule in REGISTRY {
@@ -145,6 +146,8 @@ pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
     }
     let models = part_models::model_instances(cx.netlist);
     out.retain(|f| !part_models::inside_model(f, &models));
+    let undefined = unknown_parts::undefined_spans(cx);
+    out.retain(|f| !unknown_parts::rests_on_missing_model(f, &undefined));
     assumed::settle(&mut out);
     out
 }
@@ -158,3 +161,4 @@ pub mod suppress;
 pub mod switch_util;
 pub mod timer_util;
 pub mod units;
+pub mod unknown_parts;

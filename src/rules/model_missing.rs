@@ -7,10 +7,10 @@
 use super::hygiene_util::{finding_at, Once};
 use super::Rule;
 use super::RuleContext;
-use crate::circuit::{glob, parts};
+use crate::circuit::UnknownPart;
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::FlatElement;
-use std::collections::{BTreeMap, HashSet};
+use std::collections::BTreeMap;
 
 /// This rule's identity: its ID, the severities it gives and its page.
 pub const RULE: Rule = Rule {
@@ -25,16 +25,27 @@ pub const RULE: Rule = Rule {
 const MAX_LABELS: usize = 8;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
-    let known = Known::new(cx);
-    // Lower-case name → (name as first written, elements that use it).
+    // Lower-case name → (name as first written, elements that use it). The circuit's fact of
+    // unknown parts says which elements name something nothing defines.
     let mut undefined: BTreeMap<String, (String, Vec<&FlatElement>)> = BTreeMap::new();
-    for element in &cx.netlist.elements {
-        let Some(name) = element.model.as_deref() else {
-            continue;
-        };
-        if element.model_index.is_some() || element.subckt.is_some() || known.knows(element, name) {
+    for &(device, why) in cx.circuit.unknown_parts() {
+        if why != UnknownPart::Undefined {
             continue;
         }
+        let Some(element) = cx
+            .circuit
+            .device(device)
+            .and_then(|d| cx.netlist.elements.get(d.element))
+        else {
+            continue;
+        };
+        let Some(name) = element
+            .model
+            .as_deref()
+            .or(element.subckt.as_ref().map(|s| s.name.as_str()))
+        else {
+            continue;
+        };
         undefined
             .entry(name.to_ascii_lowercase())
             .or_insert_with(|| (name.to_string(), Vec::new()))
@@ -53,49 +64,6 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             }
         }
     }
-}
-
-/// Names part knowledge can describe without a `.model` or `.subckt` in the deck.
-struct Known<'a> {
-    cx: &'a RuleContext<'a>,
-    subckts: HashSet<String>,
-    exact_parts: HashSet<String>,
-    glob_parts: Vec<&'a str>,
-    elements: HashSet<String>,
-}
-
-impl<'a> Known<'a> {
-    fn new(cx: &'a RuleContext<'a>) -> Self {
-        let mut exact_parts = HashSet::new();
-        let mut glob_parts = Vec::new();
-        for (pattern, _) in &cx.config.parts {
-            if glob::is_glob(pattern) {
-                glob_parts.push(pattern.as_str());
-            } else {
-                exact_parts.insert(pattern.to_ascii_lowercase());
-            }
-        }
-        Known {
-            cx,
-            subckts: lower_set(cx.netlist.subckt_names.iter()),
-            exact_parts,
-            glob_parts,
-            elements: lower_set(cx.config.elements.keys()),
-        }
-    }
-
-    fn knows(&self, element: &FlatElement, name: &str) -> bool {
-        let lower = name.to_ascii_lowercase();
-        self.subckts.contains(&lower)
-            || self.exact_parts.contains(&lower)
-            || self.glob_parts.iter().any(|g| glob::matches(g, name))
-            || self.elements.contains(&element.path.to_ascii_lowercase())
-            || parts::keeps_whole(name, self.cx.config)
-    }
-}
-
-fn lower_set<'s>(names: impl Iterator<Item = &'s String>) -> HashSet<String> {
-    names.map(|n| n.to_ascii_lowercase()).collect()
 }
 
 fn what_it_names(element: &FlatElement) -> &'static str {
@@ -220,28 +188,23 @@ fn quoted_list(names: &[&str]) -> String {
 
 #[cfg(test)]
 mod tests {
-    use super::*;
-    use crate::circuit::{Kind, PinRole};
-    use crate::netlist::MissingInclude;
-    use crate::rules::hygiene_util::testkit::Deck;
-    use crate::source::{FileId, Span};
+    use crate::check::{check_str, CheckOptions};
+    use crate::config::Config;
+    use crate::diagnostic::{Finding, Severity};
 
-    fn deck_with_unknown_diode() -> Deck {
-        let mut d = Deck::new();
-        d.v("V1", "a", "0", 5.0);
-        let e = d.add(
-            "D1",
-            Kind::Diode,
-            &[(PinRole::Anode, "a"), (PinRole::Cathode, "0")],
-        );
-        e.model = Some("DFAST".into());
-        d
+    const DECK: &str = "diode\nV1 a 0 5\nR1 a b 1k\nD1 b 0 DFAST\n.end\n";
+
+    fn run(config: &Config) -> Vec<Finding> {
+        check_str("t.cir", DECK, config, &CheckOptions::default())
+            .findings
+            .into_iter()
+            .filter(|f| f.rule == "model-missing")
+            .collect()
     }
 
     #[test]
     fn undefined_model_is_an_error() {
-        let d = deck_with_unknown_diode();
-        let found = d.run(check);
+        let found = run(&Config::default());
         assert_eq!(found.len(), 1);
         assert_eq!(found[0].severity, Severity::Error);
         assert!(found[0].message.contains("`DFAST`"), "{}", found[0].message);
@@ -249,24 +212,10 @@ mod tests {
 
     #[test]
     fn configured_part_is_known() {
-        let mut d = deck_with_unknown_diode();
-        d.config
+        let mut config = Config::default();
+        config
             .parts
             .push(("dfa*".into(), crate::config::PartConfig::default()));
-        assert!(d.run(check).is_empty());
-    }
-
-    #[test]
-    fn missing_include_takes_the_blame_once() {
-        let mut d = deck_with_unknown_diode();
-        d.netlist.missing_includes.push(MissingInclude {
-            path: "diodes.lib".into(),
-            span: Span::new(FileId(0), 0, 10),
-        });
-        let found = d.run(check);
-        assert_eq!(found.len(), 1);
-        assert_eq!(found[0].severity, Severity::Warning);
-        assert!(found[0].message.contains("diodes.lib") && found[0].message.contains("DFAST"));
-        assert_eq!(found[0].labels.len(), 1);
+        assert!(run(&config).is_empty());
     }
 }

@@ -6,7 +6,7 @@
 //! `pin-unconnected` reports with what that pin does.
 
 use super::hygiene_util::{
-    finding_at, is_global, is_ground, is_no_connect_name, is_part, net_name,
+    finding_at, is_no_connect_name, is_part, net_name, wire_is_ground_or_global, wire_pins,
 };
 use super::hygiene_util::{NetIndex, Once};
 use super::Rule;
@@ -45,13 +45,17 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
     let mut dangling = Vec::new();
     for net in 0..cx.circuit.nets.len() {
-        let [(device_id, pin)] = index.on(net) else {
+        let Some((device_id, pin)) = single_connection(cx, &index, net) else {
             continue;
         };
-        if is_ground(cx, net) || is_global(cx, net) || is_no_connect_name(net_name(cx, net)) {
+        if wire_is_ground_or_global(cx, net) || is_no_connect_name(net_name(cx, net)) {
             continue;
         }
-        let Some(device) = cx.circuit.devices.get(*device_id) else {
+        // An unknown part may wire the net inside a definition kickback cannot read.
+        if cx.circuit.unknown_part(device_id).is_some() {
+            continue;
+        }
+        let Some(device) = cx.circuit.devices.get(device_id) else {
             continue;
         };
         let Some(element) = cx.netlist.elements.get(device.element) else {
@@ -62,8 +66,8 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         }
         dangling.push(Dangling {
             net,
-            device: *device_id,
-            pin: *pin,
+            device: device_id,
+            pin,
             scope: scope_of(&element.path, &element.name),
         });
     }
@@ -124,6 +128,41 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             ),
         };
         out.push(finding);
+    }
+}
+
+/// The one pin on `net`'s node, 0 V sources read as wires; reported at the net that pin is on,
+/// so a node is reported once. A node of nothing but 0 V sources is read net by net.
+fn single_connection(
+    cx: &RuleContext<'_>,
+    index: &NetIndex<'_>,
+    net: NetId,
+) -> Option<(usize, usize)> {
+    let raw = index.on(net);
+    if raw.is_empty() || raw.len() > 2 {
+        return None;
+    }
+    if !raw.iter().any(|&(d, _)| cx.circuit.is_ammeter(d)) {
+        return match raw {
+            [one] => Some(*one),
+            _ => None,
+        };
+    }
+    match wire_pins(cx, index, net)[..] {
+        [] => match raw {
+            [one] => Some(*one),
+            _ => None,
+        },
+        [(device, pin)] => {
+            let on_this_net = cx
+                .circuit
+                .devices
+                .get(device)
+                .and_then(|d| d.pins.get(pin))
+                .is_some_and(|p| p.net == net);
+            on_this_net.then_some((device, pin))
+        }
+        _ => None,
     }
 }
 

@@ -7,7 +7,8 @@
 //! unknown kind on a net named as a no-connect is taken at its word.
 
 use super::hygiene_util::{
-    finding_at, is_global, is_ground, is_no_connect_name, is_part, net_name, pin_label, NetIndex,
+    finding_at, is_no_connect_name, is_part, net_name, pin_label, wire_is_ground_or_global,
+    wire_pins, NetIndex,
 };
 use super::Rule;
 use super::RuleContext;
@@ -26,11 +27,13 @@ pub const RULE: Rule = Rule {
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
-    for device in &cx.circuit.devices {
+    for (id, device) in cx.circuit.devices.iter().enumerate() {
         let Some(element) = cx.netlist.elements.get(device.element) else {
             continue;
         };
-        if !is_part(device.kind, element) {
+        // A part whose pins are not known (undefined, or ports that could not be mapped) is
+        // left alone: which of its pins may stay open is what kickback does not know.
+        if !is_part(device.kind, element) || cx.circuit.unknown_part(id).is_some() {
             continue;
         }
         let open: Vec<usize> = device
@@ -38,9 +41,10 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             .iter()
             .enumerate()
             .filter(|(_, pin)| {
-                let open = index.degree(pin.net) == 1
-                    && !is_ground(cx, pin.net)
-                    && !is_global(cx, pin.net);
+                // 0 V sources (ammeters) are wires: a pin that meets only an ammeter is open.
+                let open = index.degree(pin.net) <= 2
+                    && wire_pins(cx, &index, pin.net).len() == 1
+                    && !wire_is_ground_or_global(cx, pin.net);
                 let excused = may_stay_open(device.kind, pin.role)
                     || (device.kind == Kind::Unknown && is_no_connect_name(net_name(cx, pin.net)));
                 open && !excused

@@ -131,6 +131,9 @@ struct Section {
     sources: Vec<DeviceId>,
     first_conducting: Option<DeviceId>,
     blockers: Vec<DeviceId>,
+    /// An unknown part (undefined model, unmapped ports) touches the section: its definition
+    /// may tie the section to ground, so the deck alone cannot say the section floats.
+    unknown_part: bool,
 }
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
@@ -161,7 +164,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     }
     let sections = floating_sections(cx, &sets, &referenced);
     for (root, section) in &sections {
-        if explained.contains(root) || section.pins <= 1 {
+        if explained.contains(root) || section.pins <= 1 || section.unknown_part {
             continue;
         }
         if section.conducting_pins == 0 && section.covered_input {
@@ -227,7 +230,12 @@ fn floating_sections(
             let Some(s) = sections.get_mut(&root) else {
                 continue;
             };
-            s.pins += 1;
+            // A 0 V source (an ammeter) is a wire: a section of one pin and ammeters is an
+            // open pin, `pin-unconnected`'s to report.
+            if !cx.circuit.is_ammeter(id) {
+                s.pins += 1;
+            }
+            s.unknown_part |= cx.circuit.unknown_part(id).is_some();
             let conducts = joins(device.kind, letter, pin.role);
             if conducts {
                 s.conducting_pins += 1;

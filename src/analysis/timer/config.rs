@@ -7,6 +7,9 @@
 //!   the THR net or joined to it by one resistor, pot or diode, so that the discharge pin holds
 //!   the capacitor empty until a trigger.
 //! - **Unknown**: anything else (a 555 used as a comparator, a Schmitt trigger, a driver).
+//!
+//! Pins that meet through 0 V sources (ammeters such as `Vsense thr trig 0`) share a node: the
+//! topology reads those sources as wires (`Circuit::same_wire`); the DC engine keeps them.
 
 use crate::analysis::facts::TimerMode;
 use crate::analysis::partition::Fixed;
@@ -96,12 +99,41 @@ fn other_net(device: &Device, net: NetId) -> Option<NetId> {
     }
 }
 
-/// True when one conducting part (resistor, pot, diode) joins the two nets.
+/// True when one conducting part (resistor, pot, diode) joins the two nodes (0 V sources read
+/// as wires).
 fn joined(cx: &Context<'_>, index: &NetIndex, a: NetId, b: NetId) -> bool {
-    index.on(a).iter().any(|&(d, _)| {
+    node_pins(cx, index, a).iter().any(|&(d, _)| {
         let device = &cx.circuit.devices[d];
-        conducts(device.kind) && device.pins.iter().any(|p| p.net == b)
+        conducts(device.kind) && device.pins.iter().any(|p| cx.circuit.same_wire(p.net, b))
     })
+}
+
+/// Pins on the node `net` belongs to once 0 V sources (ammeters) are read as wires, the
+/// ammeters' own pins left out.
+fn node_pins(cx: &Context<'_>, index: &NetIndex, net: NetId) -> Vec<(DeviceId, PinRole)> {
+    cx.circuit
+        .wire_nets(net)
+        .into_iter()
+        .flat_map(|n| index.on(n).iter().copied())
+        .filter(|&(d, _)| !cx.circuit.is_ammeter(d))
+        .collect()
+}
+
+/// For a two-terminal device on the node of `net`: the net at its other end, when that lies on
+/// another node.
+fn far_end(cx: &Context<'_>, device: &Device, net: NetId) -> Option<NetId> {
+    let [a, b] = device.pins.as_slice() else {
+        return None;
+    };
+    let (here_a, here_b) = (
+        cx.circuit.same_wire(a.net, net),
+        cx.circuit.same_wire(b.net, net),
+    );
+    match (here_a, here_b) {
+        (true, false) => Some(b.net),
+        (false, true) => Some(a.net),
+        _ => None,
+    }
 }
 
 pub fn recognise(cx: &Context<'_>, index: &NetIndex, id: DeviceId) -> Setup {
@@ -126,8 +158,9 @@ pub fn recognise(cx: &Context<'_>, index: &NetIndex, id: DeviceId) -> Setup {
     let Some(thr) = thr.filter(|&n| !is_fixed(cx, n)) else {
         return setup;
     };
-    let mut caps: Vec<(DeviceId, f64)> = index
-        .on(thr)
+    // Topology reads 0 V sources (ammeters) as wires: pins that meet through one share a node.
+    let on_thr = node_pins(cx, index, thr);
+    let mut caps: Vec<(DeviceId, f64)> = on_thr
         .iter()
         .filter(|&&(d, _)| d != id)
         .filter_map(|&(d, _)| {
@@ -135,8 +168,8 @@ pub fn recognise(cx: &Context<'_>, index: &NetIndex, id: DeviceId) -> Setup {
             if c.kind != Kind::Capacitor {
                 return None;
             }
-            let far = other_net(c, thr)?;
-            (far != thr && is_fixed(cx, far)).then_some(())?;
+            let far = far_end(cx, c, thr)?;
+            is_fixed(cx, far).then_some(())?;
             Some((d, capacitance(cx, c)?))
         })
         .collect();
@@ -150,15 +183,16 @@ pub fn recognise(cx: &Context<'_>, index: &NetIndex, id: DeviceId) -> Setup {
     setup.capacitors = caps.iter().map(|c| c.0).collect();
     setup.component = cx.partition.net_component.get(thr).copied().flatten();
 
-    let charged = index.on(thr).iter().any(|&(d, _)| {
+    let charged = on_thr.iter().any(|&(d, _)| {
         d != id
             && conducts(cx.circuit.devices[d].kind)
-            && other_net(&cx.circuit.devices[d], thr).is_some_and(|n| n != thr)
+            && far_end(cx, &cx.circuit.devices[d], thr).is_some()
     });
-    let dis_on_timing = dis.is_some_and(|d| d == thr || joined(cx, index, d, thr));
+    let same = |a: NetId, b: NetId| cx.circuit.same_wire(a, b);
+    let dis_on_timing = dis.is_some_and(|d| same(d, thr) || joined(cx, index, d, thr));
     setup.mode = match trig {
-        Some(t) if t == thr && charged => TimerMode::Astable,
-        Some(t) if t != thr && dis_on_timing => TimerMode::Monostable,
+        Some(t) if same(t, thr) && charged => TimerMode::Astable,
+        Some(t) if !same(t, thr) && dis_on_timing => TimerMode::Monostable,
         _ => TimerMode::Unknown,
     };
 
