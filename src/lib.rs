@@ -17,3 +17,4 @@ pub mod report;
 pub mod rules;
 pub mod source;
 pub mod units;
+pub mod vocabulary;

@@ -2,9 +2,7 @@
 //! (ratings with provenance). Built from a [`FlatNetlist`] and the configuration; queried by the
 //! analyses and the rules.
 
-pub mod kind;
-
-pub use kind::{Kind, PinRole};
+pub use crate::vocabulary::{glob, kind, Kind, PinRole};
 
 use std::collections::BTreeMap;
 use std::sync::Arc;
@@ -133,9 +131,7 @@ impl Device {
 
 mod data;
 pub mod defaults;
-pub mod glob;
 pub mod graph;
-mod layouts;
 mod library;
 mod names;
 pub mod parts;

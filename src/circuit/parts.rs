@@ -15,66 +15,7 @@ use super::{glob, library, Kind};
 use crate::config::Config;
 use crate::netlist::{FlatElement, Model};
 
-/// Rating names with numeric values (SI base units), accepted as config keys and as instance
-/// or subcircuit parameters. Thresholds and limits are magnitudes (also for P-channel parts).
-pub const RATING_NAMES: &[&str] = &[
-    // loads
-    "rated_voltage",
-    "rated_current",
-    "stall_current",
-    "inductance",
-    "resistance",
-    // MOSFETs
-    "vgs_th_min",
-    "vgs_th_max",
-    "vgs_rated",
-    "vgs_max",
-    "vds_max",
-    "id_max",
-    "rds_on",
-    "pd_max",
-    "qg",
-    // BJTs
-    "vce_max",
-    "ic_max",
-    "hfe_min",
-    // diodes and TVS
-    "vrrm",
-    "if_avg",
-    "ifrm",
-    "ifsm",
-    "vf",
-    "vz",
-    "trr",
-    "vclamp",
-    // timers and logic outputs
-    "supply_min",
-    "supply_max",
-    "supply_abs_max",
-    "out_high_drop",
-    "out_current_max",
-    "discharge_current_rated",
-    "discharge_current_max",
-    "ladder_resistance",
-    "trigger_bias_current",
-    "threshold_bias_current",
-    "voh",
-    "vol",
-    // resistors, pots, capacitors
-    "power_rating",
-    "wiper_current_max",
-    "voltage_rating",
-    "capacitance",
-];
-
-/// Rating names with yes/no values, stored as 1.0 / 0.0.
-pub const FLAG_RATINGS: &[&str] = &["polarized", "logic_level"];
-
-/// True when `name` (any case) is a rating name, numeric or flag.
-pub fn is_rating_name(name: &str) -> bool {
-    let lower = name.to_ascii_lowercase();
-    RATING_NAMES.contains(&lower.as_str()) || FLAG_RATINGS.contains(&lower.as_str())
-}
+pub use crate::vocabulary::ratings::{is_rating_name, FLAG_RATINGS, RATING_NAMES};
 
 /// True when a subcircuit of this name is one device (its insides are a simulation model) and
 /// must not be flattened: a `[parts]` entry with a `kind` names it, or built-in recognition does.

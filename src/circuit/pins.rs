@@ -7,26 +7,10 @@
 //! numbers are a model's internal node numbers and say nothing); otherwise the part's roles are
 //! unknown until the config gives them, and its checks are skipped.
 
-use super::layouts::{layout_of_kind, normalize, Layout, ALL_LAYOUTS, OTHER_NAMES, TWO_TERMINAL};
 use super::{Kind, PinRole};
+use crate::vocabulary::layouts::{layout_of_kind, normalize, Layout, OTHER_NAMES, TWO_TERMINAL};
 
-/// The role names to suggest in messages (each kind accepts its own aliases too).
-pub const PRIMARY_ROLE_NAMES: [&str; 23] = [
-    "gnd", "trig", "out", "reset", "ctrl", "thr", "dis", "vcc", "d", "g", "s", "b", "c", "e",
-    "sub", "a", "k", "pos", "neg", "w", "ctrl+", "ctrl-", "other",
-];
-
-/// True when `name` is a pin role any kind accepts (for validating `pins = [...]`).
-pub fn is_role_name(name: &str) -> bool {
-    let name = normalize(name);
-    OTHER_NAMES.contains(&name.as_str())
-        || ALL_LAYOUTS.iter().any(|layout| {
-            layout
-                .order
-                .iter()
-                .any(|r| r.names.contains(&name.as_str()))
-        })
-}
+pub use crate::vocabulary::roles::{is_role_name, PRIMARY_ROLE_NAMES};
 
 /// Roles by node order for an element written with its own letter (`M1 d g s b`): extra nodes
 /// are `other`. F, H, B and W elements have only the output pair.

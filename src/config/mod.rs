@@ -9,8 +9,8 @@ mod schema;
 mod tree;
 mod value;
 
-use crate::circuit::Kind;
 use crate::diagnostic::Severity;
+use crate::vocabulary::Kind;
 use std::collections::BTreeMap;
 use std::path::{Path, PathBuf};
 

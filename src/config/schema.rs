@@ -4,8 +4,8 @@
 use super::tree::{line_column, Node};
 use super::value::parse_value;
 use super::{Config, ConfigError, PartConfig, RuleLevel, SupplyConfig};
-use crate::circuit::{glob, parts, pins, Kind};
 use crate::diagnostic::Severity;
+use crate::vocabulary::{glob, ratings, roles, Kind};
 use serde_spanned::Spanned;
 use std::ops::Range;
 use std::path::Path;
@@ -275,7 +275,7 @@ impl Reader<'_> {
             match lower.as_str() {
                 "kind" => part.kind = Some(self.kind(name, value, &here)?),
                 "pins" => part.pins = Some(self.pins(name, value, &here)?),
-                rating if parts::FLAG_RATINGS.contains(&rating) => {
+                rating if ratings::FLAG_RATINGS.contains(&rating) => {
                     let Node::Bool(flag) = value else {
                         return Err(self.error(
                             name.span(),
@@ -286,7 +286,7 @@ impl Reader<'_> {
                     part.ratings
                         .insert(lower.clone(), if *flag { 1.0 } else { 0.0 });
                 }
-                rating if parts::RATING_NAMES.contains(&rating) => {
+                rating if ratings::RATING_NAMES.contains(&rating) => {
                     let number = self.number(name, value, &here)?;
                     if number < 0.0 {
                         return Err(self.error(
@@ -302,8 +302,8 @@ impl Reader<'_> {
                 }
                 _ => {
                     let mut known = vec!["kind", "pins"];
-                    known.extend(parts::FLAG_RATINGS);
-                    known.extend(parts::RATING_NAMES);
+                    known.extend(ratings::FLAG_RATINGS);
+                    known.extend(ratings::RATING_NAMES);
                     return Err(self.unknown_key(name, written, &format!("{dotted}."), &known));
                 }
             }
@@ -370,13 +370,13 @@ impl Reader<'_> {
                     format!("pin roles are strings, not {}", item.type_name()),
                 ));
             };
-            if !pins::is_role_name(role) {
+            if !roles::is_role_name(role) {
                 return Err(self.error(
                     name.span(),
                     here,
                     format!(
                         "unknown pin role \"{role}\"; expected one of {}",
-                        pins::PRIMARY_ROLE_NAMES.join(", ")
+                        roles::PRIMARY_ROLE_NAMES.join(", ")
                     ),
                 ));
             }

@@ -1,16 +1,16 @@
 //! The role tables: each kind's default port order and the port names (and common aliases)
 //! that name each role.
 
-use super::{Kind, PinRole};
+use super::kind::{Kind, PinRole};
 
 /// One role of a kind, with the port names that mean it (upper-case, after [`normalize`]).
-pub(super) struct RoleNames {
+pub struct RoleNames {
     pub role: PinRole,
     pub names: &'static [&'static str],
 }
 
 /// How a kind's terminals are laid out.
-pub(super) struct Layout {
+pub struct Layout {
     /// The roles in their default port order, each with its names.
     pub order: &'static [RoleNames],
     /// Port counts that make sense by position alone.
@@ -158,7 +158,7 @@ static DIODE: Layout = Layout {
     words_by_position: false,
 };
 
-pub(super) static TWO_TERMINAL: Layout = Layout {
+pub static TWO_TERMINAL: Layout = Layout {
     order: &[
         RoleNames {
             role: PinRole::Pos,
@@ -244,7 +244,7 @@ static FOUR_TERMINAL: Layout = Layout {
     words_by_position: false,
 };
 
-pub(super) static ALL_LAYOUTS: [&Layout; 9] = [
+pub static ALL_LAYOUTS: [&Layout; 9] = [
     &TIMER,
     &MOS,
     &JFET,
@@ -257,17 +257,17 @@ pub(super) static ALL_LAYOUTS: [&Layout; 9] = [
 ];
 
 /// Names that mark a port as deliberately unused.
-pub(super) const OTHER_NAMES: [&str; 3] = ["OTHER", "NC", "UNUSED"];
+pub const OTHER_NAMES: [&str; 3] = ["OTHER", "NC", "UNUSED"];
 
 /// Upper-case, without separators and inversion marks (`~RESET`, `reset_n` → `RESET`, `RESETN`).
-pub(super) fn normalize(name: &str) -> String {
+pub fn normalize(name: &str) -> String {
     name.chars()
         .filter(|c| !matches!(c, '_' | '~' | '/' | '!' | '#' | '*' | '.' | ' '))
         .map(|c| c.to_ascii_uppercase())
         .collect()
 }
 
-pub(super) fn layout_of_kind(kind: Kind) -> Option<&'static Layout> {
+pub fn layout_of_kind(kind: Kind) -> Option<&'static Layout> {
     match kind {
         Kind::Timer555 | Kind::Timer555Cmos => Some(&TIMER),
         Kind::Nmos | Kind::Pmos => Some(&MOS),
