@@ -64,7 +64,7 @@ fn behavioural_resistors_connect_and_evaluate_where_constant() {
     assert!(close(value(&flat, "R1"), 24.0));
     assert!(close(value(&flat, "R2"), 13.0));
     assert!(close(value(&flat, "R3"), 3.0));
-    for name in ["R4", "R5", "R6"] {
+    for name in ["R4", "R5", "R6", "R7"] {
         assert_eq!(element(&flat, name).value, Some(Num::Varies), "{name}");
         assert_eq!(element(&flat, name).nodes.len(), 2, "{name}");
     }

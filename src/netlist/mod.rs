@@ -19,6 +19,7 @@ mod expr;
 pub mod flat;
 mod flatten;
 mod functions;
+mod include_path;
 mod lex;
 mod library;
 mod load;
