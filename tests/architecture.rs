@@ -114,9 +114,14 @@ fn rust_files(dir: &Path, out: &mut Vec<PathBuf>) {
 }
 
 /// The code of a file without its comments (line comments and doc comments), so prose that
-/// names a module is not taken for a dependency.
+/// names a module is not taken for a dependency, and without its unit tests (a `#[cfg(test)]`
+/// module at the end of the file may drive the whole pipeline).
 fn code_lines(text: &str) -> impl Iterator<Item = (usize, &str)> {
-    text.lines().enumerate().filter_map(|(i, line)| {
+    let end = text
+        .lines()
+        .position(|l| l.trim_start().starts_with("#[cfg(test)]"))
+        .unwrap_or(usize::MAX);
+    text.lines().enumerate().take(end).filter_map(|(i, line)| {
         let code = match line.find("//") {
             Some(at) => &line[..at],
             None => line,

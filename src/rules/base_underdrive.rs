@@ -31,7 +31,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     if cx.analysis.switches.is_empty() {
         return;
     }
-    let unreferenced = super::supply_unreferenced::switches_without_reference(cx);
+    let unreferenced = super::switch_util::reference::switches_without_reference(cx);
     for sw in &cx.analysis.switches {
         let bjt = kind(cx, sw.device).is_some_and(Kind::is_bjt);
         let referenced = unreferenced.binary_search(&sw.device).is_err();

@@ -1,7 +1,6 @@
 //! `gate-cannot-turn-off`: the off-state gate-source voltage is too close to the threshold.
 //! See `rules/gate-cannot-turn-off.md`.
 
-use super::shoot_through::conducts_with_partner;
 use super::switch_util::{
     drive_level, finding_at, in_conduction_sense, kind, label, load_device, name, rail, rated_or,
     SwitchIndex,
@@ -45,7 +44,7 @@ fn reported_as_shoot_through(
 ) -> bool {
     sw.bridge_partner
         .and_then(|p| index.get(p))
-        .is_some_and(|partner| conducts_with_partner(cx, sw, partner).is_some())
+        .is_some_and(|partner| super::switch_util::conducts_with_partner(cx, sw, partner).is_some())
 }
 
 fn finding(

@@ -36,7 +36,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     if cx.analysis.switches.is_empty() {
         return;
     }
-    let unreferenced = super::supply_unreferenced::switches_without_reference(cx);
+    let unreferenced = super::switch_util::reference::switches_without_reference(cx);
     for sw in &cx.analysis.switches {
         let Some(k) = kind(cx, sw.device).filter(|k| k.is_mos()) else {
             continue;

@@ -5,15 +5,15 @@
 //! switch on (error); two separate PULSE drives whose on-times overlap (error); and a shared
 //! drive that passes through the band where both conduct on every edge (warning).
 
+use super::switch_util::{conducts_with_partner, shared, threshold_min};
 use super::switch_util::{
-    element, finding_at, held_off, in_conduction_sense, kind, label, name, rail, rated_or,
-    SwitchIndex,
+    element, finding_at, held_off, in_conduction_sense, kind, label, name, rail, SwitchIndex,
 };
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
 use crate::analysis::SwitchFacts;
-use crate::circuit::{DeviceId, Kind, Rated};
+use crate::circuit::Kind;
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::Waveform;
 
@@ -53,54 +53,6 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             out.push(f);
         }
     }
-}
-
-/// The conduction threshold to use for "can it conduct": the lowest the part's threshold goes.
-pub fn threshold_min(cx: &RuleContext<'_>, id: DeviceId) -> Rated {
-    match kind(cx, id) {
-        Some(k) if k.is_bjt() => Rated {
-            value: 0.5,
-            source: "silicon base-emitter junction, from memory".into(),
-        },
-        _ => rated_or(
-            cx,
-            id,
-            "vgs_th_min",
-            2.0,
-            "default vgs_th_min (common practice)",
-        ),
-    }
-}
-
-/// For a leg whose gates share one drive: the switch that still conducts at the drive level
-/// that turns the other on, with its off-state drive in the conduction sense.
-pub fn conducts_with_partner(
-    cx: &RuleContext<'_>,
-    sw: &SwitchFacts,
-    partner: &SwitchFacts,
-) -> Option<(f64, String)> {
-    let same_polarity = kind(cx, sw.device).map(super::switch_util::polarity)
-        == kind(cx, partner.device).map(super::switch_util::polarity);
-    if same_polarity || !shared(sw, partner) {
-        return None;
-    }
-    let k = kind(cx, sw.device)?;
-    let off = in_conduction_sense(sw.vgs_off_v.as_ref()?, k);
-    (off.strongest >= threshold_min(cx, sw.device).value)
-        .then_some((off.strongest, off.strongest_state))
-}
-
-fn shared(a: &SwitchFacts, b: &SwitchFacts) -> bool {
-    let named = |x: &SwitchFacts, y: &SwitchFacts| {
-        x.driver
-            .as_ref()
-            .is_some_and(|d| d.shared_with.contains(&y.device))
-    };
-    let same_driver = match (&a.driver, &b.driver) {
-        (Some(x), Some(y)) => x.device == y.device && x.network.is_empty() == y.network.is_empty(),
-        _ => false,
-    };
-    named(a, b) || named(b, a) || same_driver
 }
 
 struct Leg<'a, 'b> {

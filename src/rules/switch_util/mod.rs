@@ -7,10 +7,13 @@
 
 mod branch;
 mod drive;
+mod leg;
 mod ratings;
+pub mod reference;
 
 pub use branch::*;
 pub use drive::*;
+pub use leg::*;
 pub use ratings::*;
 
 use super::eseries;
