@@ -185,7 +185,7 @@ fn transistor_diode_and_pot_roles() {
 }
 
 #[test]
-fn ports_that_do_not_fit_are_a_part_pins_warning() {
+fn ports_that_do_not_fit_are_a_part_pins_finding() {
     let cfg = config(
         r#"
 [elements."XPUMP"]
@@ -200,12 +200,18 @@ pins = ["pos", "neg"]
     assert_eq!(findings.len(), 2, "{findings:#?}");
     let timer = &findings[0];
     assert_eq!(timer.rule, "part-pins");
-    assert_eq!(timer.severity, kickback::diagnostic::Severity::Warning);
+    // The deck says too little: a note; the timer's roles stay unknown (nothing is guessed).
+    assert_eq!(timer.severity, kickback::diagnostic::Severity::Note);
+    assert_eq!(device(&circuit, "XCH1.X1").kind, Kind::Unknown);
     assert_eq!(timer.span, netlist.elements[1].span);
     assert_eq!(timer.element.as_deref(), Some("X1"));
     assert_eq!(timer.instance_path.as_deref(), Some("XCH1.X1"));
     assert_eq!(timer.instances.len(), 1);
-    assert!(timer.message.contains("3 ports"), "{}", timer.message);
+    assert!(
+        timer.message.contains("count does not fit"),
+        "{}",
+        timer.message
+    );
     assert_eq!(timer.labels.len(), 1, "the .subckt line is labelled");
     assert!(timer
         .help
@@ -217,6 +223,8 @@ pins = ["pos", "neg"]
         "{}",
         pump.message
     );
+    // A wrong `pins` list is the config's own mistake: a warning.
+    assert_eq!(pump.severity, kickback::diagnostic::Severity::Warning);
     assert_eq!(device(&circuit, "XPUMP").pins[2].role, PinRole::Other);
 }
 
