@@ -8,7 +8,7 @@
 
 use super::format_quantity;
 use crate::analysis::{
-    Analysis, Freewheel, FreewheelKind, LoadFacts, Range, Side, SupplyFacts, SwitchFacts,
+    Analysis, Freewheel, FreewheelKind, LoadFacts, Range, Side, Stage, SupplyFacts, SwitchFacts,
     TimerFacts, TimerMode,
 };
 use crate::circuit::{Circuit, DeviceId, Kind, Rated};
@@ -66,6 +66,10 @@ pub struct TimerJson {
 pub struct SwitchJson {
     pub element: String,
     pub kind: Kind,
+    /// What the stage was taken for (`switch`, `amplifier`, `unknown`) and why; the switch
+    /// rules judge switches only.
+    pub stage: Stage,
+    pub stage_reason: String,
     pub side: Side,
     pub load: Option<String>,
     pub driver: Option<String>,
@@ -171,6 +175,8 @@ pub fn output(analysis: &Analysis, netlist: &FlatNetlist, circuit: &Circuit) -> 
             .map(|s| SwitchJson {
                 element: n(s.device),
                 kind: s.kind,
+                stage: s.stage,
+                stage_reason: s.stage_reason.clone(),
                 side: s.side,
                 load: s
                     .load
@@ -405,6 +411,7 @@ impl Table<'_> {
             },
         };
         let _ = writeln!(out, "Switch {} ({}, {side})", self.name(s.device), s.kind);
+        self.row(out, "stage", s.stage.as_str(), &s.stage_reason);
         let load = s.load.and_then(|i| analysis.loads.get(i));
         let load_text = match load {
             Some(l) => format!("{} ({})", self.name(l.device), l.kind),
@@ -502,6 +509,8 @@ impl Table<'_> {
             FreewheelKind::ToRail => "switched node to rail",
             FreewheelKind::Clamp => "clamp across the switch",
             FreewheelKind::OppositeBodyDiode => "body diode of the opposite switch",
+            FreewheelKind::ThroughCapacitor => "through a capacitor (converter)",
+            FreewheelKind::CoupledWinding => "coupled winding (transformer)",
         };
         format!("{} {how}", self.name(f.device))
     }

@@ -32,6 +32,7 @@ pub mod pot_wiper_overcurrent;
 pub mod pwm_audible;
 pub mod resistor_overpower;
 pub mod shoot_through;
+pub mod stage_unknown;
 pub mod supply_out_of_range;
 pub mod supply_shorted;
 pub mod supply_unreferenced;
@@ -315,6 +316,12 @@ pub static REGISTRY: &[RuleInfo] = &[
         Warning,
         "An IC has no capacitor across its supply pins",
         Some(decoupling_missing::check)
+    ),
+    rule!(
+        "stage-unknown",
+        Note,
+        "A transistor runs an inductive load but its stage could not be told",
+        Some(stage_unknown::check)
     ),
     rule!(
         "pwm-audible",

@@ -5,7 +5,7 @@
 #![allow(dead_code)]
 
 use kickback::analysis::{
-    Analysis, DriverFacts, Freewheel, FreewheelKind, LoadFacts, Range, Side, SupplyFacts,
+    Analysis, DriverFacts, Freewheel, FreewheelKind, LoadFacts, Range, Side, Stage, SupplyFacts,
     SwitchFacts, TimerFacts, TimerMode,
 };
 use kickback::circuit::{
@@ -266,6 +266,8 @@ pub fn switch(device: DeviceId, kind: Kind, side: Side) -> SwitchFacts {
     SwitchFacts {
         device,
         kind,
+        stage: Stage::Switch,
+        stage_reason: "driven by a test pulse".to_string(),
         side,
         switched_net: None,
         anchor_net: None,
