@@ -173,6 +173,33 @@ pub enum Side {
     Bridge,
 }
 
+/// What a transistor's stage was taken for (see `analysis::switching::stage`). The switch
+/// rules judge switches only: an amplifier sits in its active region on purpose, and a stage
+/// kickback cannot place gets at most a note saying what it needs.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
+#[serde(rename_all = "lowercase")]
+pub enum Stage {
+    /// Driven between two levels by a pulse source, a timer, a logic output or a pre-driver
+    /// that follows one.
+    Switch,
+    /// Biased into its active region: a divider or DC level at its base or gate, feedback from
+    /// its collector or drain, emitter or source degeneration, a sine or AC drive, an
+    /// amplifier's output with feedback.
+    Amplifier,
+    /// Neither could be told from the circuit.
+    Unknown,
+}
+
+impl Stage {
+    pub fn as_str(self) -> &'static str {
+        match self {
+            Stage::Switch => "switch",
+            Stage::Amplifier => "amplifier",
+            Stage::Unknown => "unknown",
+        }
+    }
+}
+
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum FreewheelKind {
@@ -187,6 +214,15 @@ pub enum FreewheelKind {
     Clamp,
     /// The body diode of the opposite switch of a bridge leg (never the switch's own).
     OppositeBodyDiode,
+    /// An AC path: the turn-off current goes on through a capacitor, either a diode from the
+    /// switched node into a capacitor-held output (boost) or a coupling capacitor into a
+    /// diode or winding (Ćuk, SEPIC). The device is the diode, or the capacitor when no diode
+    /// is in the path.
+    ThroughCapacitor,
+    /// A winding magnetically coupled (`K`) to the switched one, with a load or rectifier on
+    /// it, takes the stored energy (flyback or forward transformer). The device is the other
+    /// winding.
+    CoupledWinding,
 }
 
 /// A freewheeling path of a switched branch (see `analysis::switching::freewheel`).
@@ -258,6 +294,10 @@ pub struct DriverFacts {
 pub struct SwitchFacts {
     pub device: DeviceId,
     pub kind: Kind,
+    /// What the stage was taken for, and why (`driven between two levels by VG, a pulse
+    /// source`; `base biased from the divider RB1/RB2`).
+    pub stage: Stage,
+    pub stage_reason: String,
     pub side: Side,
     /// The net the switch connects to its rail (drain of a low side, source of an N-channel
     /// high side, the shared node of a bridge leg); `None` when both terminals sit on rails.

@@ -165,13 +165,10 @@ impl<'a> Context<'a> {
             .get(self.circuit.devices.get(device)?.element)?;
         let spec = element.source.as_ref()?;
         match spec.levels() {
+            // "High" is the higher of the two levels, whatever the order the PULSE lists them
+            // in: `PULSE(12 0 …)` is high at 12 V.
             Some((lo, hi)) if is_switching(&spec.wave) => {
-                let (v1, v2) = match spec.wave {
-                    Waveform::Pulse { v1, v2, .. } => (v1, v2),
-                    _ => (lo, hi),
-                };
-                // "High" means the pulse's active level (v2), which is what its duty describes.
-                Some(if state.is_high(device) { v2 } else { v1 })
+                Some(if state.is_high(device) { hi } else { lo })
             }
             _ => spec.dc.or_else(|| spec.levels().map(|l| l.0)),
         }

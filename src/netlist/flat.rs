@@ -93,6 +93,21 @@ impl SourceSpec {
             _ => None,
         }
     }
+
+    /// Fraction of a PULSE period spent at the higher of its two levels: [`Self::duty`] for
+    /// `PULSE(0 5 …)`, its complement for `PULSE(5 0 …)`, whose width is spent low.
+    pub fn duty_high(&self) -> Option<f64> {
+        let duty = self.duty()?;
+        match &self.wave {
+            Waveform::Pulse { v1, v2, .. } if v2 < v1 => Some(1.0 - duty),
+            _ => Some(duty),
+        }
+    }
+
+    /// True for a PULSE whose `v2` (the level its width describes) is the lower one.
+    pub fn pulses_low(&self) -> bool {
+        matches!(&self.wave, Waveform::Pulse { v1, v2, .. } if v2 < v1)
+    }
 }
 
 /// A `.model` card, with its parameters evaluated. Keys are lower-case.

@@ -7,7 +7,7 @@
 //! Every list is in netlist order.
 
 pub use super::facts_table::{render_human, render_human_with};
-use crate::analysis::{Analysis, EffectiveMethod, Range, Side, SupplyFacts, TimerMode};
+use crate::analysis::{Analysis, EffectiveMethod, Range, Side, Stage, SupplyFacts, TimerMode};
 use crate::circuit::{Circuit, DeviceId, Kind};
 use crate::netlist::FlatNetlist;
 use serde::Serialize;
@@ -62,6 +62,10 @@ pub struct TimerJson {
 pub struct SwitchJson {
     pub element: String,
     pub kind: Kind,
+    /// What the stage was taken for (`switch`, `amplifier`, `unknown`) and why; the switch
+    /// rules judge switches only.
+    pub stage: Stage,
+    pub stage_reason: String,
     pub side: Side,
     pub load: Option<String>,
     pub driver: Option<String>,
@@ -180,6 +184,8 @@ pub fn output(analysis: &Analysis, netlist: &FlatNetlist, circuit: &Circuit) -> 
             .map(|s| SwitchJson {
                 element: n(s.device),
                 kind: s.kind,
+                stage: s.stage,
+                stage_reason: s.stage_reason.clone(),
                 side: s.side,
                 load: s
                     .load

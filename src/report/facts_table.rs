@@ -206,6 +206,7 @@ impl Table<'_> {
             },
         };
         let _ = writeln!(out, "Switch {} ({}, {side})", self.name(s.device), s.kind);
+        self.row(out, "stage", s.stage.as_str(), &s.stage_reason);
         let load = s.load.and_then(|i| analysis.loads.get(i));
         let load_text = match load {
             Some(l) => format!("{} ({})", self.name(l.device), l.kind),
@@ -338,6 +339,8 @@ impl Table<'_> {
             FreewheelKind::ToRail => "switched node to rail",
             FreewheelKind::Clamp => "clamp across the switch",
             FreewheelKind::OppositeBodyDiode => "body diode of the opposite switch",
+            FreewheelKind::ThroughCapacitor => "through a capacitor (converter)",
+            FreewheelKind::CoupledWinding => "coupled winding (transformer)",
         };
         format!("{} {how}", self.name(f.device))
     }

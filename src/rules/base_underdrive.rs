@@ -3,7 +3,7 @@
 
 use super::eseries::{ohms, round_down, E12};
 use super::switch_util::{
-    drive_level, finding_at, held_off, is_switched, kind, label, load_device, load_of, name, rated,
+    drive_level, finding_at, held_off, is_switch, kind, label, load_device, load_of, name, rated,
     saturated_current, shorted_through, weakest_magnitude,
 };
 use super::units::format_si;
@@ -22,6 +22,9 @@ pub const RULE: Rule = Rule {
     page: include_str!("../../rules/base-underdrive.md"),
     check: Some(check),
 };
+/// Largest current gain any silicon BJT plausibly has (from memory: small-signal parts stay
+/// well under 1000; super-β parts are the rare exception).
+const MAX_PLAUSIBLE_BETA: f64 = 1000.0;
 /// Forced β for a saturated switch (common practice).
 const FORCED_BETA: f64 = 10.0;
 /// V_BE of a silicon switch driven hard (from memory).
@@ -35,7 +38,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     for sw in &cx.analysis.switches {
         let bjt = kind(cx, sw.device).is_some_and(Kind::is_bjt);
         let referenced = unreferenced.binary_search(&sw.device).is_err();
-        if bjt && !held_off(cx, sw) && is_switched(cx, sw) && referenced {
+        if bjt && !held_off(cx, sw) && is_switch(sw) && referenced {
             out.extend(finding(cx, sw));
         }
     }
@@ -89,6 +92,12 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
     let vce = sw.vds_on_v.as_ref().map(|r| r.max.abs());
     let power = sw.dissipation_w.as_ref().map(|r| r.max);
     let active = sw.linear_region || vce.is_some_and(|v| v > 2.0 * SATURATED_BJT_DROP_V);
+    // A saturated V_CE with a base current no transistor's gain could turn into the load's
+    // current: the numbers do not describe one state, and a finding built on them would
+    // contradict itself.
+    if !active && ib * MAX_PLAUSIBLE_BETA < ic {
+        return None;
+    }
     if active {
         message.push_str(": it runs in its active region");
     } else {

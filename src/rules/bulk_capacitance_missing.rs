@@ -3,8 +3,8 @@
 //! 10 %. See `rules/bulk-capacitance-missing.md`.
 
 use super::switch_util::{
-    cap_e6, finding_at, is_ground, is_pwm, label, load_device, load_of, name, next_rating, rail,
-    supply_facts, NetIndex, CAP_VOLTAGES,
+    cap_e6, finding_at, is_ground, is_pwm, is_switch, label, load_device, load_of, name,
+    next_rating, rail, supply_facts, NetIndex, CAP_VOLTAGES,
 };
 use super::units::{format_si, percent};
 use super::Rule;
@@ -31,7 +31,7 @@ const PUMP_LIMIT: f64 = 0.1;
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
     let mut rails: Vec<(NetId, DeviceId, Vec<&SwitchFacts>)> = Vec::new();
-    for sw in &cx.analysis.switches {
+    for sw in cx.analysis.switches.iter().filter(|s| is_switch(s)) {
         let wants_bulk = (sw.inductive && is_pwm(sw)) || sw.side == Side::Bridge;
         let Some(supply) = sw.rail_supply.filter(|_| wants_bulk) else {
             continue;

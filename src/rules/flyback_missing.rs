@@ -2,8 +2,8 @@
 //! `rules/flyback-missing.md`.
 
 use super::switch_util::{
-    branch_ends, diode_hint, finding_at, is_pwm, kind, label, load_device, load_of, main_terminals,
-    name, net_name, rail, saturated_current, NetIndex,
+    branch_ends, diode_hint, finding_at, is_pwm, is_switch, kind, label, load_device, load_of,
+    main_terminals, name, net_name, rail, saturated_current, NetIndex,
 };
 use super::units::format_si;
 use super::Rule;
@@ -32,7 +32,7 @@ const HARMLESS_J: f64 = 1e-9;
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
     let mut reported: Vec<DeviceId> = Vec::new();
-    for sw in &cx.analysis.switches {
+    for sw in cx.analysis.switches.iter().filter(|s| is_switch(s)) {
         if !sw.inductive || !sw.freewheel.is_empty() {
             continue;
         }

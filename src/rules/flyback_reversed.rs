@@ -1,7 +1,9 @@
 //! `flyback-reversed`: a freewheel diode fitted backwards conducts from the rail in the on state
 //! and shorts the supply through the switch. See `rules/flyback-reversed.md`.
 
-use super::switch_util::{branch_ends, finding_at, label, load_device, name, net_name, rail};
+use super::switch_util::{
+    branch_ends, finding_at, is_switch, label, load_device, name, net_name, rail,
+};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
@@ -21,7 +23,7 @@ pub const RULE: Rule = Rule {
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let mut reported: Vec<DeviceId> = Vec::new();
-    for sw in &cx.analysis.switches {
+    for sw in cx.analysis.switches.iter().filter(|s| is_switch(s)) {
         for fw in sw.freewheel.iter().filter(|f| f.reversed) {
             if reported.contains(&fw.device) {
                 continue;

@@ -2,7 +2,8 @@
 //! fit its load. See `rules/flyback-underrated.md`.
 
 use super::switch_util::{
-    diode_hint, duty_text, finding_at, is_pwm, kind, label, load_device, load_of, name, rail, rated,
+    diode_hint, duty_text, finding_at, is_pwm, is_switch, kind, label, load_device, load_of, name,
+    rail, rated,
 };
 use super::units::{format_si, percent};
 use super::Rule;
@@ -29,7 +30,7 @@ const SLOW_DIODE_MAX_HZ: f64 = 1e3;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let mut seen: Vec<DeviceId> = Vec::new();
-    for sw in &cx.analysis.switches {
+    for sw in cx.analysis.switches.iter().filter(|s| is_switch(s)) {
         for fw in &sw.freewheel {
             let placed = matches!(fw.kind, FreewheelKind::AcrossLoad | FreewheelKind::ToRail);
             let plain = matches!(kind(cx, fw.device), Some(Kind::Diode | Kind::Schottky));

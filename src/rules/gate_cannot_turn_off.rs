@@ -2,8 +2,8 @@
 //! See `rules/gate-cannot-turn-off.md`.
 
 use super::switch_util::{
-    drive_level, finding_at, in_conduction_sense, kind, label, load_device, name, rail, rated_or,
-    SwitchIndex,
+    drive_level, finding_at, in_conduction_sense, is_switch, kind, label, load_device, name, rail,
+    rated_or, SwitchIndex,
 };
 use super::units::format_si;
 use super::Rule;
@@ -29,7 +29,7 @@ const UNSTATED_TH_MIN_HIGH_V: f64 = 3.0;
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = SwitchIndex::new(cx);
     for sw in &cx.analysis.switches {
-        let Some(k) = kind(cx, sw.device).filter(|k| k.is_mos()) else {
+        let Some(k) = kind(cx, sw.device).filter(|k| k.is_mos() && is_switch(sw)) else {
             continue;
         };
         out.extend(finding(cx, &index, sw, k));

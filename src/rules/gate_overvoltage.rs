@@ -2,7 +2,7 @@
 //! `rules/gate-overvoltage.md`.
 
 use super::eseries::{ohms, round_down, round_up, E12};
-use super::switch_util::{finding_at, kind, label, name, polarity, rated_or};
+use super::switch_util::{finding_at, is_switch, kind, label, name, polarity, rated_or};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
@@ -27,7 +27,7 @@ const ZENERS: [f64; 13] = [
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     for sw in &cx.analysis.switches {
-        if kind(cx, sw.device).is_some_and(|k| k.is_mos()) {
+        if is_switch(sw) && kind(cx, sw.device).is_some_and(|k| k.is_mos()) {
             out.extend(finding(cx, sw));
         }
     }

@@ -7,7 +7,7 @@
 //! its on-resistance low.
 
 use super::switch_util::{
-    drive_level, finding_at, held_off, in_conduction_sense, is_switched, kind, label, load_device,
+    drive_level, finding_at, held_off, in_conduction_sense, is_switch, kind, label, load_device,
     load_of, name, rated_or, saturated_current, shorted_through,
 };
 use super::units::format_si;
@@ -41,10 +41,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         let Some(k) = kind(cx, sw.device).filter(|k| k.is_mos()) else {
             continue;
         };
-        if held_off(cx, sw)
-            || !is_switched(cx, sw)
-            || unreferenced.binary_search(&sw.device).is_ok()
-        {
+        if held_off(cx, sw) || !is_switch(sw) || unreferenced.binary_search(&sw.device).is_ok() {
             continue;
         }
         let boosted = sw.driver.as_ref().is_some_and(|d| d.boosted);

@@ -33,6 +33,7 @@ pub mod pwm_audible;
 pub mod pwm_frequency_unsuitable;
 pub mod resistor_overpower;
 pub mod shoot_through;
+pub mod stage_unknown;
 pub mod supply_out_of_range;
 pub mod supply_shorted;
 pub mod supply_unreferenced;
@@ -124,6 +125,7 @@ pub static REGISTRY: &[&Rule] = &[
     &front_end::SOLVE_FAILED,
     &value_suspicious::RULE,
     &pwm_frequency_unsuitable::RULE,
+    &stage_unknown::RULE,
 ];
 
 pub fn find(id: &str) -> Option<&'static Rule> {

@@ -7,7 +7,8 @@
 
 use super::switch_util::{conducts_with_partner, shared, threshold_min};
 use super::switch_util::{
-    element, finding_at, held_off, in_conduction_sense, kind, label, name, rail, SwitchIndex,
+    element, finding_at, held_off, in_conduction_sense, is_switch, kind, label, name, rail,
+    SwitchIndex,
 };
 use super::units::format_si;
 use super::Rule;
@@ -33,7 +34,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         let Some(partner) = sw.bridge_partner.and_then(|p| index.get(p)) else {
             continue;
         };
-        if held_off(cx, sw) || held_off(cx, partner) {
+        if held_off(cx, sw) || held_off(cx, partner) || !is_switch(sw) || !is_switch(partner) {
             continue;
         }
         // Each leg once.
@@ -286,7 +287,7 @@ struct Window {
 fn on_window(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Window> {
     let driver = sw.driver.as_ref()?;
     let control = driver.control.unwrap_or(driver.device);
-    // The analysis solves which level turns the switch on ("high" is the PULSE's v2 level);
+    // The analysis solves which level turns the switch on ("high" is the higher level);
     // without it, only a passive gate network keeps the PULSE's sense (an inverting stage
     // flips it).
     let solved = driver.on_when_high;
@@ -323,8 +324,7 @@ fn on_window(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Window> {
     let start = delay + rise / 2.0;
     let end = delay + rise + width + fall / 2.0;
     let on_in_v2_window = match (solved, physical) {
-        (Some(v2_on), _) => v2_on,
-        (None, Some(on_at_high)) => on_at_high == (v2 > v1),
+        (Some(on_at_high), _) | (None, Some(on_at_high)) => on_at_high == (v2 >= v1),
         (None, None) => return None,
     };
     let (start, end) = if on_in_v2_window {

@@ -5,8 +5,8 @@
 //! hot die (common practice), or `V_CE·I_C·D` for a BJT, at the worst state and duty.
 
 use super::switch_util::{
-    duty_text, finding_at, in_conduction_sense, kind, label, load_device, name, rated_or,
-    shorted_through,
+    duty_text, finding_at, in_conduction_sense, is_switch, kind, label, load_device, name,
+    rated_or, shorted_through,
 };
 use super::units::format_si;
 use super::Rule;
@@ -27,7 +27,7 @@ pub const RULE: Rule = Rule {
 const HOT_DIE: f64 = 1.5;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
-    for sw in &cx.analysis.switches {
+    for sw in cx.analysis.switches.iter().filter(|s| is_switch(s)) {
         out.extend(finding(cx, sw));
     }
 }

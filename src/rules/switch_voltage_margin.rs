@@ -2,7 +2,9 @@
 //! it sees at turn-off (the rail plus whatever clamps the winding). See
 //! `rules/switch-voltage-margin.md`.
 
-use super::switch_util::{finding_at, kind, label, name, next_rating, rail, rated, VDS_CLASSES};
+use super::switch_util::{
+    finding_at, is_switch, kind, label, name, next_rating, rail, rated, VDS_CLASSES,
+};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
@@ -26,7 +28,7 @@ const DERATING: f64 = 1.25;
 const DIODE_DROP_V: f64 = 1.0;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
-    for sw in &cx.analysis.switches {
+    for sw in cx.analysis.switches.iter().filter(|s| is_switch(s)) {
         out.extend(finding(cx, sw));
     }
 }
@@ -69,6 +71,9 @@ fn stress(cx: &RuleContext<'_>, sw: &SwitchFacts, rail_v: f64) -> Option<Stress>
                 across_switch: false,
                 clamp_rating: None,
             },
+            // The switch then sees the converter's output or the reflected secondary voltage,
+            // which a DC solve does not give: no margin is judged.
+            FreewheelKind::ThroughCapacitor | FreewheelKind::CoupledWinding => return None,
             FreewheelKind::AcrossLoad | FreewheelKind::ToRail => {
                 let clamp = matches!(k, Kind::Zener | Kind::Tvs);
                 let r = if clamp {

@@ -6,7 +6,7 @@
 
 use kickback::analysis::{
     Analysis, DriverFacts, EffectiveMethod, Freewheel, FreewheelKind, LoadFacts, Range, Side,
-    SupplyFacts, SwitchFacts, TimerFacts, TimerMode,
+    Stage, SupplyFacts, SwitchFacts, TimerFacts, TimerMode,
 };
 use kickback::circuit::{
     Circuit, Device, DeviceId, Kind, Net, NetId, PartData, Pin, PinRole, Rated,
@@ -266,6 +266,8 @@ pub fn switch(device: DeviceId, kind: Kind, side: Side) -> SwitchFacts {
     SwitchFacts {
         device,
         kind,
+        stage: Stage::Switch,
+        stage_reason: "driven by a test pulse".to_string(),
         side,
         switched_net: None,
         anchor_net: None,

@@ -249,7 +249,10 @@ pub fn numbers(
         out.vgs_on_v = range_over(solves, &states.on, &estimate);
     }
     if !is_mos {
-        out.base_current_a = range_over(solves, &states.on, &|_, s| {
+        // Read in the same states as V_CE and the current: an on state in which something
+        // else (a second input, the other leg) holds the transistor off has no base current
+        // and no collector current, and mixing it with another state's V_CE contradicts.
+        out.base_current_a = range_over(solves, &states.conducting, &|_, s| {
             let main = s.elements(device)?.main?;
             Some(sign * s.op.control_current(main)?)
         });
@@ -332,7 +335,7 @@ pub fn triode_resistance(k: f64, vt: f64, vgs: f64) -> Option<f64> {
     (k > 0.0 && overdrive > 0.0).then(|| 1.0 / (k * overdrive))
 }
 
-/// Duty (fraction of the period at the `high` level) and frequency of a switching input.
+/// Duty (fraction of the period at the higher level) and frequency of a switching input.
 pub fn input_timing(
     cx: &Context<'_>,
     timers: &super::Timers<'_>,
@@ -348,7 +351,7 @@ pub fn input_timing(
             .and_then(|e| e.source.as_ref());
         let from = format!("the PULSE of {name}");
         let duty = spec
-            .and_then(|s| s.duty())
+            .and_then(|s| s.duty_high())
             .map(|d| Range::point(d, from.clone()));
         let freq = spec
             .and_then(|s| s.frequency())

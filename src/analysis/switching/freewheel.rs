@@ -5,6 +5,9 @@
 //! A plain diode across the switch itself is parallel to its own body diode and carries no
 //! load current at turn-off, so it is not a freewheel path.
 //!
+//! When none of those exists, paths through capacitors and coupled windings (converters and
+//! transformers) are looked for: see [`ac_paths`].
+//!
 //! Whether each is fitted the right way round is decided later from the solved on state
 //! (see [`super::drive`]).
 
@@ -12,7 +15,7 @@ use super::drive::{with_duty, OnOff};
 use super::nets::{self, NetMap};
 use super::solves::ComponentSolves;
 use super::topology::SwitchTopology;
-use crate::analysis::facts::{Freewheel, FreewheelKind, Range};
+use crate::analysis::facts::{Freewheel, FreewheelKind, Range, Side};
 use crate::analysis::states::Context;
 use crate::circuit::{DeviceId, Kind, NetId, PinRole};
 
@@ -97,6 +100,9 @@ pub fn candidates(cx: &Context<'_>, nets: &NetMap, t: &SwitchTopology) -> Vec<Ca
         }
     }
     out.sort_by_key(|c| (order(c.kind), c.device));
+    if out.is_empty() {
+        out.extend(ac_paths(cx, nets, t, switched));
+    }
     if let Some(partner) = t.partner {
         if cx
             .circuit
@@ -119,7 +125,138 @@ fn order(kind: FreewheelKind) -> u8 {
         FreewheelKind::ToRail => 1,
         FreewheelKind::Clamp => 2,
         FreewheelKind::OppositeBodyDiode => 3,
+        FreewheelKind::ThroughCapacitor => 4,
+        FreewheelKind::CoupledWinding => 5,
     }
+}
+
+/// Paths a DC walk cannot see: at turn-off the winding's current is a fast edge, and a
+/// capacitor conducts it as well as a wire; a coupled winding takes the stored energy
+/// magnetically.
+/// - a diode from the switched node into a net a capacitor holds against a rail or the branch
+///   (a boost converter's rectifier and output capacitor);
+/// - a capacitor from the switched node to a net with a diode, or a winding or load, to a
+///   rail or the branch (a Ćuk or SEPIC coupling capacitor);
+/// - a winding of the branch that a `K` element couples with another winding carrying a load,
+///   a diode or a capacitor (a flyback or forward transformer).
+fn ac_paths(
+    cx: &Context<'_>,
+    nets: &NetMap,
+    t: &SwitchTopology,
+    switched: NetId,
+) -> Vec<Candidate> {
+    let mut out = Vec::new();
+    let anchor = t.anchor.map(|a| a.net);
+    let returns =
+        |net: NetId| -> bool { t.branch.nets.contains(&net) || nets::rail(cx, net).is_some() };
+    // At turn-off a low side's winding pushes its current out of the switched node and a high
+    // side's pulls it in: a diode in the path must conduct that way, or it is no path at all
+    // (DC solves of a converter take its winding for a short and cannot tell).
+    let conducts_on = |diode: DeviceId, from: NetId| -> bool {
+        let Some(d) = cx.circuit.devices.get(diode) else {
+            return false;
+        };
+        match t.side {
+            Side::Low => d.pin(PinRole::Anode) == Some(from),
+            Side::High => d.pin(PinRole::Cathode) == Some(from),
+            Side::Bridge => true,
+        }
+    };
+    for &(device, _) in nets.on(switched) {
+        let Some(d) = cx.circuit.devices.get(device) else {
+            continue;
+        };
+        let Some(far) = nets::other_end(cx, device, switched) else {
+            continue;
+        };
+        if far == switched || returns(far) {
+            continue;
+        }
+        let found = if d.kind.is_diode_like() {
+            part_to(cx, nets, far, device, &|k| k == Kind::Capacitor, &returns)
+                .filter(|_| conducts_on(device, switched))
+                .map(|_| device)
+        } else if d.kind == Kind::Capacitor {
+            part_to(cx, nets, far, device, &|k| k.is_diode_like(), &returns)
+                .filter(|&diode| conducts_on(diode, far))
+                .or_else(|| {
+                    part_to(
+                        cx,
+                        nets,
+                        far,
+                        device,
+                        &|k| k == Kind::Inductor || k.is_load(),
+                        &|n| Some(n) != anchor && returns(n),
+                    )
+                    .map(|_| device)
+                })
+        } else {
+            None
+        };
+        if let Some(found) = found {
+            if !out.iter().any(|c: &Candidate| c.device == found) {
+                out.push(Candidate {
+                    device: found,
+                    kind: FreewheelKind::ThroughCapacitor,
+                });
+            }
+        }
+    }
+    for &winding in &t.branch.devices {
+        for &other in nets.coupled_with(winding) {
+            if t.branch.devices.contains(&other) || !carries_energy(cx, nets, other) {
+                continue;
+            }
+            if !out.iter().any(|c: &Candidate| c.device == other) {
+                out.push(Candidate {
+                    device: other,
+                    kind: FreewheelKind::CoupledWinding,
+                });
+            }
+        }
+    }
+    out
+}
+
+/// A part of the kind `want` on `net` (not `except`) whose far end `ok` takes.
+fn part_to(
+    cx: &Context<'_>,
+    nets: &NetMap,
+    net: NetId,
+    except: DeviceId,
+    want: &dyn Fn(Kind) -> bool,
+    ok: &dyn Fn(NetId) -> bool,
+) -> Option<DeviceId> {
+    nets.on(net).iter().find_map(|&(d, _)| {
+        let kind = cx.circuit.devices.get(d)?.kind;
+        if d == except || !want(kind) {
+            return None;
+        }
+        let far = nets::other_end(cx, d, net)?;
+        (far != net && ok(far)).then_some(d)
+    })
+}
+
+/// A winding with something on it that takes energy: a load, a resistor, a diode or a
+/// capacitor on either of its nets, other than the winding itself.
+fn carries_energy(cx: &Context<'_>, nets: &NetMap, winding: DeviceId) -> bool {
+    let Some((a, b)) = nets::two_pins(cx, winding) else {
+        return false;
+    };
+    if a == b {
+        return false;
+    }
+    [a, b].iter().any(|&n| {
+        nets::rail(cx, n).is_none()
+            && nets.on(n).iter().any(|&(d, _)| {
+                d != winding
+                    && cx.circuit.devices.get(d).is_some_and(|x| {
+                        x.kind.is_diode_like()
+                            || x.kind.is_load()
+                            || matches!(x.kind, Kind::Resistor | Kind::Capacitor)
+                    })
+            })
+    })
 }
 
 /// The reverse of [`series_partner_end`]: `partner` (a resistor or diode on `net`) leads to a
@@ -214,7 +351,10 @@ pub fn orient(
                     off_current = forward(&states.off).filter(|&i| i > REVERSED_CURRENT_A);
                     off_current.is_some()
                 }
-                FreewheelKind::OppositeBodyDiode => false,
+                // Oriented by the topology when found (see `ac_paths`).
+                FreewheelKind::OppositeBodyDiode
+                | FreewheelKind::ThroughCapacitor
+                | FreewheelKind::CoupledWinding => false,
             };
             let carries = !reversed;
             let peak = load_current.filter(|_| carries).map(|r| r.max.abs());

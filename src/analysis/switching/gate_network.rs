@@ -1,7 +1,10 @@
 //! What drives a switch's gate or base: a bounded walk back from the control pin through
-//! resistors, diodes and ferrites to a pulse source, a timer output or a logic output; failing
-//! that, another transistor whose drain or collector pulls the gate (a pre-driver), whose own
-//! drive is then followed once more. Also whether a bootstrap lifts the drive above the rail.
+//! resistors, diodes and ferrites to a pulse source, a timer output, a logic output or the
+//! output of a controlled source (E, F, G, H, B: an amplifier or a behavioural driver, whose
+//! output is whatever its input makes it); failing that, another transistor whose drain or
+//! collector pulls the gate (a pre-driver). A pre-driver's or a controlled source's own input
+//! is then followed once more to the switching input behind it. Also whether a bootstrap
+//! lifts the drive above the rail.
 
 use super::nets::{self, NetMap};
 use super::topology::SwitchTopology;
@@ -81,22 +84,49 @@ fn control_of(
     if stages == 0 {
         return None;
     }
+    if is_controlled_source(cx, driver) {
+        // A linear controlled source switches when its input does: follow its control pins
+        // (a behavioural `B` source has none, and its levels stay unknown).
+        let d = cx.circuit.devices.get(driver)?;
+        return [PinRole::CtrlPos, PinRole::CtrlNeg]
+            .iter()
+            .filter_map(|&role| d.pin(role))
+            .filter(|&net| nets::rail(cx, net).is_none())
+            .find_map(|net| {
+                let (next, _) = walk_back(cx, nets, net, driver);
+                control_of(cx, nets, next?, stages - 1)
+            });
+    }
     let pin = control_pin(cx, driver)?;
     let (next, _) = walk_back(cx, nets, pin, driver);
     control_of(cx, nets, next?, stages - 1)
 }
 
-/// A driver on `net`: a pulse source holding it, a timer's or logic output's `out` pin, or a
-/// pulse source floating between it and another net.
-fn driver_on(cx: &Context<'_>, nets: &NetMap, net: NetId) -> Option<DeviceId> {
+/// E, F, G, H and B elements: their output is set by an expression or another part's
+/// voltage or current.
+pub fn is_controlled_source(cx: &Context<'_>, device: DeviceId) -> bool {
+    cx.circuit
+        .devices
+        .get(device)
+        .is_some_and(|d| d.kind == Kind::ControlledSource)
+}
+
+/// A driver on `net` other than `except` (the part whose input is being traced): a pulse
+/// source holding it, a timer's or logic output's `out` pin, a pulse source floating between
+/// it and another net, or a controlled source's output.
+fn driver_on(cx: &Context<'_>, nets: &NetMap, net: NetId, except: DeviceId) -> Option<DeviceId> {
     if let Some(src) = nets::pulse_source_on(cx, net) {
         return Some(src);
     }
     nets.on(net).iter().find_map(|&(d, role)| {
+        if d == except {
+            return None;
+        }
         let kind = cx.circuit.devices.get(d)?.kind;
         let drives = match kind {
             k if k.is_timer() || k == Kind::LogicOutput => role == PinRole::Out,
             Kind::VoltageSource => cx.is_pulse_source(d),
+            Kind::ControlledSource => matches!(role, PinRole::Pos | PinRole::Neg),
             _ => false,
         };
         drives.then_some(d)
@@ -111,7 +141,9 @@ fn pre_driver_on(nets: &NetMap, net: NetId, except: DeviceId) -> Option<DeviceId
 }
 
 /// Breadth-first from the control pin through resistors, diodes and inductors (not across
-/// rails) to the nearest driver; the nearest pre-driver when there is none.
+/// rails) to the nearest driver; the nearest pre-driver when there is none. The nearest wins:
+/// a controlled source on the gate's own net drives it, whatever pulse source lies further on
+/// through a feedback or bias resistor.
 pub fn walk_back(
     cx: &Context<'_>,
     nets: &NetMap,
@@ -135,7 +167,7 @@ pub fn walk_back(
         let Some(&(net, _, _)) = seen.get(at) else {
             break;
         };
-        if let Some(driver) = driver_on(cx, nets, net) {
+        if let Some(driver) = driver_on(cx, nets, net, switch) {
             return (Some(driver), chain(&seen, at));
         }
         if pre_driver.is_none() {

@@ -12,11 +12,12 @@ pub mod gate_network;
 pub mod load;
 pub mod nets;
 pub mod solves;
+pub mod stage;
 pub mod topology;
 pub mod winding;
 
 use super::facts::{
-    DriverFacts, Freewheel, FreewheelKind, LoadFacts, Range, SwitchFacts, TimerFacts,
+    DriverFacts, Freewheel, FreewheelKind, LoadFacts, Range, Stage, SwitchFacts, TimerFacts,
     SATURATED_BJT_DROP_V,
 };
 use super::states::{Context, Corner};
@@ -53,6 +54,11 @@ pub fn analyze(
     let drives: Vec<GateDrive> = topologies
         .iter()
         .map(|t| gate_network::find(cx, &nets, t))
+        .collect();
+    let stages: Vec<(Stage, String)> = topologies
+        .iter()
+        .zip(&drives)
+        .map(|(t, d)| stage::classify(cx, &nets, t, d))
         .collect();
     let mut findings = Vec::new();
 
@@ -109,7 +115,7 @@ pub fn analyze(
     let mut load_index: BTreeMap<DeviceId, usize> = BTreeMap::new();
     for (i, t) in topologies.iter().enumerate() {
         let Some(s) = component_of(t.device).and_then(|c| solved.get(&c)) else {
-            switches.push(bare_switch(cx, t, &topologies));
+            switches.push(bare_switch(cx, t, &topologies, stages[i].clone()));
             continue;
         };
         let partner = t.partner.and_then(|p| {
@@ -117,7 +123,8 @@ pub fn analyze(
             Some((drives[j].control?, on_levels[j]?))
         });
         let states = drive::on_off(t, drives[i].control, on_levels[i], partner, s);
-        let facts = switch_facts(cx, timers, &nets, t, &topologies, &drives[i], &states, s);
+        let mut facts = switch_facts(cx, timers, &nets, t, &topologies, &drives[i], &states, s);
+        (facts.stage, facts.stage_reason) = stages[i].clone();
         for &load_device in t.load.iter().chain(t.parallel_loads.iter()) {
             if load_index.contains_key(&load_device) {
                 continue;
@@ -144,7 +151,12 @@ pub fn analyze(
                 driven_by: None,
             };
             load_index.insert(load_device, loads.len());
-            loads.push(load::load_facts(cx, load_device, &setting));
+            let mut this_load = load::load_facts(cx, load_device, &setting);
+            if ramps(cx, &branch) {
+                this_load.current_a = None;
+                this_load.stored_energy_j = None;
+            }
+            loads.push(this_load);
         }
         switches.push(facts);
     }
@@ -246,11 +258,18 @@ fn rail_range(
 }
 
 /// A switch whose sub-network could not be found: topology only.
-fn bare_switch(cx: &Context<'_>, t: &SwitchTopology, all: &[SwitchTopology]) -> SwitchFacts {
+fn bare_switch(
+    cx: &Context<'_>,
+    t: &SwitchTopology,
+    all: &[SwitchTopology],
+    (stage, stage_reason): (Stage, String),
+) -> SwitchFacts {
     let (rail_v, rail) = rail_range(cx, t, all);
     SwitchFacts {
         device: t.device,
         kind: t.kind,
+        stage,
+        stage_reason,
         side: t.side,
         switched_net: t.switched,
         anchor_net: t.anchor.map(|a| a.net),
@@ -299,12 +318,17 @@ fn switch_facts(
         .chain(t.parallel_loads.iter())
         .copied()
         .collect();
-    let current_known = s.ok().next().is_some_and(|(_, solved)| {
-        branch_parts
-            .iter()
-            .all(|&d| solved.elements(d).is_none_or(|e| !e.assumed))
-    });
-    let numbers = drive::numbers(cx, t, gate, states, s, current_known);
+    let ramps = ramps(cx, &branch_parts);
+    let current_known = !ramps
+        && s.ok().next().is_some_and(|(_, solved)| {
+            branch_parts
+                .iter()
+                .all(|&d| solved.elements(d).is_none_or(|e| !e.assumed))
+        });
+    let mut numbers = drive::numbers(cx, t, gate, states, s, current_known);
+    if ramps {
+        numbers.linear_region = false;
+    }
     let conducts = match (&numbers.vgs_on_v, cx.circuit.devices.get(t.device)) {
         (Some(v), Some(d)) => {
             let needed = if d.kind.is_mos() {
@@ -397,6 +421,9 @@ fn switch_facts(
     SwitchFacts {
         device: t.device,
         kind: t.kind,
+        // Set by the caller from the stage classification.
+        stage: Stage::Unknown,
+        stage_reason: String::new(),
         side: t.side,
         switched_net: t.switched,
         anchor_net: t.anchor.map(|a| a.net),
@@ -425,6 +452,19 @@ fn switch_facts(
         saturated_current_a,
         gate_edges,
     }
+}
+
+/// True for a branch of bare windings (no resistor, no stated winding resistance): a
+/// converter's inductor or a transformer's primary. Its current ramps at V/L while the switch
+/// is on; a DC solve, which takes the winding for a short, does not give it.
+fn ramps(cx: &Context<'_>, branch: &[DeviceId]) -> bool {
+    !branch.is_empty()
+        && branch.iter().all(|&d| {
+            cx.circuit.devices.get(d).is_some_and(|dev| {
+                dev.kind == Kind::Inductor
+                    && crate::analysis::stand_in::winding_resistance(cx, dev).is_none()
+            })
+        })
 }
 
 /// A load no switch interrupts: energised while the switching input it hangs on is at the
@@ -519,7 +559,12 @@ fn freewheel_drop(cx: &Context<'_>, path: &Freewheel, sw: &SwitchFacts) -> f64 {
         return BODY_DIODE_V;
     };
     match path.kind {
-        FreewheelKind::OppositeBodyDiode => BODY_DIODE_V,
+        // A converter's winding hands its current on through a capacitor or another winding:
+        // what it sees while off is the converter's output, not a drop this engine knows; a
+        // diode's drop stands in so the winding's current still decays as it would.
+        FreewheelKind::OppositeBodyDiode
+        | FreewheelKind::ThroughCapacitor
+        | FreewheelKind::CoupledWinding => BODY_DIODE_V,
         FreewheelKind::Clamp => {
             let p = crate::analysis::stand_in::diode_params(d.kind, &d.data);
             let rail = sw.rail_v.as_ref().map_or(0.0, |r| r.max);

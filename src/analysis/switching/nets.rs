@@ -4,29 +4,88 @@
 use crate::analysis::partition::Fixed;
 use crate::analysis::states::{Context, Corner};
 use crate::circuit::{DeviceId, Kind, NetId, PinRole};
+use std::collections::BTreeMap;
 
-/// The pins on each net, built once in one pass over the devices.
+/// The pins on each net, built once in one pass over the devices, and the windings each `K`
+/// element couples.
 pub struct NetMap {
     pins: Vec<Vec<(DeviceId, PinRole)>>,
+    /// Inductor → the inductors a `K` element couples it with.
+    coupled: BTreeMap<DeviceId, Vec<DeviceId>>,
 }
 
 impl NetMap {
     pub fn new(cx: &Context<'_>) -> NetMap {
         let mut pins = vec![Vec::new(); cx.circuit.nets.len()];
+        let mut has_coupling = false;
         for (id, device) in cx.circuit.devices.iter().enumerate() {
+            has_coupling |= device.kind == Kind::Coupling;
             for pin in &device.pins {
                 if let Some(list) = pins.get_mut(pin.net) {
                     list.push((id, pin.role));
                 }
             }
         }
-        NetMap { pins }
+        let coupled = if has_coupling {
+            couplings(cx)
+        } else {
+            BTreeMap::new()
+        };
+        NetMap { pins, coupled }
     }
 
     /// Every (device, role) on a net, in device order.
     pub fn on(&self, net: NetId) -> &[(DeviceId, PinRole)] {
         self.pins.get(net).map_or(&[], Vec::as_slice)
     }
+
+    /// The windings a `K` element couples with `inductor`, in device order.
+    pub fn coupled_with(&self, inductor: DeviceId) -> &[DeviceId] {
+        self.coupled.get(&inductor).map_or(&[], Vec::as_slice)
+    }
+}
+
+/// Inductor → coupled inductors, from the `K` elements (their references are flattened paths).
+fn couplings(cx: &Context<'_>) -> BTreeMap<DeviceId, Vec<DeviceId>> {
+    let by_path: BTreeMap<String, DeviceId> = cx
+        .circuit
+        .devices
+        .iter()
+        .enumerate()
+        .filter(|(_, d)| d.kind == Kind::Inductor)
+        .filter_map(|(id, d)| {
+            let e = cx.netlist.elements.get(d.element)?;
+            Some((e.path.to_ascii_lowercase(), id))
+        })
+        .collect();
+    let mut out: BTreeMap<DeviceId, Vec<DeviceId>> = BTreeMap::new();
+    for d in cx
+        .circuit
+        .devices
+        .iter()
+        .filter(|d| d.kind == Kind::Coupling)
+    {
+        let Some(e) = cx.netlist.elements.get(d.element) else {
+            continue;
+        };
+        let windings: Vec<DeviceId> = e
+            .refs
+            .iter()
+            .filter_map(|r| by_path.get(&r.to_ascii_lowercase()).copied())
+            .collect();
+        for &a in &windings {
+            for &b in windings.iter().filter(|&&b| b != a) {
+                let list = out.entry(a).or_default();
+                if !list.contains(&b) {
+                    list.push(b);
+                }
+            }
+        }
+    }
+    for list in out.values_mut() {
+        list.sort_unstable();
+    }
+    out
 }
 
 /// A net whose potential a DC supply or the reference fixes.

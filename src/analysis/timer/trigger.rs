@@ -246,9 +246,14 @@ fn trigger_facts(
                 .devices
                 .get(drv.device)
                 .and_then(|d| cx.netlist.elements.get(d.element))?;
-            let wave = &element.source.as_ref()?.wave;
-            // State "high" is the source's v2 level.
-            let (below, period) = pulse_time_below(wave, at_low, at_high, th.lower)?;
+            let spec = element.source.as_ref()?;
+            // State "high" is the higher level, which is `v1` for a PULSE written high-to-low.
+            let (at_v1, at_v2) = if spec.pulses_low() {
+                (at_high, at_low)
+            } else {
+                (at_low, at_high)
+            };
+            let (below, period) = pulse_time_below(&spec.wave, at_v1, at_v2, th.lower)?;
             lows.push((below, describe.clone()));
             periods.push((period, describe));
         }

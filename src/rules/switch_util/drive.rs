@@ -119,19 +119,10 @@ pub fn held_off(cx: &RuleContext<'_>, sw: &SwitchFacts) -> bool {
     };
     control.is_some() && control == reference
 }
-/// True when the transistor is used as a switch: a switching input (pulse source, timer, logic
-/// output, or a pre-driver that follows one) drives it, or it runs an inductive load (motor,
-/// relay, solenoid, winding). A transistor biased by resistors or a current source into a
-/// resistive load is an amplifier: it sits in its active region on purpose, and the drive
-/// rules that ask for a saturated switch do not apply to it.
-pub fn is_switched(cx: &RuleContext<'_>, sw: &SwitchFacts) -> bool {
-    let driven = sw.driver.as_ref().is_some_and(|d| d.control.is_some());
-    let inductive = load_device(cx, sw)
-        .and_then(|l| kind(cx, l))
-        .is_some_and(Kind::is_inductive)
-        || sw
-            .branch
-            .iter()
-            .any(|&d| kind(cx, d).is_some_and(Kind::is_inductive));
-    driven || inductive
+/// True when the analysis took the transistor for a switch (see
+/// `analysis::switching::stage`). Every switch rule judges switches only: an amplifier sits in
+/// its active region on purpose, and a stage kickback cannot place gets one note from
+/// `stage-unknown` instead of findings built on a guess.
+pub fn is_switch(sw: &SwitchFacts) -> bool {
+    sw.stage == Stage::Switch
 }

@@ -19,7 +19,7 @@ pub use ratings::*;
 use super::eseries;
 use super::units::{format_si, sig3};
 use super::RuleContext;
-use crate::analysis::{LoadFacts, Range, SupplyFacts, SwitchFacts, TimerFacts};
+use crate::analysis::{LoadFacts, Range, Stage, SupplyFacts, SwitchFacts, TimerFacts};
 use crate::circuit::{Circuit, Device, DeviceId, Kind, NetId, PinRole, Rated};
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::FlatElement;
