@@ -388,52 +388,6 @@ impl<'a> Context<'a> {
             refused: None,
         }
     }
-
-    /// Searches a pot's travel for the position that maximises `objective` (grid then golden
-    /// section around the best grid point). Returns (position, value).
-    pub fn search_wiper(
-        &self,
-        component: &Component,
-        base: &State,
-        pot: DeviceId,
-        objective: &dyn Fn(&Solved) -> Option<f64>,
-    ) -> Option<(f64, f64)> {
-        let eval = |x: f64| -> Option<f64> {
-            let mut s = base.clone();
-            s.wipers.insert(pot, x);
-            self.solve(component, &s).ok().and_then(|r| objective(&r))
-        };
-        let grid: Vec<f64> = (0..=20).map(|i| i as f64 / 20.0).collect();
-        let mut best: Option<(f64, f64)> = None;
-        for &x in &grid {
-            if let Some(v) = eval(x) {
-                if best.is_none_or(|(_, b)| v > b) {
-                    best = Some((x, v));
-                }
-            }
-        }
-        let (x0, _) = best?;
-        let (mut lo, mut hi) = ((x0 - 0.05).max(0.0), (x0 + 0.05).min(1.0));
-        let phi = 0.5 * (5f64.sqrt() - 1.0);
-        for _ in 0..20 {
-            let a = hi - phi * (hi - lo);
-            let b = lo + phi * (hi - lo);
-            match (eval(a), eval(b)) {
-                (Some(fa), Some(fb)) if fa >= fb => hi = b,
-                (Some(_), Some(_)) => lo = a,
-                _ => break,
-            }
-        }
-        let mid = 0.5 * (lo + hi);
-        for x in [mid, lo, hi] {
-            if let Some(v) = eval(x) {
-                if best.is_none_or(|(_, b)| v > b) {
-                    best = Some((x, v));
-                }
-            }
-        }
-        best
-    }
 }
 
 fn is_switching(wave: &Waveform) -> bool {

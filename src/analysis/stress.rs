@@ -88,7 +88,18 @@ pub fn analyze(
                 .copied()
                 .filter(|&d| cx.circuit.devices[d].kind != Kind::Capacitor)
                 .collect();
-            let facts = resistor_facts(cx, &timer_map, component, &s, &parts);
+            // A part whose model is defined nowhere was solved as a generic stand-in: the
+            // currents it lets through say nothing about the real board, so no dissipation
+            // from this sub-network becomes a fact (the missing model is reported instead).
+            let rests_on_unknown_part = component
+                .devices
+                .iter()
+                .any(|&d| cx.circuit.unknown_part(d).is_some());
+            let facts = if rests_on_unknown_part {
+                Vec::new()
+            } else {
+                resistor_facts(cx, &timer_map, component, &s, &parts)
+            };
             Some((c, s, finding, facts))
         })
         .collect();
