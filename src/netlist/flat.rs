@@ -248,4 +248,7 @@ pub struct FlatNetlist {
     /// were checked as definitions (their lines for syntax) rather than flattened; rules about
     /// a whole circuit (dangling nets, missing supplies) have nothing to judge in it.
     pub is_library: bool,
+    /// Nets that element expressions read (`B1 out 0 V=V(ctl)*2`, `R=V(r2)`), flattened and
+    /// sorted: a net whose only wire is a source may still be in use.
+    pub sensed_nets: Vec<String>,
 }

@@ -65,6 +65,9 @@ pub struct Flattener<'d, 'a> {
     pub used: Vec<bool>,
     items: Vec<super::stmt::Item>,
     pub out: Vec<FlatElement>,
+    /// Nets that element expressions read (`V(a)`, `V(a,b)` in a B source, a behavioural
+    /// value or a code model's parameters), flattened: wired to nothing but still in use.
+    pub sensed: Vec<String>,
 }
 
 impl<'d, 'a> Flattener<'d, 'a> {
@@ -80,6 +83,7 @@ impl<'d, 'a> Flattener<'d, 'a> {
             used: vec![false; n],
             items: Vec::new(),
             out: Vec::new(),
+            sensed: Vec::new(),
         }
     }
 
@@ -274,6 +278,13 @@ impl<'d, 'a> Flattener<'d, 'a> {
                 continue;
             }
             let element = self.build(def, inst, &parsed, view.span());
+            if let Some(last) = view.toks.len().checked_sub(1) {
+                let text = view.text_between(0, last);
+                for local in sensed_nets(&text) {
+                    let net = self.net(inst, local);
+                    self.sensed.push(net);
+                }
+            }
             self.out.push(element);
         }
     }
@@ -472,6 +483,44 @@ impl<'d, 'a> Flattener<'d, 'a> {
 
 /// `m=` elements in parallel: R/m, C·m, L/m. Other letters keep their value (their multiplier
 /// scales the device, which the analyses read from [`FlatElement::multiplier`]).
+/// Node names an expression reads through `V(node)` or `V(node, node)`, in order of appearance.
+/// Only element statements are scanned, so a `.plot V(x)` never counts.
+fn sensed_nets(text: &str) -> Vec<&str> {
+    let mut out = Vec::new();
+    let bytes = text.as_bytes();
+    let mut at = 0;
+    while let Some(found) = text.get(at..).and_then(|rest| {
+        rest.char_indices()
+            .find(|&(i, c)| (c == 'v' || c == 'V') && rest[i + 1..].starts_with('('))
+            .map(|(i, _)| at + i)
+    }) {
+        let open = found + 2;
+        let word_before = found
+            .checked_sub(1)
+            .and_then(|b| bytes.get(b))
+            .is_some_and(|b| b.is_ascii_alphanumeric() || *b == b'_');
+        at = open;
+        if word_before {
+            continue;
+        }
+        let Some(close) = text.get(open..).and_then(|rest| rest.find(')')) else {
+            break;
+        };
+        let inside = &text[open..open + close];
+        if inside.contains('(') {
+            continue;
+        }
+        out.extend(
+            inside
+                .split(',')
+                .map(str::trim)
+                .filter(|n| !n.is_empty() && !n.contains(char::is_whitespace)),
+        );
+        at = open + close;
+    }
+    out
+}
+
 fn scale_by_multiplier(letter: char, value: Option<Num>, params: &[(String, Num)]) -> Option<Num> {
     let m = params.iter().find(|(k, _)| k == "m").map(|(_, v)| *v);
     match (value, m) {
@@ -501,4 +550,21 @@ fn deck_fail<'a>(
     fl.deck
         .sink
         .fail(err, span, context, &|f| fl.decorate(inst, name, f))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::sensed_nets;
+
+    #[test]
+    fn expressions_name_the_nets_they_read() {
+        assert_eq!(sensed_nets("B1 out 0 V=V(a)*2+v(b, c)"), ["a", "b", "c"]);
+        assert_eq!(sensed_nets("R2 4 6 R = 'res*(1+V(r2))'"), ["r2"]);
+        assert!(
+            sensed_nets("B1 out 0 V=dev(1)").is_empty(),
+            "a word ending in v"
+        );
+        assert!(sensed_nets("V1 a 0 PULSE(0 5 0 1n 1n 1u 2u)").is_empty());
+        assert!(sensed_nets("B1 o 0 V=V(").is_empty(), "unclosed");
+    }
 }

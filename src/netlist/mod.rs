@@ -263,14 +263,19 @@ fn run(
         return Ok((flat, findings));
     }
     let mut deck = deck::build(&loaded, sources);
-    let elements = {
+    let (elements, mut sensed_nets) = {
         let mut flattener = flatten::Flattener::new(&deck, limits, keep_whole);
         flattener.run()?;
         if loaded.library {
             findings.extend(library::check_definitions(&deck, &flattener.used));
         }
-        std::mem::take(&mut flattener.out)
+        (
+            std::mem::take(&mut flattener.out),
+            std::mem::take(&mut flattener.sensed),
+        )
     };
+    sensed_nets.sort_unstable_by_key(|n| n.to_ascii_lowercase());
+    sensed_nets.dedup_by(|a, b| a.eq_ignore_ascii_case(b));
     findings.extend(deck.sink.take());
     findings.sort_by_key(|f| (f.span.file, f.span.start, f.span.end));
     let flat = FlatNetlist {
@@ -281,6 +286,7 @@ fn run(
         suppressions,
         missing_includes: loaded.missing.clone(),
         is_library: loaded.library,
+        sensed_nets,
         subckt_names: deck
             .defs
             .iter()

@@ -41,6 +41,14 @@ struct Dangling<'a> {
     scope: &'a str,
 }
 
+fn is_sensed(cx: &RuleContext<'_>, name: &str) -> bool {
+    let sensed = &cx.netlist.sensed_nets;
+    let key = name.to_ascii_lowercase();
+    sensed
+        .binary_search_by(|n| n.to_ascii_lowercase().cmp(&key))
+        .is_ok()
+}
+
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
     let mut dangling = Vec::new();
@@ -53,6 +61,10 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         }
         // An unknown part may wire the net inside a definition kickback cannot read.
         if cx.circuit.unknown_part(device_id).is_some() {
+            continue;
+        }
+        // A net an expression reads (`V(ctl)` in a behavioural source) is in use.
+        if is_sensed(cx, net_name(cx, net)) {
             continue;
         }
         let Some(device) = cx.circuit.devices.get(device_id) else {
