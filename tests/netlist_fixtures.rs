@@ -50,6 +50,7 @@ const CLEAN: &[&str] = &[
     "code_model_arrays.cir",
     "dc_in_parens.cir",
     "if_blocks.cir",
+    "model_version_number.cir",
     "mosfet_thermal.cir",
     "multiplier.cir",
     "param_block_gaps.cir",

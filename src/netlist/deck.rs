@@ -416,12 +416,18 @@ fn models<'a>(deck: &mut Deck<'a>, loaded: &'a Loaded) {
     }
 }
 
-/// Model parameters may hold words (`mfg=...`, `type=...`): a bare name that is no parameter
-/// is kept as "not a number" without a finding.
+/// Model parameters may hold words (`mfg=...`, `type=...`) and release numbers
+/// (`version=3.3.0`, as transistor models of the BSIM family carry): a bare name that is no
+/// parameter, or a dotted number, is kept as "not a number" without a finding.
 fn model_value<'a>(scope: &Scope<'_, 'a>, a: &Assign<'a>, model: &str) -> Num {
     let bare_word = a.text.chars().next().is_some_and(|c| c.is_alphabetic())
         && a.text.chars().all(|c| c.is_alphanumeric() || c == '_')
         && !is_number(&a.text);
+    let release_number = a.text.matches('.').count() >= 2
+        && a.text.chars().all(|c| c.is_ascii_digit() || c == '.');
+    if release_number {
+        return Num::Varies;
+    }
     match scope.eval(&a.text, Mode::Param) {
         Ok(v) => v,
         Err(_) if bare_word => Num::Varies,
