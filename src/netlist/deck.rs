@@ -423,8 +423,8 @@ fn model_value<'a>(scope: &Scope<'_, 'a>, a: &Assign<'a>, model: &str) -> Num {
     let bare_word = a.text.chars().next().is_some_and(|c| c.is_alphabetic())
         && a.text.chars().all(|c| c.is_alphanumeric() || c == '_')
         && !is_number(&a.text);
-    let release_number = a.text.matches('.').count() >= 2
-        && a.text.chars().all(|c| c.is_ascii_digit() || c == '.');
+    let release_number =
+        a.text.matches('.').count() >= 2 && a.text.chars().all(|c| c.is_ascii_digit() || c == '.');
     if release_number {
         return Num::Varies;
     }

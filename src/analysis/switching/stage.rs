@@ -44,6 +44,18 @@ pub fn classify(
         ("gate", "source", "drain")
     };
     if let (Some(driver), Some(control)) = (drive.driver, drive.control) {
+        if let Some((upper, lower, n_type)) = topology::main_terminals(cx, t.device) {
+            let output = if n_type { upper } else { lower };
+            if drives_only_charge(cx, output, t.device) {
+                return (
+                    Stage::Unknown,
+                    format!(
+                        "its {collector} drives only capacitance and transistor terminals: a \
+                         logic stage, not a switch that runs a load"
+                    ),
+                );
+            }
+        }
         return (Stage::Switch, switch_reason(cx, driver, control, base));
     }
     let Some(pin) = gate_network::control_pin(cx, t.device) else {
@@ -176,6 +188,29 @@ pub fn classify(
         Stage::Unknown,
         format!("no pulse source, timer, logic output or driver found at its {base}"),
     )
+}
+
+/// True when nothing on the transistor's output net draws current from it: only capacitors
+/// and other transistors' terminals (the complementary half of a logic inverter, the gates of
+/// the next stage). A power switch always has a load there: a motor, coil, inductor or
+/// resistor.
+fn drives_only_charge(cx: &Context<'_>, output: NetId, own: DeviceId) -> bool {
+    if nets::rail(cx, output).is_some() {
+        return false;
+    }
+    let mut others = 0;
+    for &(id, _) in cx.circuit.devices_on(output) {
+        if id == own {
+            continue;
+        }
+        match cx.circuit.devices.get(id).map(|d| d.kind) {
+            Some(Kind::Capacitor) => {}
+            Some(k) if k.is_switch_transistor() => {}
+            _ => return false,
+        }
+        others += 1;
+    }
+    others > 0
 }
 
 fn switch_reason(cx: &Context<'_>, driver: DeviceId, control: DeviceId, base: &str) -> String {
