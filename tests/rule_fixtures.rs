@@ -29,7 +29,7 @@ fn fixture_files() -> Vec<(String, PathBuf)> {
 }
 
 /// A plain, stable rendering of one file's findings for snapshots.
-fn render(path: &Path) -> (String, Vec<String>) {
+fn render(path: &Path, grade_problems: &mut Vec<String>) -> (String, Vec<String>) {
     let report = check_file(path, &CheckOptions::default());
     let mut text = String::new();
     if let Some(failure) = &report.failure {
@@ -63,6 +63,7 @@ fn render(path: &Path) -> (String, Vec<String>) {
             .unwrap();
         }
         rules.push(f.rule.clone());
+        grade_problems.extend(grade_problem(path, f));
     }
     if report.suppressed > 0 {
         writeln!(text, "suppressed: {}", report.suppressed).unwrap();
@@ -70,11 +71,39 @@ fn render(path: &Path) -> (String, Vec<String>) {
     (text, rules)
 }
 
+/// Every finding names a registered rule and carries a severity its rule declares it gives
+/// (a rating finding resting on an assumed value may also be lowered to a note), unless the
+/// fixture's own `kickback.toml` sets levels.
+fn grade_problem(path: &Path, f: &kickback::diagnostic::Finding) -> Option<String> {
+    let Some(rule) = kickback::rules::find(&f.rule) else {
+        return Some(format!(
+            "{}: `{}` is not in the registry",
+            path.display(),
+            f.rule
+        ));
+    };
+    let sets_levels = path
+        .parent()
+        .and_then(|d| std::fs::read_to_string(d.join("kickback.toml")).ok())
+        .is_some_and(|c| c.contains("[rules]"));
+    let lowered =
+        f.severity == kickback::diagnostic::Severity::Note && f.message.contains("assumed");
+    (!rule.grades.contains(&f.severity) && !lowered && !sets_levels).then(|| {
+        format!(
+            "{}: `{}` gave a {} but declares only {:?}",
+            path.display(),
+            f.rule,
+            f.severity,
+            rule.grades
+        )
+    })
+}
+
 #[test]
 fn rule_fixtures() {
     let mut problems = Vec::new();
     for (rule, path) in fixture_files() {
-        let (text, rules) = render(&path);
+        let (text, rules) = render(&path, &mut problems);
         let stem = path.file_stem().unwrap().to_string_lossy().to_string();
         let fired = rules.contains(&rule);
         if stem.starts_with("fires") && !fired {
