@@ -123,6 +123,14 @@ const WRONG: &[(&str, &[Expected])] = &[
         &[("element_unknown.cir", 3, "element-unknown", "`U1`")],
     ),
     (
+        // One finding per letter, not one per line.
+        "element_unknown_many.cir",
+        &[
+            ("element_unknown_many.cir", 6, "element-unknown", "so are 2 more `U` lines"),
+            ("element_unknown_many.cir", 9, "element-unknown", "`Y1`"),
+        ],
+    ),
+    (
         "param_cycle.cir",
         &[("param_cycle.cir", 2, "parameter-invalid", "parameter cycle: ra → rb → ra")],
     ),

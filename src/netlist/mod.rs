@@ -278,6 +278,7 @@ fn run(
     sensed_nets.dedup_by(|a, b| a.eq_ignore_ascii_case(b));
     findings.extend(deck.sink.take());
     findings.sort_by_key(|f| (f.span.file, f.span.start, f.span.end));
+    let findings = unknown_letters_once(findings);
     let flat = FlatNetlist {
         title: std::mem::take(&mut deck.title),
         elements,
@@ -296,4 +297,60 @@ fn run(
             .collect(),
     };
     Ok((flat, findings))
+}
+
+/// Lines of one unknown element letter are one finding per file, not one per line: a deck
+/// written for another tool (pseudo-parts such as plot probes and ports) says what it is once.
+/// The first line carries the finding; the others are labelled on it (at most
+/// [`MAX_UNKNOWN_LABELS`]) and counted in its message.
+fn unknown_letters_once(findings: Vec<Finding>) -> Vec<Finding> {
+    const MAX_UNKNOWN_LABELS: usize = 8;
+    let mut out: Vec<Finding> = Vec::with_capacity(findings.len());
+    let mut first_of: std::collections::HashMap<(crate::source::FileId, char), (usize, usize)> =
+        std::collections::HashMap::new();
+    for f in findings {
+        let letter = f
+            .element
+            .as_deref()
+            .and_then(|n| n.chars().next())
+            .map(|c| c.to_ascii_uppercase());
+        let key = match (f.rule.as_str(), letter) {
+            ("element-unknown", Some(l)) => (f.span.file, l),
+            _ => {
+                out.push(f);
+                continue;
+            }
+        };
+        match first_of.get_mut(&key) {
+            Some((at, more)) => {
+                *more += 1;
+                if let Some(first) = out.get_mut(*at) {
+                    if first.labels.len() < MAX_UNKNOWN_LABELS {
+                        let name = f.element.clone().unwrap_or_default();
+                        first.labels.push(crate::diagnostic::Label {
+                            span: f.span,
+                            message: format!("`{name}` is skipped too"),
+                        });
+                    }
+                }
+            }
+            None => {
+                first_of.insert(key, (out.len(), 0));
+                out.push(f);
+            }
+        }
+    }
+    for ((_, letter), (at, more)) in first_of {
+        if more == 0 {
+            continue;
+        }
+        if let Some(first) = out.get_mut(at) {
+            first.message = format!(
+                "{}; so are {more} more `{letter}` lines in this file (a part another tool \
+                 draws, such as a probe or a port, or an element kickback does not model)",
+                first.message
+            );
+        }
+    }
+    out
 }
