@@ -7,94 +7,54 @@ use std::path::{Path, PathBuf};
 
 /// What each top-level module may use. Anything not listed is a backward or sideways edge.
 /// Keep in step with the "never depends on" list in DEVELOPERS.md.
+///
+/// The stages in the order data flows; each may use the leaves and every stage before it,
+/// except where a stage names a narrower set.
+const LEAVES: &[&str] = &["source", "units", "vocabulary"];
+const STAGES: &[(&str, Option<&[&str]>)] = &[
+    ("diagnostic", Some(&["source"])),
+    ("netlist", None),
+    ("config", None),
+    ("circuit", None),
+    ("analysis", None),
+    ("rules", None),
+    // The per-file result: findings and sources, nothing of the graph or the facts.
+    (
+        "outcome",
+        Some(&["source", "units", "diagnostic", "netlist", "config"]),
+    ),
+    ("report", None),
+    (
+        "check",
+        Some(&[
+            "source",
+            "units",
+            "vocabulary",
+            "diagnostic",
+            "netlist",
+            "config",
+            "circuit",
+            "analysis",
+            "rules",
+            "outcome",
+        ]),
+    ),
+    ("app", None),
+];
+
 fn allowed() -> BTreeMap<&'static str, Vec<&'static str>> {
     let mut a = BTreeMap::new();
-    a.insert("source", vec![]);
-    a.insert("diagnostic", vec!["source"]);
-    a.insert("vocabulary", vec![]);
-    a.insert("units", vec![]);
-    a.insert("netlist", vec!["source", "diagnostic"]);
-    a.insert(
-        "config",
-        vec!["source", "diagnostic", "netlist", "vocabulary"],
-    );
-    a.insert(
-        "circuit",
-        vec!["source", "diagnostic", "netlist", "config", "vocabulary"],
-    );
-    a.insert(
-        "analysis",
-        vec![
-            "source",
-            "diagnostic",
-            "netlist",
-            "config",
-            "vocabulary",
-            "circuit",
-        ],
-    );
-    a.insert(
-        "rules",
-        vec![
-            "source",
-            "diagnostic",
-            "netlist",
-            "config",
-            "vocabulary",
-            "circuit",
-            "analysis",
-        ],
-    );
-    a.insert("outcome", vec!["source", "diagnostic", "netlist", "config"]);
-    a.insert(
-        "report",
-        vec![
-            "source",
-            "diagnostic",
-            "netlist",
-            "config",
-            "vocabulary",
-            "circuit",
-            "analysis",
-            "rules",
-            "outcome",
-        ],
-    );
-    a.insert(
-        "check",
-        vec![
-            "source",
-            "diagnostic",
-            "netlist",
-            "config",
-            "vocabulary",
-            "circuit",
-            "analysis",
-            "rules",
-            "outcome",
-        ],
-    );
-    a.insert(
-        "app",
-        vec![
-            "source",
-            "diagnostic",
-            "netlist",
-            "config",
-            "vocabulary",
-            "circuit",
-            "analysis",
-            "rules",
-            "outcome",
-            "check",
-            "report",
-        ],
-    );
-    // Leaves every stage may use.
-    for (name, uses) in a.iter_mut() {
-        if !["source", "units", "vocabulary"].contains(name) {
-            uses.push("units");
-        }
+    for leaf in LEAVES {
+        a.insert(*leaf, vec![]);
+    }
+    let mut before: Vec<&'static str> = LEAVES.to_vec();
+    for (stage, narrower) in STAGES {
+        let uses = match narrower {
+            Some(list) => list.to_vec(),
+            None => before.clone(),
+        };
+        a.insert(*stage, uses);
+        before.push(stage);
     }
     a
 }
