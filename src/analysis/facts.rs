@@ -532,6 +532,11 @@ pub struct ResistorFacts {
     pub wiper_current_a: Option<Range>,
     /// Largest current through the part (a pot: through either half).
     pub current_a: Option<Range>,
+    /// A transistor of the same sub-network whose stage kickback could not place (driven by a
+    /// stage that is not switched, say): its bias, set by feedback and by model details a DC
+    /// solve with simplified models does not settle, sets the currents here, so the
+    /// dissipation is not judged.
+    pub set_by_linear_stage: Option<DeviceId>,
 }
 
 /// Voltage across a capacitor (pos − neg in the element's node order) over states.
