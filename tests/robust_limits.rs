@@ -179,3 +179,38 @@ fn one_file_included_over_and_over_meets_the_element_limit_before_memory_does() 
     );
     assert!(started.elapsed() < Duration::from_secs(30));
 }
+
+#[test]
+fn a_tree_of_repeated_includes_is_refused_before_it_is_walked() {
+    // Eleven files, each including the next five times: 5^11 statements (48 million) from
+    // eleven tiny files. The count is known before anything is walked, so the refusal takes
+    // no longer than reading the eleven files once.
+    let dir = tempfile::tempdir().unwrap();
+    for level in 1..=11 {
+        let body = if level < 11 {
+            format!(".include level{}.inc\n", level + 1).repeat(5)
+        } else {
+            (1..=5).map(|i| format!("R{i} a b 1k\n")).collect()
+        };
+        fs::write(dir.path().join(format!("level{level}.inc")), body).unwrap();
+    }
+    fs::write(
+        dir.path().join("top.cir"),
+        "Top\nV1 a 0 5\n.include level1.inc\n.end\n",
+    )
+    .unwrap();
+    let started = std::time::Instant::now();
+    let (code, _, err) = run(&dir, &["top.cir"]);
+    assert_eq!(code, 2, "{err}");
+    assert!(
+        err.contains("above the element limit of 5000000 (--max-elements)"),
+        "{err}"
+    );
+    // Well under a second even unoptimised; it took 16 s when every include was resolved
+    // again on the file system.
+    assert!(
+        started.elapsed() < Duration::from_secs(2),
+        "{:?}",
+        started.elapsed()
+    );
+}

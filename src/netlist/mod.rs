@@ -125,7 +125,10 @@ pub fn load(
     if !meta.is_file() {
         return Err(LoadError::Unreadable {
             path: path.to_path_buf(),
-            reason: "not a file".into(),
+            reason: format!(
+                "it is {}, not a regular file",
+                crate::source::file_kind(&meta)
+            ),
         });
     }
     if meta.len() > limits.max_file_bytes {
