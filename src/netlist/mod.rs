@@ -59,7 +59,7 @@ pub struct Limits {
 impl Default for Limits {
     fn default() -> Self {
         Limits {
-            max_elements: 5_000_000,
+            max_elements: 1_000_000,
             max_depth: 64,
             max_file_bytes: 256 * 1024 * 1024,
             max_statement_bytes: 1024 * 1024,
@@ -87,6 +87,8 @@ pub enum LoadError {
         limit: u64,
         chain: String,
     },
+    #[error("cannot reserve memory for {what}; lower --max-elements or check the netlist")]
+    OutOfMemory { what: String },
     #[error("the includes would hold {count} statements or more (a file included over and over counts each time), above the element limit of {limit} (--max-elements)")]
     TooManyStatements { count: u64, limit: u64 },
 }
@@ -125,7 +127,10 @@ pub fn load(
     if !meta.is_file() {
         return Err(LoadError::Unreadable {
             path: path.to_path_buf(),
-            reason: "not a file".into(),
+            reason: format!(
+                "it is {}, not a regular file",
+                crate::source::file_kind(&meta)
+            ),
         });
     }
     if meta.len() > limits.max_file_bytes {

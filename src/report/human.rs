@@ -2,7 +2,8 @@
 //! the rule and severity, the fix, the numbers behind the finding — and a summary line.
 
 use super::source_window::{has_lone_cr, NetlistSource};
-use super::{format_quantity, ordered, Summary};
+use super::wide_lines::{touches_wide_line, ClippedSource, SnippetSource};
+use super::{format_quantity, ordered, Entry, Summary};
 use crate::diagnostic::{Finding, Severity};
 use crate::outcome::FileReport;
 use crate::source::{FileId, SourceMap, Span};
@@ -52,12 +53,7 @@ pub fn render(reports: &[FileReport], options: &HumanOptions) -> String {
         let flags = lone_cr
             .get(&(entry.report as *const FileReport))
             .map_or(&[][..], Vec::as_slice);
-        out.push_str(&render_finding_with(
-            entry.finding,
-            &entry.report.sources,
-            options,
-            flags,
-        ));
+        out.push_str(&render_entry(&entry, options, flags));
         out.push('\n');
     }
     if options.summary {
@@ -65,6 +61,28 @@ pub fn render(reports: &[FileReport], options: &HumanOptions) -> String {
         out.push('\n');
     }
     out
+}
+
+/// One finding drawn, or, should the drawing fail, one line that still says what and where:
+/// a fault in drawing one finding costs only that finding's snippet, never the other findings,
+/// the summary or the exit code.
+fn render_entry(entry: &Entry<'_>, options: &HumanOptions, lone_cr: &[bool]) -> String {
+    let drawn = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+        render_finding_with(entry.finding, &entry.report.sources, options, lone_cr)
+    }));
+    drawn.unwrap_or_else(|payload| {
+        let why = payload
+            .downcast_ref::<&str>()
+            .map(|s| s.to_string())
+            .or_else(|| payload.downcast_ref::<String>().cloned())
+            .unwrap_or_else(|| "unknown fault".to_string());
+        let at = &entry.location;
+        let finding = entry.finding;
+        format!(
+            "{}:{}:{}: {}[{}]: {} (the snippet could not be drawn: {why})\n",
+            at.file, at.line, at.column, finding.severity, finding.rule, finding.message
+        )
+    })
 }
 
 pub fn summary_line(summary: &Summary, options: &HumanOptions) -> String {
@@ -128,7 +146,7 @@ fn render_finding_with(
             None,
             clamp(&file.text, finding.span),
         ));
-        NetlistSource::new(&file.name, file, lone(primary_file))
+        snippet_source(&file.name, file, lone(primary_file), &mut primary_labels)
     });
     let mut message = finding.message.clone();
     if let Some(chain) = instance_chain(finding, sources, options.unicode) {
@@ -162,7 +180,7 @@ fn render_finding_with(
         };
         out.push_str(&format!("  {equals} {line}\n"));
     }
-    for (file, labels) in groups {
+    for (file, mut labels) in groups {
         let Some(source) = sources.get(file) else {
             continue;
         };
@@ -171,13 +189,49 @@ fn render_finding_with(
             severity: miette::Severity::Advice,
             message: format!("related lines in {}", source.name),
             help: None,
-            source: Some(NetlistSource::new(&source.name, source, lone(file))),
+            source: Some(snippet_source(
+                &source.name,
+                source,
+                lone(file),
+                &mut labels,
+            )),
             labels,
         };
         out.push('\n');
         let _ = handler.render_report(&mut out, &related);
     }
     out
+}
+
+/// The text a snippet of `file` reads: the file itself, or, when a label lies on a very wide
+/// line, windows around the labels with the labels moved into them (a label outside its
+/// window is left out).
+fn snippet_source<'a>(
+    name: &'a str,
+    file: &'a crate::source::SourceFile,
+    lone_cr: bool,
+    labels: &mut Vec<LabeledSpan>,
+) -> SnippetSource<'a> {
+    let spans: Vec<SourceSpan> = labels.iter().map(|label| *label.inner()).collect();
+    if !touches_wide_line(file, &spans) {
+        return SnippetSource::Lines(NetlistSource::new(name, file, lone_cr));
+    }
+    let primary = labels.iter().position(LabeledSpan::primary);
+    let (clipped, moved) = ClippedSource::new(name, file, &spans, primary);
+    let kept = std::mem::take(labels)
+        .into_iter()
+        .zip(moved)
+        .filter_map(|(label, span)| {
+            let span = span?;
+            Some(if label.primary() {
+                LabeledSpan::new_primary_with_span(label.label().map(str::to_string), span)
+            } else {
+                LabeledSpan::new_with_span(label.label().map(str::to_string), span)
+            })
+        })
+        .collect();
+    *labels = kept;
+    SnippetSource::Clipped(clipped)
 }
 
 /// The other lines of a finding: its labels and the instance lines that placed its element.
@@ -267,7 +321,7 @@ struct Snippet<'a> {
     severity: miette::Severity,
     message: String,
     help: Option<&'a str>,
-    source: Option<NetlistSource<'a>>,
+    source: Option<SnippetSource<'a>>,
     labels: Vec<LabeledSpan>,
 }
 

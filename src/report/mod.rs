@@ -11,6 +11,7 @@ pub mod json;
 pub mod sarif;
 pub mod short;
 mod source_window;
+mod wide_lines;
 
 use crate::diagnostic::{Finding, Severity};
 use crate::outcome::FileReport;
