@@ -81,6 +81,10 @@ const CLEAN: &[&str] = &[
     "params_forms.cir",
     "source_forms.cir",
     "blank_dc_value.cir",
+    // Quoted attribute values are bill-of-materials text, not parameters.
+    "quoted_attributes.cir",
+    // Parses clean; the missing library is the rules' business (one path, see below).
+    "lib_path_with_spaces.cir",
     "suppressions.cir",
     "text_after_end.cir",
     "title_looks_like_element.cir",
@@ -187,6 +191,15 @@ const WRONG: &[(&str, &[Expected])] = &[
         // The first line is read as the title; the rest is enough to tell the family.
         "foreign_keyword_first_line.cir",
         &[("foreign_keyword_first_line.cir", 2, "dialect-foreign", "5 of 5 statements")],
+    ),
+    (
+        // A layout tool's netlists: one note each, however many lines.
+        "foreign_parenthesised.cir",
+        &[("foreign_parenthesised.cir", 2, "dialect-foreign", "parenthesised netlist")],
+    ),
+    (
+        "foreign_table.cir",
+        &[("foreign_table.cir", 2, "dialect-foreign", "table netlist")],
     ),
     (
         "foreign_behavioural.cir",
@@ -700,4 +713,17 @@ fn dollar_node_names_are_not_comments() {
     assert_eq!(element(&flat, "R3").nodes, ["vbat", "$N_0001"]);
     assert!(close(value(&flat, "R3"), 1e3));
     assert_eq!(element(&flat, "R4").nodes, ["$N_0001", "0"]);
+}
+
+#[test]
+fn an_unquoted_lib_path_with_spaces_is_one_path() {
+    // Some simulators write their installed libraries as `.lib C:\Program Files\...`: one
+    // path, not a file `C:\Program` and a section `Files\...`.
+    let (flat, _, _) = fixture("lib_path_with_spaces.cir");
+    let paths: Vec<&str> = flat
+        .missing_includes
+        .iter()
+        .map(|m| m.path.as_str())
+        .collect();
+    assert_eq!(paths, ["C:\\Program Files\\sim\\lib\\cmp\\standard.dio"]);
 }

@@ -75,6 +75,8 @@ impl Circuit {
             }
             let unknown = if known.is_undefined(element) {
                 Some(UnknownPart::Undefined)
+            } else if element.letter == 'A' && resolved.unknown.is_none() {
+                Some(UnknownPart::CodeModel)
             } else {
                 resolved.unknown
             };

@@ -3,7 +3,8 @@
 //! - parts whose model or subcircuit is defined nowhere the check can see (a typo, or a library
 //!   that could not be read), and parts kept whole by their name whose definition may sit in a
 //!   missing include;
-//! - parts whose ports cannot be matched to the pins of their kind (names and count do not say).
+//! - parts whose ports cannot be matched to the pins of their kind (names and count do not say);
+//! - mixed-signal code-model devices, whose outputs drive their nets in ways not modelled.
 //!
 //! Such a part may connect its pins to each other, to ground or to a rail inside a definition
 //! kickback cannot read, so a net it touches is not "dangling", a pin on it is not "open", and a
@@ -22,6 +23,9 @@ pub enum UnknownPart {
     /// It is defined, but its ports cannot be given the pins of this kind (what its name or the
     /// config says it is); a `part-pins` note says which mapping is needed.
     Pins(Kind),
+    /// A mixed-signal code-model device (an `A` line): its connections are read, but what it
+    /// drives onto them (a converter's output, a digital source) is not modelled.
+    CodeModel,
 }
 
 /// Names part knowledge can describe without a `.model` or `.subckt` in the deck.

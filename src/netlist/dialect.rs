@@ -67,6 +67,10 @@ enum Form {
     TypeFirst,
     Verilog,
     Vhdl,
+    /// `(export (version D) …`: a nested-parentheses netlist of a layout tool.
+    Parenthesised,
+    /// `"V1" "5" ""`, `4`: rows of quoted fields or bare numbers, a layout tool's tables.
+    Table,
     /// Could be either (`D1 (a k) dmod`, comments, cards both share).
     Neutral,
 }
@@ -80,9 +84,18 @@ fn form(lexed: &Lexed, stmt: &super::lex::Stmt, text: &str) -> Form {
             .and_then(|t| text.get(t.start as usize..t.end as usize))
     };
     let kind_at = |i: usize| toks.get(i).map(|t| t.kind);
+    // No SPICE statement starts with a parenthesis, a quoted field or a number.
+    match kind_at(0) {
+        Some(TokKind::LParen) => return Form::Parenthesised,
+        Some(TokKind::Str) => return Form::Table,
+        _ => {}
+    }
     let Some(first) = word_at(0) else {
         return Form::Neutral;
     };
+    if is_number(first) {
+        return Form::Table;
+    }
     if is_one_of(first, VERILOG_WORDS) {
         return Form::Verilog;
     }
@@ -145,6 +158,8 @@ pub fn detect(lexed: &Lexed, text: &str) -> Option<Finding> {
     let mut type_first = 0usize;
     let mut verilog = 0usize;
     let mut vhdl = 0usize;
+    let mut parenthesised = 0usize;
+    let mut table = 0usize;
     let mut first_foreign = None;
     for stmt in &lexed.stmts {
         let foreign = match form(lexed, stmt, text) {
@@ -169,14 +184,26 @@ pub fn detect(lexed: &Lexed, text: &str) -> Option<Finding> {
                 vhdl += 1;
                 true
             }
+            Form::Parenthesised => {
+                parenthesised += 1;
+                true
+            }
+            Form::Table => {
+                table += 1;
+                true
+            }
         };
         if foreign && first_foreign.is_none() {
             first_foreign = Some(lexed.span(stmt.start, stmt.end));
         }
     }
     let span = first_foreign?;
-    let total = spice + keyword + type_first + verilog + vhdl;
+    let foreign = keyword + type_first + verilog + vhdl + parenthesised + table;
+    let total = spice + foreign;
     let strong = |n: usize| n >= 2 || (n == 1 && spice == 0);
+    // A layout tool's netlist was never meant for a simulator: it sits beside the schematic and
+    // a folder scan finds it. Saying it is not checked is enough; it fails nothing.
+    let mut severity = Severity::Error;
     let (family, hint) = if strong(verilog) && verilog >= vhdl {
         (
             "a Verilog-A/AMS behavioural model (`module` … `endmodule` blocks)",
@@ -197,17 +224,29 @@ pub fn detect(lexed: &Lexed, text: &str) -> Option<Finding> {
             "a type-first netlist (element lines such as `R:R1 a b R=\"1 kOhm\"`, the type before the name)",
             "export the netlist in SPICE format: element letter first, nodes, then the value or model",
         )
+    } else if parenthesised >= 2 && parenthesised > spice {
+        severity = Severity::Note;
+        (
+            "a layout tool's parenthesised netlist (nested lists such as `(comp (ref R1) (value 1k))`)",
+            "export a SPICE netlist from the schematic (a simulation export), or leave this file out of the checked paths",
+        )
+    } else if table >= 2 && table > spice {
+        severity = Severity::Note;
+        (
+            "a layout tool's table netlist (rows of quoted fields and numbers)",
+            "export a SPICE netlist from the schematic (a simulation export), or leave this file out of the checked paths",
+        )
     } else {
         return None;
     };
     Some(
         Finding::new(
             "dialect-foreign",
-            Severity::Error,
+            severity,
             span,
             format!(
                 "this file looks like {family}, not a SPICE netlist ({} of {total} statements are in that form); it is not checked",
-                keyword + type_first + verilog + vhdl
+                foreign
             ),
         )
         .with_help(hint),

@@ -132,6 +132,32 @@ pub fn parse_with<'a>(
             )
             .with_element(name, None),
         )),
+        _ if is_code_model_placeholder(items, |i| cx.word(Some(i))) => Err(Box::new(
+            Finding::new(
+                "element-unknown",
+                Severity::Note,
+                view.span(),
+                format!(
+                    "`{name}` stands for a mixed-signal code-model device (a converter rewrites \
+                     it into an `A` line before simulation); the line is skipped and its nets \
+                     count as connected"
+                ),
+            )
+            .with_element(name, None),
+        )),
+        _ if is_u_line(letter, items, |i| cx.word(Some(i))) => Err(Box::new(
+            Finding::new(
+                "element-unknown",
+                Severity::Note,
+                view.span(),
+                format!(
+                    "`{name}`: a `U` line (a distributed RC line, or a placeholder a converter \
+                     rewrites into a code-model device) is not read; the line is skipped and its \
+                     nets count as connected"
+                ),
+            )
+            .with_element(name, None),
+        )),
         _ => Err(Box::new(
             Finding::new(
                 "element-unknown",
@@ -158,6 +184,31 @@ fn is_schematic_marker<'i>(items: &'i [Item], word: impl Fn(&'i Item) -> Option<
         }
         _ => false,
     }
+}
+
+/// A line of nodes ending in a code model's name (`adc_bridge_1`, `dac_bridge`, `d_inverter`):
+/// the placeholder some schematic tools write for an XSPICE device, rewritten into an `A` line
+/// by their converter.
+fn is_code_model_placeholder<'i>(
+    items: &'i [Item],
+    word: impl Fn(&'i Item) -> Option<&'i str>,
+) -> bool {
+    let words: Vec<&str> = items.iter().filter_map(word).collect();
+    let [_, _, .., model] = words.as_slice() else {
+        return false;
+    };
+    let m = model.to_ascii_lowercase();
+    m.starts_with("adc_bridge") || m.starts_with("dac_bridge") || m.starts_with("d_")
+}
+
+/// A `U` line of nodes and a model name: a distributed RC line, or the placeholder some
+/// schematic tools write for a code-model device of their own library.
+fn is_u_line<'i>(
+    letter: char,
+    items: &'i [Item],
+    word: impl Fn(&'i Item) -> Option<&'i str>,
+) -> bool {
+    letter == 'U' && items.iter().filter_map(word).count() >= 3
 }
 
 impl<'a> Ctx<'_, 'a> {

@@ -327,6 +327,9 @@ impl<'d, 'a> Flattener<'d, 'a> {
         parsed
             .params
             .iter()
+            // A quoted value (`mfg="…"`, `type="X7R"`) is an attribute schematic tools write for
+            // the bill of materials; no electrical parameter is a string.
+            .filter(|a| !a.text.trim_start().starts_with('"'))
             .map(|a| {
                 let v = match inst.scope.eval(&a.text, Mode::Param) {
                     Ok(v) => v,

@@ -273,7 +273,15 @@ impl<'s> Loader<'s> {
                         i = end + 1;
                         continue;
                     }
-                    match (self.argument(file, i, 1), self.argument(file, i, 2)) {
+                    let section = self
+                        .argument(file, i, 2)
+                        .filter(|_| !self.lib_path_has_spaces(file, i));
+                    let path = if section.is_none() {
+                        self.rest_of_line(file, i, 1)
+                    } else {
+                        self.argument(file, i, 1)
+                    };
+                    match (path, section) {
                         (Some(path), section) => self.include(file, i, &path, section),
                         (None, _) => self.out.findings.push(Finding::new(
                             "syntax",
@@ -347,6 +355,44 @@ impl<'s> Loader<'s> {
 
     /// The `n`-th argument of a statement as text: a quoted string without its quotes, or a
     /// plain word (for the first argument of `.include`, the rest of the line).
+    /// Whether a `.lib` card is one unquoted path with spaces in it (`.lib C:\Program
+    /// Files\lib\standard.dio`, as some simulators write their own libraries) rather than a
+    /// file and a section: a section name is one word with no path separator or extension.
+    fn lib_path_has_spaces(&self, file: usize, stmt: usize) -> bool {
+        let Some(lexed) = self.out.files.get(file) else {
+            return false;
+        };
+        let Some(s) = lexed.stmts.get(stmt) else {
+            return false;
+        };
+        let toks = lexed.toks_of(s);
+        let first_is_word = toks.get(1).is_some_and(|t| t.kind == TokKind::Word);
+        if !first_is_word || toks.len() < 3 {
+            return false;
+        }
+        if toks.len() > 3 {
+            return true;
+        }
+        self.argument(file, stmt, 2)
+            .is_some_and(|w| w.contains(['\\', '/', '.']))
+    }
+
+    /// The words from the `n`th to the end of the statement as written, quotes removed when
+    /// the `n`th is the only one.
+    fn rest_of_line(&self, file: usize, stmt: usize, n: usize) -> Option<String> {
+        let lexed = self.out.files.get(file)?;
+        let s = lexed.stmts.get(stmt)?;
+        let toks = lexed.toks_of(s);
+        if toks.len() <= n + 1 {
+            return self.argument(file, stmt, n);
+        }
+        let text = &self.sources.get(lexed.file)?.text;
+        let start = toks.get(n)?.start;
+        let end = toks.last()?.end;
+        text.get(start as usize..end as usize)
+            .map(|t| t.trim().to_string())
+    }
+
     fn argument(&self, file: usize, stmt: usize, n: usize) -> Option<String> {
         let lexed = &self.out.files[file];
         let s = lexed.stmts.get(stmt)?;

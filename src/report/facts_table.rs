@@ -318,12 +318,12 @@ impl Table<'_> {
             );
         }
         if s.follower {
-            self.row(
-                out,
-                "note",
-                "source follower",
-                "nothing lifts the gate above the rail",
-            );
+            let (what, why) = if s.kind.is_bjt() {
+                ("emitter follower", "nothing lifts the base above the rail")
+            } else {
+                ("source follower", "nothing lifts the gate above the rail")
+            };
+            self.row(out, "note", what, why);
         }
         if s.linear_region {
             self.row(

@@ -9,7 +9,7 @@ use super::switch_util::{
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
-use crate::analysis::{SwitchFacts, SATURATED_BJT_DROP_V};
+use crate::analysis::{Side, SwitchFacts, SATURATED_BJT_DROP_V};
 use crate::circuit::{DeviceId, Kind};
 use crate::diagnostic::{Finding, Severity};
 
@@ -38,9 +38,21 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     for sw in &cx.analysis.switches {
         let bjt = kind(cx, sw.device).is_some_and(Kind::is_bjt);
         let referenced = unreferenced.binary_search(&sw.device).is_err();
-        if bjt && !held_off(cx, sw) && is_switch(sw) && referenced {
+        if bjt && !held_off(cx, sw) && is_switch(sw) && referenced && !is_follower(cx, sw) {
             out.extend(finding(cx, sw));
         }
+    }
+}
+
+/// An NPN with its collector on the upper rail and the load at its emitter, or a PNP the
+/// other way up, is an emitter follower: its emitter follows the base a junction drop below,
+/// and no base current saturates it, so a forced-β test says nothing about it (its drop and
+/// dissipation are the switch's facts).
+fn is_follower(cx: &RuleContext<'_>, sw: &SwitchFacts) -> bool {
+    match kind(cx, sw.device) {
+        Some(Kind::Npn) => sw.side == Side::High,
+        Some(Kind::Pnp) => sw.side == Side::Low,
+        _ => false,
     }
 }
 

@@ -53,7 +53,7 @@ pub const INCLUDE_REFUSED: Rule = Rule {
 pub const DIALECT_FOREIGN: Rule = Rule {
     id: "dialect-foreign",
     default_severity: Severity::Error,
-    grades: &[Severity::Error],
+    grades: &[Severity::Error, Severity::Note],
     summary: "The deck is written in another netlist family",
     page: include_str!("../../rules/dialect-foreign.md"),
     check: None,

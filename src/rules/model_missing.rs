@@ -16,13 +16,15 @@ use std::collections::BTreeMap;
 pub const RULE: Rule = Rule {
     id: "model-missing",
     default_severity: Severity::Error,
-    grades: &[Severity::Error, Severity::Warning],
+    grades: &[Severity::Error, Severity::Warning, Severity::Note],
     summary: "An element names a model or subcircuit that is defined nowhere",
     page: include_str!("../../rules/model-missing.md"),
     check: Some(check),
 };
 /// Uses labelled per missing include; the message lists every name.
 const MAX_LABELS: usize = 8;
+/// Missing include paths quoted in the one finding that names them.
+const MAX_PATHS: usize = 4;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     // Lower-case name → (name as first written, elements that use it). The circuit's fact of
@@ -138,44 +140,90 @@ fn similar_names(cx: &RuleContext<'_>, name: &str) -> Vec<String> {
     scored.into_iter().map(|(_, n)| n).take(2).collect()
 }
 
+/// One finding for all of a deck's missing includes, at the first: which files, and which
+/// parts the deck uses that they would have defined. A library nothing in the deck needs, or
+/// one at an absolute path (a simulator's own installed library, which no project can put
+/// beside its netlist), is a note: it says what the check lacks, it is not a fault of the
+/// design. A missing file of the project's own (a relative path) that leaves parts undefined
+/// is a warning.
 fn blame_missing_includes(
     cx: &RuleContext<'_>,
     undefined: &BTreeMap<String, (String, Vec<&FlatElement>)>,
     out: &mut Vec<Finding>,
 ) {
-    let several = cx.netlist.missing_includes.len() > 1;
+    let missing = &cx.netlist.missing_includes;
+    let Some(first) = missing.first() else {
+        return;
+    };
     let names: Vec<&str> = undefined.values().map(|(n, _)| n.as_str()).collect();
-    for include in &cx.netlist.missing_includes {
-        let message = if names.is_empty() {
-            format!(
-                "`{}` could not be read; nothing this deck uses is left undefined by it, but \
-                 whatever it sets up is missing from the check",
-                include.path
-            )
-        } else if several {
-            format!(
-                "`{}` could not be read; it or another missing include would have defined {}",
-                include.path,
-                quoted_list(&names)
-            )
+    let paths: Vec<&str> = missing.iter().map(|m| m.path.as_str()).collect();
+    let files = if let [one] = paths.as_slice() {
+        format!("`{one}` could not be read")
+    } else {
+        let shown: Vec<&str> = paths.iter().copied().take(MAX_PATHS).collect();
+        let rest = paths.len() - shown.len();
+        let more = if rest > 0 {
+            format!(" and {rest} more")
         } else {
-            format!(
-                "`{}` could not be read; it would have defined {}",
-                include.path,
-                quoted_list(&names)
-            )
+            String::new()
         };
-        let mut finding = Finding::new(RULE, Severity::Warning, include.span, message).with_help(
-            "put the file where the path points (relative to this netlist) or correct the path; \
-             checks that need these parts are skipped until then",
-        );
-        for (name, users) in undefined.values().take(MAX_LABELS) {
-            if let Some(first) = users.first() {
-                finding = finding.with_label(first.span, format!("{} uses `{name}`", first.path));
-            }
-        }
-        out.push(finding);
+        format!(
+            "{} included files could not be read ({}{more})",
+            paths.len(),
+            quoted_list(&shown)
+        )
+    };
+    let them = if paths.len() == 1 { "it" } else { "they" };
+    let message = if names.is_empty() {
+        let (by, sets) = if paths.len() == 1 {
+            ("it", "it sets")
+        } else {
+            ("them", "they set")
+        };
+        format!(
+            "{files}; nothing this deck uses is left undefined by {by}, but whatever {sets} up \
+             is missing from the check"
+        )
+    } else {
+        format!("{files}; {them} would have defined {}", quoted_list(&names))
+    };
+    let project_file = missing.iter().any(|m| !is_absolute(&m.path));
+    let severity = if names.is_empty() || !project_file {
+        Severity::Note
+    } else {
+        Severity::Warning
+    };
+    let place = if paths.len() == 1 {
+        "put the file where the path points (relative to this netlist) or correct the path"
+    } else {
+        "put the files where the paths point (relative to this netlist) or correct the paths"
+    };
+    let help = if names.is_empty() {
+        place.to_string()
+    } else {
+        format!(
+            "{place}; for a simulator's own library, describe the parts in kickback.toml \
+             (`[parts.NAME]` with `kind` and ratings); checks that need these parts are skipped \
+             until then"
+        )
+    };
+    let mut finding = Finding::new(RULE, severity, first.span, message).with_help(help);
+    for other in missing.iter().skip(1).take(MAX_LABELS) {
+        finding = finding.with_label(other.span, "also not read");
     }
+    for (name, users) in undefined.values().take(MAX_LABELS) {
+        if let Some(user) = users.first() {
+            finding = finding.with_label(user.span, format!("{} uses `{name}`", user.path));
+        }
+    }
+    out.push(finding);
+}
+
+/// `C:\lib\x.lib`, `/usr/lib/x.lib`, `\\server\x.lib`.
+fn is_absolute(path: &str) -> bool {
+    let bytes = path.as_bytes();
+    path.starts_with(['/', '\\'])
+        || (bytes.len() > 2 && bytes[0].is_ascii_alphabetic() && bytes[1] == b':')
 }
 
 fn quoted_list(names: &[&str]) -> String {

@@ -14,7 +14,7 @@ use super::RuleContext;
 use crate::circuit::NetId;
 use crate::diagnostic::{Finding, Severity};
 use crate::source::Span;
-use std::collections::HashMap;
+use std::collections::{HashMap, HashSet};
 
 /// This rule's identity: its ID, the severities it gives and its page.
 pub const RULE: Rule = Rule {
@@ -32,6 +32,11 @@ const WINDOW: usize = 256;
 /// stray nets stays fast, and suggestions are given while the budget lasts.
 const SCAN_BUDGET: usize = 500_000;
 const DISTANCE_BUDGET: usize = 200_000;
+/// More dangling nets than this on one line are one finding for the line: a wide code-model
+/// or subcircuit line with thousands of stray nodes says so once, not once per node.
+const GROUP_ABOVE: usize = 3;
+/// Net names quoted in a grouped finding.
+const GROUP_NAMED: usize = 3;
 
 struct Dangling<'a> {
     net: NetId,
@@ -68,6 +73,11 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         if is_part(device.kind, element) {
             continue;
         }
+        // A behavioural or controlled source's output that nothing else reads is a quantity
+        // computed for a plot (a speed from a current, a power from a product), not a typo.
+        if pin < 2 && matches!(element.letter, 'B' | 'E' | 'F' | 'G' | 'H') {
+            continue;
+        }
         dangling.push(Dangling {
             net,
             device: device_id,
@@ -84,6 +94,8 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     };
     let mut once = Once::default();
     let repeats = repeats(cx, &dangling);
+    let per_line = per_line(cx, &dangling);
+    let mut grouped_lines: HashSet<Span> = HashSet::new();
     for d in &dangling {
         let Some(device) = cx.circuit.devices.get(d.device) else {
             continue;
@@ -93,6 +105,12 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         };
         let name = net_name(cx, d.net);
         let local = strip_scope(name, d.scope);
+        if let Some(line) = per_line.get(&element.span).filter(|l| l.nets > GROUP_ABOVE) {
+            if grouped_lines.insert(element.span) {
+                out.push(grouped(element, line));
+            }
+            continue;
+        }
         if !once.first(element.span, local.to_ascii_lowercase()) {
             continue;
         }
@@ -168,6 +186,65 @@ fn single_connection(
         }
         _ => None,
     }
+}
+
+/// The dangling nets of one element line: how many distinct local names, the first few with
+/// their node numbers.
+#[derive(Default)]
+struct LineDangling {
+    nets: usize,
+    named: Vec<(String, usize)>,
+    seen: HashSet<String>,
+}
+
+fn per_line(cx: &RuleContext<'_>, dangling: &[Dangling<'_>]) -> HashMap<Span, LineDangling> {
+    let mut lines: HashMap<Span, LineDangling> = HashMap::new();
+    for d in dangling {
+        let Some(element) = cx
+            .circuit
+            .devices
+            .get(d.device)
+            .and_then(|x| cx.netlist.elements.get(x.element))
+        else {
+            continue;
+        };
+        let local = strip_scope(net_name(cx, d.net), d.scope);
+        let line = lines.entry(element.span).or_default();
+        if line.seen.insert(local.to_ascii_lowercase()) {
+            line.nets += 1;
+            if line.named.len() < GROUP_NAMED {
+                line.named.push((local.to_string(), d.pin + 1));
+            }
+        }
+    }
+    lines
+}
+
+/// One finding for a line that leaves many nets with a single connection.
+fn grouped(element: &crate::netlist::FlatElement, line: &LineDangling) -> Finding {
+    let named: Vec<String> = line
+        .named
+        .iter()
+        .map(|(net, node)| format!("`{net}` (node {node})"))
+        .collect();
+    let rest = line.nets.saturating_sub(named.len());
+    finding_at(
+        RULE,
+        Severity::Warning,
+        element,
+        format!(
+            "{} nets on {}'s line have a single connection: {} and {rest} more; nothing else is \
+             wired to them",
+            line.nets,
+            element.path,
+            named.join(", ")
+        ),
+    )
+    .with_value("nets", line.nets as f64, "", "counted from the netlist")
+    .with_help(
+        "connect these nets where they belong, or correct the node names on this line; if \
+         the part reads them inside a model kickback cannot see, give its definition",
+    )
 }
 
 /// How many instances share each dangling definition line and net.

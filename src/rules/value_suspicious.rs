@@ -168,6 +168,27 @@ impl Ctx<'_, '_> {
             })
     }
 
+    /// Whether a behavioural or controlled source (B, E, F, G, H) has a pin on the net.
+    fn behavioural_on(&self, net: NetId) -> bool {
+        self.index.on(net).iter().any(|&(d, _)| {
+            device_element(self.cx, d)
+                .is_some_and(|(_, e)| matches!(e.letter, 'B' | 'E' | 'F' | 'G' | 'H'))
+        })
+    }
+
+    /// Where a pull resistor's far end goes: a fixed net, or a switch's source or emitter.
+    fn is_pull_end(&self, net: NetId) -> bool {
+        self.is_fixed(net)
+            || self.index.on(net).iter().any(|&(d, pin)| {
+                self.cx
+                    .circuit
+                    .devices
+                    .get(d)
+                    .and_then(|x| x.pins.get(pin))
+                    .is_some_and(|p| matches!(p.role, PinRole::Source | PinRole::Emitter))
+            })
+    }
+
     fn value(&self, id: DeviceId) -> Option<f64> {
         let (d, e) = device_element(self.cx, id)?;
         match d.kind {
@@ -216,10 +237,22 @@ impl Ctx<'_, '_> {
             return None;
         }
         let text = element.value_text.as_deref().unwrap_or("");
-        let on_signal = device
+        // A timer's timing or control net, or a gate or base pulled to a rail or to the
+        // switch's own source or emitter. A milliohm link in series with a base or gate is a
+        // deliberate near-short (a current probe, a jumper), not a slip.
+        let on_timer = device
             .pins
             .iter()
-            .any(|p| self.signals.get(p.net).is_some_and(Signal::any));
+            .any(|p| self.signals.get(p.net).is_some_and(|s| s.timer().is_some()));
+        let pulls_gate = device.pins.iter().enumerate().any(|(i, p)| {
+            self.signals.get(p.net).is_some_and(|s| s.gate().is_some())
+                && device
+                    .pins
+                    .iter()
+                    .enumerate()
+                    .any(|(j, other)| j != i && self.is_pull_end(other.net))
+        });
+        let on_signal = on_timer || pulls_gate;
         let timer = self.timer_on(device);
         let timing = matches!(
             timer,
@@ -442,6 +475,11 @@ impl Ctx<'_, '_> {
         if c.is_nan() || c < 1.0 {
             return None;
         }
+        // Beside a behavioural or controlled source a capacitor is a model's integrator (a
+        // rotor's inertia, a thermal mass), where farads are what is meant.
+        if device.pins.iter().any(|p| self.behavioural_on(p.net)) {
+            return None;
+        }
         let text = element.value_text.as_deref().unwrap_or("");
         let micro = c * 1e-6;
         let meant = if is_bare_number(text) {
@@ -488,12 +526,30 @@ impl Ctx<'_, '_> {
                 "F",
                 "reading the value as µF",
             )
-            .with_help(format!(
-                "write `{meant}` if you meant {}",
-                format_si(micro, "F")
-            )),
+            .with_help(
+                resistor_named_as_capacitor(element, text).unwrap_or_else(|| {
+                    format!("write `{meant}` if you meant {}", format_si(micro, "F"))
+                }),
+            ),
         )
     }
+}
+
+/// A value written with a resistor's suffix (`1k`, `4.7kOhm`, `2meg`) on a line whose name only
+/// happens to start with C (a schematic reference such as `CHARGE1`): SPICE reads the first
+/// letter, so the part is a capacitor of kilofarads.
+fn resistor_named_as_capacitor(element: &FlatElement, text: &str) -> Option<String> {
+    let lower = text.to_ascii_lowercase();
+    let suffix = lower.trim_start_matches(|c: char| c.is_ascii_digit() || c == '.');
+    let ohms = suffix.starts_with('k') || suffix.starts_with("meg") || suffix.contains("ohm");
+    (ohms && element.name.len() > 2).then(|| {
+        format!(
+            "`{text}` is written like a resistance: if {} is meant as a resistor, rename it to \
+             start with R (SPICE takes an element's kind from the first letter of its name, so \
+             `{}` is a capacitor)",
+            element.path, element.name
+        )
+    })
 }
 
 #[cfg(test)]

@@ -13,7 +13,7 @@
 use crate::analysis::dc::DcError;
 use crate::analysis::partition::Component;
 use crate::analysis::states::{Context, Corner, Solved, State};
-use crate::circuit::DeviceId;
+use crate::circuit::{DeviceId, Kind, UnknownPart};
 use crate::diagnostic::{Finding, Severity};
 use std::collections::BTreeMap;
 
@@ -206,13 +206,47 @@ pub fn failure_finding(
             "the sub-network around {} has {unknowns} unknowns, more than the {limit} the DC engine solves densely; its voltages, currents and dissipation are not checked",
             element.path
         ),
-        _ => format!(
-            "no DC operating point for the sub-network around {} in the state `{label}`: {error}",
-            element.path
-        ),
+        _ => match unmodelled_beside(cx, solves.component) {
+            // Not a fault of the circuit: a part the engine leaves open holds these nets.
+            Some(part) => {
+                severity = Severity::Note;
+                format!(
+                    "the sub-network around {} has no DC state kickback can judge (`{label}`): \
+                     it hangs on {part}, which the DC engine does not model, so its voltages, \
+                     currents and dissipation are not checked",
+                    element.path
+                )
+            }
+            None => format!(
+                "no DC operating point for the sub-network around {} in the state `{label}`: {error}",
+                element.path
+            ),
+        },
     };
     Some(
         Finding::new("solve-failed", severity, element.span, message)
             .with_element(element.name.clone(), element.instance_path()),
     )
+}
+
+/// The first part beside the component that the DC engine leaves open although it conducts in
+/// the circuit (a voltage- or current-controlled switch, a JFET, a code-model device), named
+/// with what it is.
+fn unmodelled_beside(cx: &Context<'_>, component: usize) -> Option<String> {
+    let component = cx.partition.components.get(component)?;
+    component.nets.iter().find_map(|&net| {
+        cx.circuit.devices_on(net).iter().find_map(|&(d, _)| {
+            let device = cx.circuit.devices.get(d)?;
+            let what = match device.kind {
+                Kind::Switch => "a controlled switch",
+                Kind::Jfet => "a JFET",
+                _ if cx.circuit.unknown_part(d) == Some(UnknownPart::CodeModel) => {
+                    "a code-model device"
+                }
+                _ => return None,
+            };
+            let element = cx.netlist.elements.get(device.element)?;
+            Some(format!("{} ({what})", element.path))
+        })
+    })
 }
