@@ -193,7 +193,7 @@ fn render(c: &mut Criterion) {
         let n = reports[0].findings.len();
         group.throughput(Throughput::Elements(n as u64));
         let id = |format: &str| BenchmarkId::new(format, format!("{n} findings"));
-        group.bench_function(id("short"), |b| {
+        group.bench_function(id("lines"), |b| {
             b.iter(|| black_box(short::render(&reports, Severity::Note)))
         });
         group.bench_function(id("json"), |b| b.iter(|| black_box(json::render(&reports))));
@@ -201,7 +201,7 @@ fn render(c: &mut Criterion) {
             b.iter(|| black_box(sarif::render(&reports)))
         });
         let options = human::HumanOptions::default();
-        group.bench_function(id("human"), |b| {
+        group.bench_function(id("cards"), |b| {
             b.iter(|| black_box(human::render(&reports, &options)))
         });
     }

@@ -127,10 +127,10 @@ fn main() {
         failure: None,
     }];
     let bytes = [
-        timed("short", || short::render(&reports, Severity::Note).len()),
+        timed("lines", || short::render(&reports, Severity::Note).len()),
         timed("json", || json::render(&reports).len()),
         timed("sarif", || sarif::render(&reports).len()),
-        timed("human", || {
+        timed("cards", || {
             human::render(&reports, &human::HumanOptions::default()).len()
         }),
     ];

@@ -243,10 +243,10 @@ fn human_survives_spans_outside_the_text() {
 fn short_format_is_one_line_per_finding() {
     let text = report::short::render(&all_reports(), Severity::Note);
     insta::assert_snapshot!(text, @r"
-    hw/pump.cir:3:12: note[pwm-audible]: VPIN switches at 1 kHz: the pump will whine
-    hw/pump.cir:5:1: error[gate-underdrive]: M1 sees 3.3 V gate-source in the on state; a standard-threshold switch needs about 10 V
-    hw/pump.cir:6:1: error[flyback-missing]: the pump XPUMP is switched by M1 with no freewheeling path
-    hw/stirrer.cir:6:1: warning[value-suspicious]: R1 is 10 MΩ in a gate network; a pull-down of 10 kΩ is usual
+    hw/pump.cir:3:12: note pwm-audible — VPIN switches at 1 kHz: the pump will whine
+    hw/pump.cir:5:1: error gate-underdrive — M1 sees 3.3 V gate-source in the on state; a standard-threshold switch needs about 10 V
+    hw/pump.cir:6:1: error flyback-missing — the pump XPUMP is switched by M1 with no freewheeling path
+    hw/stirrer.cir:6:1: warning value-suspicious — R1 is 10 MΩ in a gate network; a pull-down of 10 kΩ is usual
     ");
     let errors = report::short::render(&all_reports(), Severity::Error);
     assert_eq!(errors.lines().count(), 2);
@@ -270,7 +270,7 @@ fn short_format_keeps_multi_line_messages_on_one_line() {
     };
     assert_eq!(
         report::short::render(&[report], Severity::Note),
-        "a.cir:2:1: error[syntax]: first second\n"
+        "a.cir:2:1: error syntax — first second\n"
     );
 }
 
@@ -437,7 +437,7 @@ fn sarif_rules_come_from_the_registry_and_pages() {
             info.default_severity.as_str()
         );
         assert_eq!(descriptor["help"]["markdown"], info.page);
-        let what = report::sarif::page_section(info.page, "What it checks").expect("section");
+        let what = report::sarif::page_section(info.page, "The fault").expect("section");
         assert_eq!(descriptor["fullDescription"]["markdown"], what);
     }
     // A finding of a registered rule points at its descriptor.

@@ -2,7 +2,7 @@
 //! turns the outcome into an exit code. `src/main.rs` only calls [`main`].
 //!
 //! Exit codes: [`EXIT_CLEAN`] no error-level findings, [`EXIT_FINDINGS`] error-level findings
-//! (warnings too with `--deny warnings`), [`EXIT_FAILURE`] the tool could not do its job.
+//! (warnings too with `--fail-on warning`), [`EXIT_FAILURE`] the tool could not do its job.
 
 pub mod catalogue;
 pub mod cli;
@@ -17,7 +17,7 @@ use crate::netlist::{Limits, LoadError};
 use crate::report::{self, human::HumanOptions};
 use crate::source::SourceMap;
 use clap::{CommandFactory, Parser};
-use cli::{Cli, Command, Deny, Format, GlobalArgs};
+use cli::{Cli, Command, Deny, FailOn, Format, GlobalArgs};
 use rayon::prelude::*;
 use std::ffi::OsString;
 use std::io::{self, Write};
@@ -66,7 +66,7 @@ where
     I: IntoIterator<Item = T>,
     T: Into<OsString> + Clone,
 {
-    let cli = match Cli::try_parse_from(args) {
+    let mut cli = match Cli::try_parse_from(args) {
         Ok(cli) => cli,
         Err(e) => return usage(&e, env, out, err),
     };
@@ -75,6 +75,9 @@ where
         err,
         failed: false,
     };
+    for notice in settle_old_spellings(&mut cli.global) {
+        console.notice(notice);
+    }
     let code = match &cli.command {
         Command::Check { paths } => check(paths, &cli.global, env, &mut console),
         Command::Report { file } => report_command(file, &cli.global, &mut console),
@@ -89,6 +92,30 @@ where
         }
     };
     code.max(console.trouble())
+}
+
+/// Maps the spellings of the previous release (`--format human|short`, `--deny warnings`) to
+/// the current ones, and returns one notice for each that was used.
+fn settle_old_spellings(global: &mut GlobalArgs) -> Vec<&'static str> {
+    let mut notices = Vec::new();
+    let (format, notice) = global.format.current();
+    global.format = format;
+    notices.extend(notice);
+    if global.deny == Some(Deny::Warnings) {
+        notices.push(
+            "`--deny warnings` is now `--fail-on warning`; the old spelling is read until the next release",
+        );
+        global.fail_on.get_or_insert(FailOn::Warning);
+    }
+    notices
+}
+
+/// The severity at which findings fail a check.
+fn failing_severity(global: &GlobalArgs) -> Severity {
+    match global.fail_on {
+        Some(FailOn::Warning) => Severity::Warning,
+        Some(FailOn::Error) | None => Severity::Error,
+    }
 }
 
 /// clap's own messages: help and version go to stdout with exit 0, usage errors to stderr
@@ -149,18 +176,14 @@ fn check(
             console.error(&format!("cannot check {file}: {message}"));
         }
     }
-    let failing = if global.deny == Some(Deny::Warnings) {
-        Severity::Warning
-    } else {
-        Severity::Error
-    };
+    let failing = failing_severity(global);
     let shown = if global.quiet {
         failing
     } else {
         Severity::Note
     };
     let text = match global.format {
-        Format::Human => report::human::render(
+        Format::Cards | Format::Human => report::human::render(
             &reports,
             &HumanOptions {
                 color: env.color(global.color),
@@ -170,7 +193,7 @@ fn check(
                 summary: true,
             },
         ),
-        Format::Short => report::short::render(&reports, shown),
+        Format::Lines | Format::Short => report::short::render(&reports, shown),
         Format::Json => report::json::render(&reports),
         Format::Sarif => report::sarif::render(&reports),
     };
@@ -256,8 +279,8 @@ fn rules_command(global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
 }
 
 fn report_command(file: &Path, global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
-    if !matches!(global.format, Format::Human | Format::Json) {
-        console.error("report prints --format human or --format json");
+    if !matches!(global.format, Format::Cards | Format::Json) {
+        console.error("report prints --format cards (tables for a person) or --format json");
         return EXIT_FAILURE;
     }
     if !file.is_file() {
@@ -341,6 +364,11 @@ impl Console<'_> {
 
     fn note(&mut self, message: &str) {
         self.write_err(&format!("note: {message}\n"));
+    }
+
+    /// A change of spelling the user should know about; never affects the exit code.
+    fn notice(&mut self, message: &str) {
+        self.write_err(&format!("notice: {message}\n"));
     }
 
     fn write_err(&mut self, text: &str) {

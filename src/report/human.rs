@@ -1,14 +1,15 @@
-//! `--format human`: miette's graphical report for each finding — the netlist lines with labels,
-//! the rule and severity, the fix, the numbers behind the finding — and a summary line.
+//! `--format cards`: one card per finding — a heading with the element, its place, the
+//! severity and the rule; the message; the netlist lines with labels (drawn by miette in a frame
+//! of our own, [`card::theme`]); the numbers as a table with their sources; the fix — and a
+//! summary line.
 
+use super::card::{self, paint, Look, GREEN_BOLD, RED_BOLD, YELLOW_BOLD};
 use super::source_window::{has_lone_cr, NetlistSource};
-use super::{format_quantity, ordered, Summary};
+use super::{ordered, Summary};
 use crate::diagnostic::{Finding, Severity};
 use crate::outcome::FileReport;
 use crate::source::{FileId, SourceMap, Span};
-use miette::{
-    Diagnostic, GraphicalReportHandler, GraphicalTheme, LabeledSpan, SourceCode, SourceSpan,
-};
+use miette::{Diagnostic, GraphicalReportHandler, LabeledSpan, SourceCode, SourceSpan};
 use std::collections::{BTreeMap, HashMap};
 use std::fmt;
 
@@ -69,9 +70,6 @@ pub fn render(reports: &[FileReport], options: &HumanOptions) -> String {
 
 pub fn summary_line(summary: &Summary, options: &HumanOptions) -> String {
     let line = summary.line();
-    if !options.color {
-        return line;
-    }
     let code = if summary.errors > 0 || !summary.failed.is_empty() {
         RED_BOLD
     } else if summary.warnings > 0 {
@@ -79,16 +77,15 @@ pub fn summary_line(summary: &Summary, options: &HumanOptions) -> String {
     } else {
         GREEN_BOLD
     };
-    paint(code, &line)
+    paint(look(options), code, &line)
 }
 
-const RED_BOLD: &str = "1;31";
-const YELLOW_BOLD: &str = "1;33";
-const GREEN_BOLD: &str = "1;32";
-const CYAN: &str = "36";
-
-fn paint(code: &str, text: &str) -> String {
-    format!("\u{1b}[{code}m{text}\u{1b}[0m")
+fn look(options: &HumanOptions) -> Look {
+    Look {
+        color: options.color,
+        unicode: options.unicode,
+        width: options.width,
+    }
 }
 
 /// One finding: the snippet of the file that holds its primary span (with every label and
@@ -113,7 +110,8 @@ fn render_finding_with(
     lone_cr: &[bool],
 ) -> String {
     let lone = |file: FileId| lone_cr.get(file.0 as usize).copied().unwrap_or(true);
-    let handler = GraphicalReportHandler::new_themed(theme(options)).with_width(options.width);
+    let look = look(options);
+    let handler = GraphicalReportHandler::new_themed(card::theme(look)).with_width(options.width);
     let primary_file = finding.span.file;
     let mut groups: BTreeMap<FileId, Vec<LabeledSpan>> = BTreeMap::new();
     for (span, text) in involved_lines(finding) {
@@ -123,61 +121,63 @@ fn render_finding_with(
         }
     }
     let mut primary_labels = groups.remove(&primary_file).unwrap_or_default();
+    let mut place = String::new();
     let primary_source = sources.get(primary_file).map(|file| {
         primary_labels.push(LabeledSpan::new_primary_with_span(
             None,
             clamp(&file.text, finding.span),
         ));
+        let (line, _) = file.line_col(finding.span.start.min(file.text.len() as u32));
+        place = format!("{}:{line}", file.name);
         NetlistSource::new(&file.name, file, lone(primary_file))
     });
-    let mut message = finding.message.clone();
+    let mut out = card::heading(finding, &place, look);
+    out.push_str(&card::message(&finding.message, look));
     if let Some(chain) = instance_chain(finding, sources, options.unicode) {
-        message.push('\n');
-        message.push_str(&chain);
+        out.push_str(&card::message(&chain, look));
     }
     let main = Snippet {
-        code: Some(format!("{}[{}]", finding.severity, finding.rule)),
-        severity: miette_severity(finding.severity),
-        message,
-        help: finding.help.as_deref(),
         source: primary_source,
         labels: primary_labels,
     };
-    let mut out = String::new();
-    // Writing into a String cannot fail.
-    let _ = handler.render_report(&mut out, &main);
-    for quantity in &finding.values {
-        let mut line = format!(
-            "{}: {}",
-            quantity.name,
-            format_quantity(quantity.value, &quantity.unit, !options.unicode)
-        );
-        if !quantity.source.is_empty() {
-            line.push_str(&format!(" ({})", quantity.source));
-        }
-        let equals = if options.color {
-            paint(CYAN, "=")
-        } else {
-            "=".to_string()
-        };
-        out.push_str(&format!("  {equals} {line}\n"));
-    }
+    out.push_str(&frame(&handler, &main));
     for (file, labels) in groups {
         let Some(source) = sources.get(file) else {
             continue;
         };
+        out.push_str(&format!("  also in {}:\n", source.name));
         let related = Snippet {
-            code: None,
-            severity: miette::Severity::Advice,
-            message: format!("related lines in {}", source.name),
-            help: None,
             source: Some(NetlistSource::new(&source.name, source, lone(file))),
             labels,
         };
+        out.push_str(&frame(&handler, &related));
+    }
+    let table = card::numbers(&finding.values, look);
+    if !table.is_empty() {
         out.push('\n');
-        let _ = handler.render_report(&mut out, &related);
+        out.push_str(&table);
+    }
+    if let Some(help) = &finding.help {
+        out.push('\n');
+        out.push_str(&card::fix(help, look));
     }
     out
+}
+
+/// The netlist lines of a snippet in the card's frame; nothing when it has no lines to show.
+fn frame(handler: &GraphicalReportHandler, snippet: &Snippet<'_>) -> String {
+    if snippet.source.is_none() || snippet.labels.is_empty() {
+        return String::new();
+    }
+    let mut rendered = String::new();
+    // Writing into a String cannot fail.
+    let _ = handler.render_report(&mut rendered, snippet);
+    let framed = card::frame_only(&rendered);
+    if framed.trim().is_empty() {
+        String::new()
+    } else {
+        format!("\n{framed}")
+    }
 }
 
 /// The other lines of a finding: its labels and the instance lines that placed its element.
@@ -229,23 +229,6 @@ fn instance_chain(finding: &Finding, sources: &SourceMap, unicode: bool) -> Opti
     Some(format!("in {}", parts.join(arrow)))
 }
 
-fn theme(options: &HumanOptions) -> GraphicalTheme {
-    match (options.color, options.unicode) {
-        (true, true) => GraphicalTheme::unicode(),
-        (true, false) => GraphicalTheme::ascii(),
-        (false, true) => GraphicalTheme::unicode_nocolor(),
-        (false, false) => GraphicalTheme::none(),
-    }
-}
-
-fn miette_severity(severity: Severity) -> miette::Severity {
-    match severity {
-        Severity::Error => miette::Severity::Error,
-        Severity::Warning => miette::Severity::Warning,
-        Severity::Note => miette::Severity::Advice,
-    }
-}
-
 /// A span that fits the text and starts and ends on character boundaries, so miette can always
 /// read it.
 fn clamp(text: &str, span: Span) -> SourceSpan {
@@ -261,40 +244,23 @@ fn clamp(text: &str, span: Span) -> SourceSpan {
     (start, end - start).into()
 }
 
+/// The netlist lines of one file that a card shows, for miette to draw. It has no message,
+/// code or help of its own: the card draws those.
 #[derive(Debug)]
 struct Snippet<'a> {
-    code: Option<String>,
-    severity: miette::Severity,
-    message: String,
-    help: Option<&'a str>,
     source: Option<NetlistSource<'a>>,
     labels: Vec<LabeledSpan>,
 }
 
 impl fmt::Display for Snippet<'_> {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        f.write_str(&self.message)
+    fn fmt(&self, _: &mut fmt::Formatter<'_>) -> fmt::Result {
+        Ok(())
     }
 }
 
 impl std::error::Error for Snippet<'_> {}
 
 impl Diagnostic for Snippet<'_> {
-    fn code<'b>(&'b self) -> Option<Box<dyn fmt::Display + 'b>> {
-        self.code
-            .as_ref()
-            .map(|code| Box::new(code) as Box<dyn fmt::Display>)
-    }
-
-    fn severity(&self) -> Option<miette::Severity> {
-        Some(self.severity)
-    }
-
-    fn help<'b>(&'b self) -> Option<Box<dyn fmt::Display + 'b>> {
-        self.help
-            .map(|help| Box::new(help) as Box<dyn fmt::Display>)
-    }
-
     fn source_code(&self) -> Option<&dyn SourceCode> {
         self.source.as_ref().map(|s| s as &dyn SourceCode)
     }

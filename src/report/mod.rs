@@ -4,6 +4,7 @@
 //! text. They share the order of findings ([`ordered`]), the counts ([`Summary`]) and the way a
 //! number is written for a person ([`format_quantity`]).
 
+mod card;
 pub mod facts;
 mod facts_table;
 pub mod human;
