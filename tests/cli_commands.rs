@@ -490,9 +490,9 @@ fn completions_for_each_shell() {
 fn error_finding_exits_1_in_every_format() {
     let broken = testdata("syntax-error.cir");
     kickback().arg("check").arg(&broken).assert().code(1);
-    let short = stdout_of(kickback().args(["check", "--format", "lines"]).arg(&broken));
-    assert!(short.contains("syntax-error.cir:3:"), "{short}");
-    assert!(short.contains(": error syntax — "), "{short}");
+    let lines = stdout_of(kickback().args(["check", "--format", "lines"]).arg(&broken));
+    assert!(lines.contains("syntax-error.cir:3:"), "{lines}");
+    assert!(lines.contains(": error syntax — "), "{lines}");
     let json: serde_json::Value = serde_json::from_str(&stdout_of(
         kickback().args(["check", "--format", "json"]).arg(&broken),
     ))
@@ -502,7 +502,7 @@ fn error_finding_exits_1_in_every_format() {
 }
 
 #[test]
-fn human_output_of_a_finding_through_the_program() {
+fn cards_output_of_a_finding_through_the_program() {
     let dir = tempfile::tempdir().expect("tempdir");
     fs::copy(testdata("syntax-error.cir"), dir.path().join("valve.cir")).expect("copy");
     let output = kickback()

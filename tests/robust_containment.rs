@@ -51,9 +51,9 @@ impl Layout {
 }
 
 /// Runs `check` on `top` in every format and returns (exit code, stdout + stderr) of the
-/// short format; every format must keep the secret out.
+/// lines format; every format must keep the secret out.
 fn check_all_formats(top: &Path, extra: &[&str]) -> (i32, String) {
-    let mut short = None;
+    let mut lines = None;
     for format in ["lines", "cards", "json", "sarif"] {
         let output = kickback()
             .arg("check")
@@ -72,10 +72,10 @@ fn check_all_formats(top: &Path, extra: &[&str]) -> (i32, String) {
             "{format} leaked the secret:\n{text}"
         );
         if format == "lines" {
-            short = Some((output.status.code().unwrap_or(-1), text));
+            lines = Some((output.status.code().unwrap_or(-1), text));
         }
     }
-    short.unwrap()
+    lines.unwrap()
 }
 
 fn assert_refused(top: &Path) {

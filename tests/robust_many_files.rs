@@ -76,12 +76,12 @@ fn every_file_is_checked_or_named_as_failed() {
         .args(["check", "--max-file-size", "5000", "."])
         .output()
         .unwrap();
-    let human = String::from_utf8_lossy(&output.stdout);
-    let summary = human.lines().last().unwrap_or_default();
+    let cards = String::from_utf8_lossy(&output.stdout);
+    let summary = cards.lines().last().unwrap_or_default();
     assert_eq!(
         summary,
         "17 warnings in 20 files (1 suppressed); 2 files could not be checked: big.cir, gone.cir",
-        "{human}"
+        "{cards}"
     );
 }
 

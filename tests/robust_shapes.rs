@@ -16,7 +16,7 @@ fn kickback() -> Command {
     cmd
 }
 
-/// Writes `bytes` as `name` and checks it in the short format: (exit code, stdout, stderr).
+/// Writes `bytes` as `name` and checks it in the lines format: (exit code, stdout, stderr).
 fn check(name: &str, bytes: &[u8], extra: &[&str]) -> (i32, String, String) {
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join(name);

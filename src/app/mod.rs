@@ -14,7 +14,7 @@ use crate::check::{check_file, CheckError, CheckOptions, FileReport};
 use crate::config::Config;
 use crate::diagnostic::Severity;
 use crate::netlist::{Limits, LoadError};
-use crate::report::{self, human::HumanOptions};
+use crate::report::{self, cards::CardsOptions};
 use crate::source::SourceMap;
 use clap::{CommandFactory, Parser};
 use cli::{Cli, Command, Deny, FailOn, Format, GlobalArgs};
@@ -183,9 +183,9 @@ fn check(
         Severity::Note
     };
     let text = match global.format {
-        Format::Cards | Format::Human => report::human::render(
+        Format::Cards | Format::Human => report::cards::render(
             &reports,
-            &HumanOptions {
+            &CardsOptions {
                 color: env.color(global.color),
                 unicode: env.unicode(),
                 width: env.width(),
@@ -193,7 +193,7 @@ fn check(
                 summary: true,
             },
         ),
-        Format::Lines | Format::Short => report::short::render(&reports, shown),
+        Format::Lines | Format::Short => report::lines::render(&reports, shown),
         Format::Json => report::json::render(&reports),
         Format::Sarif => report::sarif::render(&reports),
     };

@@ -1,9 +1,9 @@
 //! `--format cards`: one card per finding — a heading with the element, its place, the
 //! severity and the rule; the message; the netlist lines with labels (drawn by miette in a frame
-//! of our own, [`card::theme`]); the numbers as a table with their sources; the fix — and a
-//! summary line.
+//! of our own, `card_parts::theme`); the numbers as a table with their sources; the fix — and
+//! a summary line.
 
-use super::card::{self, paint, Look, GREEN_BOLD, RED_BOLD, YELLOW_BOLD};
+use super::card_parts::{self as card, paint, Look, GREEN_BOLD, RED_BOLD, YELLOW_BOLD};
 use super::source_window::{has_lone_cr, NetlistSource};
 use super::{ordered, Summary};
 use crate::diagnostic::{Finding, Severity};
@@ -14,7 +14,7 @@ use std::collections::{BTreeMap, HashMap};
 use std::fmt;
 
 #[derive(Clone, Debug, PartialEq, Eq)]
-pub struct HumanOptions {
+pub struct CardsOptions {
     /// ANSI colour. The caller decides (terminal, `--color`, `NO_COLOR`); the renderer obeys.
     pub color: bool,
     /// Box-drawing characters and `→`; plain ASCII otherwise.
@@ -27,9 +27,9 @@ pub struct HumanOptions {
     pub summary: bool,
 }
 
-impl Default for HumanOptions {
+impl Default for CardsOptions {
     fn default() -> Self {
-        HumanOptions {
+        CardsOptions {
             color: false,
             unicode: true,
             width: 100,
@@ -40,7 +40,7 @@ impl Default for HumanOptions {
 }
 
 /// Every finding of every file in order, then the summary line.
-pub fn render(reports: &[FileReport], options: &HumanOptions) -> String {
+pub fn render(reports: &[FileReport], options: &CardsOptions) -> String {
     let mut out = String::new();
     let lone_cr: HashMap<*const FileReport, Vec<bool>> = reports
         .iter()
@@ -68,7 +68,7 @@ pub fn render(reports: &[FileReport], options: &HumanOptions) -> String {
     out
 }
 
-pub fn summary_line(summary: &Summary, options: &HumanOptions) -> String {
+pub fn summary_line(summary: &Summary, options: &CardsOptions) -> String {
     let line = summary.line();
     let code = if summary.errors > 0 || !summary.failed.is_empty() {
         RED_BOLD
@@ -80,7 +80,7 @@ pub fn summary_line(summary: &Summary, options: &HumanOptions) -> String {
     paint(look(options), code, &line)
 }
 
-fn look(options: &HumanOptions) -> Look {
+fn look(options: &CardsOptions) -> Look {
     Look {
         color: options.color,
         unicode: options.unicode,
@@ -90,7 +90,7 @@ fn look(options: &HumanOptions) -> Look {
 
 /// One finding: the snippet of the file that holds its primary span (with every label and
 /// instance line in that file), the fix, the numbers, then the lines it involves in other files.
-pub fn render_finding(finding: &Finding, sources: &SourceMap, options: &HumanOptions) -> String {
+pub fn render_finding(finding: &Finding, sources: &SourceMap, options: &CardsOptions) -> String {
     render_finding_with(finding, sources, options, &lone_cr_files(sources))
 }
 
@@ -106,7 +106,7 @@ fn lone_cr_files(sources: &SourceMap) -> Vec<bool> {
 fn render_finding_with(
     finding: &Finding,
     sources: &SourceMap,
-    options: &HumanOptions,
+    options: &CardsOptions,
     lone_cr: &[bool],
 ) -> String {
     let lone = |file: FileId| lone_cr.get(file.0 as usize).copied().unwrap_or(true);
