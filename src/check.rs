@@ -23,7 +23,8 @@ pub struct CheckOptions {
 pub fn load_config(netlist: &Path, options: &CheckOptions) -> Result<Config, ConfigError> {
     let config = match &options.config_path {
         Some(path) => Config::load(path)?,
-        None => Config::discover(netlist)?.unwrap_or_default(),
+        None => Config::discover_with(netlist, options.limits.allow_outside_includes)?
+            .unwrap_or_default(),
     };
     validate_rule_ids(&config)?;
     Ok(config)

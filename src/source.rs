@@ -173,6 +173,31 @@ pub struct Location {
     pub end_column: usize,
 }
 
+/// What a path that is not a regular file is, in words: `a folder`, `a FIFO`...
+pub fn file_kind(meta: &std::fs::Metadata) -> &'static str {
+    #[cfg(unix)]
+    {
+        use std::os::unix::fs::FileTypeExt;
+        let kind = meta.file_type();
+        if kind.is_fifo() {
+            return "a FIFO";
+        }
+        if kind.is_socket() {
+            return "a socket";
+        }
+        if kind.is_block_device() || kind.is_char_device() {
+            return "a device";
+        }
+    }
+    if meta.is_dir() {
+        "a folder"
+    } else if meta.is_file() {
+        "a regular file"
+    } else {
+        "another kind of entry"
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

@@ -109,7 +109,8 @@ fn thousand_channels() {
     let (cx, context) = timed(|| Context::new(&b.netlist, &circuit, &b.config));
     let ((timers, _), timing) = timed(|| timer::analyze(&cx));
     let ((switches, loads, _), switching_time) = timed(|| switching::analyze(&cx, &timers));
-    let ((resistors, capacitors, _), stress_time) = timed(|| stress::analyze(&cx, &timers));
+    let ((resistors, capacitors, _), stress_time) =
+        timed(|| stress::analyze(&cx, &timers, &switches));
     println!(
         "{channels} channels, {} devices, CPU time: build {built:?}, context {context:?}, \
          timers {timing:?}, switching {switching_time:?} ({} switches, {} loads), \

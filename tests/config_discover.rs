@@ -73,3 +73,57 @@ fn none_when_no_folder_has_one() {
             .is_none());
     }
 }
+
+#[test]
+fn a_config_that_links_out_of_its_folder_is_refused_unread() {
+    let outside = tempfile::tempdir().expect("temp dir");
+    let secret = outside.path().join("secret.toml");
+    fs::write(&secret, "[rules]\nsecret-token-4711 = \"off\"\n").expect("write");
+    let root = tempfile::tempdir().expect("temp dir");
+    std::os::unix::fs::symlink(&secret, root.path().join(FILE_NAME)).expect("link");
+    let netlist = root.path().join("x.cir");
+    fs::write(&netlist, "title\n.end\n").expect("write");
+    let error = Config::discover(&netlist).expect_err("refused");
+    let text = error.to_string();
+    assert!(
+        text.contains("links to a file outside its folder"),
+        "{text}"
+    );
+    assert!(!text.contains("secret-token-4711"), "{text}");
+    // Allowed, it is read (and its unknown rule is then the error).
+    let read = Config::discover_with(&netlist, true).expect("parses");
+    assert!(read.is_some());
+}
+
+#[test]
+fn a_config_that_is_not_a_regular_file_is_an_error_not_skipped() {
+    let root = tempfile::tempdir().expect("temp dir");
+    // A good configuration in the parent must not stand in for the broken one beside the
+    // netlist.
+    fs::write(root.path().join(FILE_NAME), "[rules]\n").expect("write");
+    let deep = root.path().join("board");
+    fs::create_dir_all(deep.join(FILE_NAME)).expect("a folder named like the config");
+    let error = Config::discover(&deep.join("x.cir")).expect_err("a folder");
+    assert!(
+        error
+            .to_string()
+            .contains("it is a folder, not a regular file"),
+        "{error}"
+    );
+
+    let fifo_dir = root.path().join("fifo");
+    fs::create_dir_all(&fifo_dir).expect("mkdir");
+    let made = std::process::Command::new("mkfifo")
+        .arg(fifo_dir.join(FILE_NAME))
+        .status()
+        .is_ok_and(|s| s.success());
+    if made {
+        let error = Config::discover(&fifo_dir.join("x.cir")).expect_err("a FIFO");
+        assert!(
+            error
+                .to_string()
+                .contains("it is a FIFO, not a regular file"),
+            "{error}"
+        );
+    }
+}

@@ -265,6 +265,7 @@ fn discharge_short() -> Kit {
         ),
         wiper_current_a: None,
         current_a: None,
+        set_by_linear_stage: None,
     });
     kit.analysis.resistors.push(ResistorFacts {
         device: pot,
@@ -277,6 +278,7 @@ fn discharge_short() -> Kit {
             "V1 at 9 V, XU1 low, XRV1 wiper at 0 %",
         )),
         current_a: None,
+        set_by_linear_stage: None,
     });
     kit
 }

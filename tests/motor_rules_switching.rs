@@ -390,8 +390,8 @@ fn leg(shared: bool) -> Kit {
     lo.vgs_on_v = Some(point(12.0, "VL high"));
     lo.vgs_off_v = Some(point(0.0, "VL low"));
     if shared {
-        hi.driver.as_mut().unwrap().shared_with = vec![ml];
-        lo.driver.as_mut().unwrap().shared_with = vec![mh];
+        hi.driver.as_mut().unwrap().shared_with = vec![ml].into();
+        lo.driver.as_mut().unwrap().shared_with = vec![mh].into();
     }
     kit.analysis.switches.push(hi);
     kit.analysis.switches.push(lo);

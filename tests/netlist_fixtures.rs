@@ -80,6 +80,7 @@ const CLEAN: &[&str] = &[
     "odd_suffixes.cir",
     "params_forms.cir",
     "source_forms.cir",
+    "blank_dc_value.cir",
     "suppressions.cir",
     "text_after_end.cir",
     "title_looks_like_element.cir",
@@ -126,8 +127,9 @@ const WRONG: &[(&str, &[Expected])] = &[
         // One finding per letter, not one per line.
         "element_unknown_many.cir",
         &[
-            ("element_unknown_many.cir", 6, "element-unknown", "so are 2 more `U` lines"),
-            ("element_unknown_many.cir", 9, "element-unknown", "`Y1`"),
+            ("element_unknown_many.cir", 7, "element-unknown", "so is 1 more such line"),
+            ("element_unknown_many.cir", 9, "element-unknown", "`U3`"),
+            ("element_unknown_many.cir", 10, "element-unknown", "`Y1`"),
         ],
     ),
     (
@@ -568,6 +570,16 @@ fn suppression_comments() {
             ),
         ]
     );
+}
+
+#[test]
+fn a_blank_dc_value_is_unknown_and_a_bare_source_is_zero() {
+    let (flat, _, _) = fixture("blank_dc_value.cir");
+    let spec = |p: &str| element(&flat, p).source.clone().unwrap();
+    // SPICE3 manual: an independent source with no value is 0 V (an ammeter); a `DC` keyword
+    // with its value left blank is a placeholder, not a value.
+    assert_eq!(spec("V1").dc, None);
+    assert_eq!(spec("V2").dc, Some(0.0));
 }
 
 #[test]

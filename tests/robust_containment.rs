@@ -162,7 +162,7 @@ fn device_files_are_refused_or_rejected_without_blocking() {
     // A device named as the netlist itself.
     let output = kickback().args(["check", "/dev/zero"]).output().unwrap();
     assert_eq!(output.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&output.stderr).contains("not a file"));
+    assert!(String::from_utf8_lossy(&output.stderr).contains("not a regular file"));
 }
 
 #[test]
@@ -190,24 +190,57 @@ fn a_fifo_never_blocks() {
         .unwrap();
     let output = kickback().arg("check").arg(&fifo_cir).output().unwrap();
     assert_eq!(output.status.code(), Some(2));
-    assert!(String::from_utf8_lossy(&output.stderr).contains("not a file"));
+    assert!(String::from_utf8_lossy(&output.stderr).contains("it is a FIFO, not a regular file"));
+    // Found in a folder it is named with its reason, and the run says a file was not checked.
     let output = kickback()
         .args(["check", "--format", "lines"])
         .arg(layout.tree.path())
         .output()
         .unwrap();
-    assert!(output.status.code().is_some(), "ends");
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(output.status.code(), Some(2), "{stderr}");
+    assert!(stderr.contains("pipe.cir: it is a FIFO"), "{stderr}");
+    // As an include, it is refused with the reason.
+    assert!(
+        text.contains("`pipe.lib` is a FIFO, not a regular file"),
+        "{text}"
+    );
 }
 
 #[test]
-fn a_directory_as_an_include_is_a_missing_file() {
+fn a_netlist_name_on_a_device_or_a_link_loop_in_a_folder_is_a_named_failure() {
+    let layout = Layout::new();
+    let folder = layout.tree.path();
+    fs::write(folder.join("good.cir"), "good\nV1 a 0 5\nR1 a 0 1k\n.end\n").unwrap();
+    std::os::unix::fs::symlink("/dev/zero", folder.join("zero.cir")).unwrap();
+    std::os::unix::fs::symlink("loop.cir", folder.join("loop.cir")).unwrap();
+    for format in ["cards", "lines", "json", "sarif"] {
+        let output = kickback()
+            .args(["check", "--allow-outside-includes", "--format", format])
+            .arg(folder)
+            .output()
+            .unwrap();
+        let stderr = String::from_utf8_lossy(&output.stderr);
+        assert_eq!(output.status.code(), Some(2), "{format}: {stderr}");
+        assert!(stderr.contains("zero.cir: it is a device"), "{stderr}");
+        assert!(stderr.contains("loop.cir"), "{stderr}");
+    }
+}
+
+#[test]
+fn a_folder_or_a_link_loop_as_an_include_is_refused_with_its_reason() {
     let layout = Layout::new();
     fs::create_dir(layout.tree.path().join("parts.lib")).unwrap();
-    let top = layout.top(".include parts.lib");
+    std::os::unix::fs::symlink("loop.lib", layout.tree.path().join("loop.lib")).unwrap();
+    let top = layout.top(".include parts.lib\n.include loop.lib");
     let (code, text) = check_all_formats(&top, &[]);
-    assert!(code == 0 || code == 1, "{text}");
-    assert!(text.contains("parts.lib"), "{text}");
-    assert!(!text.contains("include-refused"), "{text}");
+    assert_eq!(code, 1, "{text}");
+    assert!(
+        text.contains("`parts.lib` is a folder, not a regular file"),
+        "{text}"
+    );
+    assert!(text.contains("`loop.lib` cannot be read"), "{text}");
+    assert!(text.contains("include-refused"), "{text}");
 }
 
 #[test]
@@ -258,8 +291,26 @@ fn a_committed_config_link_to_a_device_or_a_huge_config_does_not_hang_or_fill_me
     let config = layout.tree.path().join("kickback.toml");
     std::os::unix::fs::symlink("/dev/zero", &config).unwrap();
     let top = layout.top("* no include");
-    // Not a file, so not a configuration: looked past, never opened.
-    kickback().arg("check").arg(&top).assert().code(0);
+    // A link out of the tree is refused before it is opened; allowed, a device is still not a
+    // configuration: an error, never opened, never passed over for a parent's.
+    let output = kickback().arg("check").arg(&top).output().unwrap();
+    assert_eq!(output.status.code(), Some(2));
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert!(
+        stderr.contains("links to a file outside its folder"),
+        "{stderr}"
+    );
+    let output = kickback()
+        .args(["check", "--allow-outside-includes"])
+        .arg(&top)
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(2));
+    let stderr = String::from_utf8_lossy(&output.stderr);
+    assert!(
+        stderr.contains("it is a device, not a regular file"),
+        "{stderr}"
+    );
     fs::remove_file(&config).unwrap();
     fs::write(&config, format!("# {}\n", "x".repeat(2 * 1024 * 1024))).unwrap();
     let output = kickback().arg("check").arg(&top).output().unwrap();

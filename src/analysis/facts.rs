@@ -248,6 +248,65 @@ pub struct Freewheel {
     pub avg_current_a: Option<Range>,
 }
 
+/// The switches that share one drive, seen from one of them: every switch on the drive is
+/// held once, shared by all of them, so that thousands of switches on one driver cost a list
+/// each rather than a list of thousands each.
+#[derive(Clone, Debug, Default)]
+pub struct SharedDrive {
+    /// Every switch on the drive, sorted, this one included.
+    all: std::sync::Arc<[DeviceId]>,
+    /// The switch these facts belong to, left out of every answer.
+    me: Option<DeviceId>,
+}
+
+impl SharedDrive {
+    /// `all` switches on one drive (sorted here), seen from `me`.
+    pub fn new(all: std::sync::Arc<[DeviceId]>, me: DeviceId) -> Self {
+        SharedDrive { all, me: Some(me) }
+    }
+
+    pub fn contains(&self, device: &DeviceId) -> bool {
+        Some(*device) != self.me && self.all.binary_search(device).is_ok()
+    }
+
+    pub fn iter(&self) -> impl Iterator<Item = DeviceId> + '_ {
+        let me = self.me;
+        self.all.iter().copied().filter(move |&d| Some(d) != me)
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.iter().next().is_none()
+    }
+
+    pub fn to_vec(&self) -> Vec<DeviceId> {
+        self.iter().collect()
+    }
+}
+
+impl From<Vec<DeviceId>> for SharedDrive {
+    /// The other switches, listed: none of them is left out.
+    fn from(mut others: Vec<DeviceId>) -> Self {
+        others.sort_unstable();
+        others.dedup();
+        SharedDrive {
+            all: others.into(),
+            me: None,
+        }
+    }
+}
+
+impl PartialEq for SharedDrive {
+    fn eq(&self, other: &Self) -> bool {
+        self.iter().eq(other.iter())
+    }
+}
+
+impl PartialEq<Vec<DeviceId>> for SharedDrive {
+    fn eq(&self, other: &Vec<DeviceId>) -> bool {
+        self.iter().eq(other.iter().copied())
+    }
+}
+
 /// What drives a switch's gate or base.
 #[derive(Clone, Debug, PartialEq)]
 pub struct DriverFacts {
@@ -265,7 +324,7 @@ pub struct DriverFacts {
     /// Resistors and other parts between driver and gate.
     pub network: Vec<DeviceId>,
     /// Other switches whose gates share this drive.
-    pub shared_with: Vec<DeviceId>,
+    pub shared_with: SharedDrive,
     /// A bootstrap or charge pump lifts the drive above the rail: a capacitor from the
     /// switched node to a net a diode feeds (then `vgs_on_v` is the bootstrap estimate, feed
     /// − 0.7 V, as a DC solve cannot see a pump), or the solved gate sits above the drain
@@ -532,6 +591,11 @@ pub struct ResistorFacts {
     pub wiper_current_a: Option<Range>,
     /// Largest current through the part (a pot: through either half).
     pub current_a: Option<Range>,
+    /// A transistor of the same sub-network whose stage kickback could not place (driven by a
+    /// stage that is not switched, say): its bias, set by feedback and by model details a DC
+    /// solve with simplified models does not settle, sets the currents here, so the
+    /// dissipation is not judged.
+    pub set_by_linear_stage: Option<DeviceId>,
 }
 
 /// Voltage across a capacitor (pos − neg in the element's node order) over states.

@@ -56,7 +56,7 @@ pub fn analyze(
     findings.extend(f);
     let (switches, loads, f) = switching::analyze(&cx, &timers);
     findings.extend(f);
-    let (resistors, capacitors, f) = stress::analyze(&cx, &timers);
+    let (resistors, capacitors, f) = stress::analyze(&cx, &timers, &switches);
     findings.extend(f);
     (
         Analysis {

@@ -42,7 +42,7 @@ impl Built {
         if network.node_count() <= 1 {
             // Nothing to solve (a capacitor straight across two rails stamps nothing), but the
             // engine wants at least one unknown: a grounded node of its own changes nothing.
-            let spare = network.add_node("(no free net)");
+            let spare = network.add_named_node("(no free net)");
             let ground = network.ground();
             network.add_resistor(spare, ground, 1.0);
         }

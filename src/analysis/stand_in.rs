@@ -164,7 +164,7 @@ pub fn stamp(
                 } else {
                     data.value("vol").unwrap_or(0.0)
                 };
-                let internal = network.add_node(&format!("logic output #{id}"));
+                let internal = network.add_named_node("(logic output stage)");
                 network.add_voltage_source(internal, gnd, v);
                 out.main = Some(network.add_resistor(internal, o, LOGIC_OUTPUT_OHMS));
             }
@@ -227,9 +227,9 @@ fn stamp_timer(
         } else {
             TIMER_OUTPUT_LOW_V
         };
-        // One internal node per timer: nodes are found by name, and two timers in one
-        // sub-network must not share their output stages.
-        let internal = network.add_node(&format!("timer output stage #{id}"));
+        // One internal node per timer: two timers in one sub-network never share their
+        // output stages (the name only labels error messages).
+        let internal = network.add_named_node("(timer output stage)");
         network.add_voltage_source(internal, gnd, v);
         out.main = Some(network.add_resistor(internal, o, TIMER_OUTPUT_OHMS));
     }
@@ -248,13 +248,30 @@ fn stamp_timer(
     // to switch: the threshold input (current into the pin) while the output is high and the
     // capacitor charges toward it, the trigger input (current out of the pin) while the output
     // is low. Stamping both at once would let them cancel where THR and TRIG share a net.
+    //
+    // Each is a current that saturates at the bias (a current-limited resistor), not an ideal
+    // source: an input stage can push its pin no further than its own rails, so a pin that
+    // nothing else holds settles at the rail instead of at the megavolts an ideal source
+    // would drive through a 1 TΩ leak. Well inside the rails it is the bias current exactly.
     if let (Some(thr), true) = (device.pin(PinRole::Thr), high) {
         let thr = node_of(thr, network);
-        network.add_current_source(thr, gnd, threshold_bias(data));
+        let bias = threshold_bias(data);
+        if bias > 0.0 {
+            network.add_current_limited_resistor(thr, gnd, BIAS_KNEE_V / bias, bias);
+        }
     }
     if let (Some(trig), false) = (device.pin(PinRole::Trig), high) {
         let trig = node_of(trig, network);
-        network.add_current_source(gnd, trig, trigger_bias(data));
+        let bias = trigger_bias(data);
+        match device.pin(PinRole::Vcc) {
+            Some(vcc_net) if bias > 0.0 => {
+                let vcc_node = node_of(vcc_net, network);
+                network.add_current_limited_resistor(vcc_node, trig, BIAS_KNEE_V / bias, bias);
+            }
+            _ => {
+                network.add_current_source(gnd, trig, bias);
+            }
+        }
     }
     if let (Some(ctrl), Some(vcc_net)) = (device.pin(PinRole::Ctrl), device.pin(PinRole::Vcc)) {
         let ctrl = node_of(ctrl, network);
@@ -264,6 +281,11 @@ fn stamp_timer(
         network.add_resistor(ctrl, gnd, 2.0 * r);
     }
 }
+
+/// How far from its rail a comparator input's bias current reaches its full value: the
+/// current-limited resistor that stands in for it has `R = BIAS_KNEE_V / I_bias`, so it carries
+/// the full bias within 0.05 % once the pin is twice this far from the rail.
+const BIAS_KNEE_V: f64 = 0.05;
 
 /// Current into a timer's threshold pin (bipolar about 0.25 µA, from memory).
 pub fn threshold_bias(data: &PartData) -> f64 {

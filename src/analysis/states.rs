@@ -13,6 +13,7 @@ use crate::circuit::{Circuit, DeviceId, Kind, NetId};
 use crate::config::Config;
 use crate::netlist::{FlatNetlist, Waveform};
 use std::collections::BTreeMap;
+use std::sync::Arc;
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, PartialOrd, Ord, Hash)]
 pub enum Corner {
@@ -113,6 +114,8 @@ pub struct Context<'a> {
     pub cache: SolveCache,
     /// Work bound of one timer's analysis, in solves ([`super::budget::TIMER_SOLVES`]).
     pub timer_solves: usize,
+    /// Each net's name, shared with every network built here (a node's name costs no copy).
+    net_names: Vec<Arc<str>>,
 }
 
 impl<'a> Context<'a> {
@@ -128,6 +131,11 @@ impl<'a> Context<'a> {
             options: SolveOptions::default(),
             cache: SolveCache::new(),
             timer_solves: super::budget::TIMER_SOLVES,
+            net_names: circuit
+                .nets
+                .iter()
+                .map(|n| Arc::from(n.name.as_str()))
+                .collect(),
         }
     }
 
@@ -139,6 +147,13 @@ impl<'a> Context<'a> {
             .and_then(|d| self.netlist.elements.get(d.element))
             .map(|e| e.path.as_str())
             .unwrap_or("?")
+    }
+
+    fn net_name(&self, net: NetId) -> Arc<str> {
+        self.net_names
+            .get(net)
+            .cloned()
+            .unwrap_or_else(|| Arc::from("?"))
     }
 
     pub fn supply(&self, device: DeviceId) -> Option<&SupplyCorners> {
@@ -342,7 +357,7 @@ impl<'a> Context<'a> {
         let mut nodes: BTreeMap<NetId, Node> = BTreeMap::new();
         let ground = network.ground();
         for &net in &component.nets {
-            let node = network.add_node(&self.circuit.nets[net].name);
+            let node = network.add_named_node(self.net_name(net));
             // A leak far below any real part keeps capacitor-only nets solvable.
             network.add_resistor(node, ground, 1e12);
             nodes.insert(net, node);
@@ -358,12 +373,12 @@ impl<'a> Context<'a> {
                         ground
                     }
                     Some(v) => {
-                        let n = network.add_node(&self.circuit.nets[net].name);
+                        let n = network.add_named_node(self.net_name(net));
                         network.add_voltage_source(n, ground, v);
                         n
                     }
                     None => {
-                        let n = network.add_node(&self.circuit.nets[net].name);
+                        let n = network.add_named_node(self.net_name(net));
                         network.add_resistor(n, ground, 1e12);
                         n
                     }

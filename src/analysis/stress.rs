@@ -43,7 +43,16 @@ const PWM_MIN_HZ: f64 = 20.0;
 pub fn analyze(
     cx: &Context<'_>,
     timers: &[TimerFacts],
+    switches: &[super::SwitchFacts],
 ) -> (Vec<ResistorFacts>, Vec<CapacitorFacts>, Vec<Finding>) {
+    // Transistors kickback could not place (driven by a stage that is not switched, say): what
+    // they conduct rests on a bias the DC solve does not settle. A stage taken for an
+    // amplifier has a bias the solve does settle (a divider, degeneration), and is judged.
+    let linear: BTreeMap<DeviceId, ()> = switches
+        .iter()
+        .filter(|s| s.stage == super::Stage::Unknown)
+        .map(|s| (s.device, ()))
+        .collect();
     let timer_map: super::switching::Timers<'_> = timers.iter().map(|t| (t.device, t)).collect();
     let mut by_component: BTreeMap<usize, Vec<DeviceId>> = BTreeMap::new();
     for (id, d) in cx.circuit.devices.iter().enumerate() {
@@ -98,7 +107,12 @@ pub fn analyze(
             let facts = if rests_on_unknown_part {
                 Vec::new()
             } else {
-                resistor_facts(cx, &timer_map, component, &s, &parts)
+                let mut facts = resistor_facts(cx, &timer_map, component, &s, &parts);
+                let carried = carried_by_unplaced_stages(cx, component, &linear);
+                for f in &mut facts {
+                    f.set_by_linear_stage = carried.get(&f.device).copied();
+                }
+                facts
             };
             Some((c, s, finding, facts))
         })
@@ -127,6 +141,50 @@ pub fn analyze(
         timing_swing(timers, c);
     }
     (resistors, capacitors, findings)
+}
+
+/// Resistors that carry the main current of a transistor kickback could not place: reached
+/// from its drain and source (collector and emitter) through resistors, without crossing a
+/// rail, by transistor. The first transistor (in device order) that reaches one names it.
+fn carried_by_unplaced_stages(
+    cx: &Context<'_>,
+    component: &Component,
+    unplaced: &BTreeMap<DeviceId, ()>,
+) -> BTreeMap<DeviceId, DeviceId> {
+    let mut carried = BTreeMap::new();
+    for &t in component
+        .devices
+        .iter()
+        .filter(|d| unplaced.contains_key(d))
+    {
+        let device = &cx.circuit.devices[t];
+        let mut nets: Vec<NetId> = [
+            PinRole::Drain,
+            PinRole::Source,
+            PinRole::Collector,
+            PinRole::Emitter,
+        ]
+        .into_iter()
+        .filter_map(|role| device.pin(role))
+        .collect();
+        let mut seen: Vec<NetId> = Vec::new();
+        while let Some(net) = nets.pop() {
+            let held = cx.partition.fixed.get(net).copied().flatten().is_some();
+            if held || seen.contains(&net) {
+                continue;
+            }
+            seen.push(net);
+            for &(other, _) in cx.circuit.devices_on(net) {
+                let d = &cx.circuit.devices[other];
+                if !matches!(d.kind, Kind::Resistor | Kind::Potentiometer) {
+                    continue;
+                }
+                carried.entry(other).or_insert(t);
+                nets.extend(d.pins.iter().map(|p| p.net).filter(|&n| n != net));
+            }
+        }
+    }
+    carried
 }
 
 /// What is measured on a part.
@@ -346,6 +404,7 @@ fn resistor_facts(
             peak_power_w: power,
             wiper_current_a: wiper.map(|(r, _)| r),
             current_a: sampled(s, &|x| largest_current(device, x)).map(|(r, _)| r),
+            set_by_linear_stage: None,
         });
     }
     let grid_peaks: Vec<f64> = facts.iter().map(|f| f.peak_power_w.max).collect();

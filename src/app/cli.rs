@@ -42,8 +42,9 @@ pub struct GlobalArgs {
     /// When to colour the cards format; `auto` colours a terminal unless NO_COLOR is set.
     #[arg(long, global = true, value_enum, default_value_t = ColorChoice::Auto, value_name = "WHEN")]
     pub color: ColorChoice,
-    /// Refuse netlists that flatten to more elements than this [default: 5000000].
-    #[arg(long, global = true, value_name = "N")]
+    /// Refuse netlists that flatten to more elements than this; a line with more than ten
+    /// node words counts once more for each extra one [default: 1000000].
+    #[arg(long, global = true, value_name = "N", value_parser = clap::value_parser!(u64).range(1..=MAX_ELEMENTS))]
     pub max_elements: Option<u64>,
     /// Refuse netlist and include files larger than this many bytes [default: 268435456].
     #[arg(long, global = true, value_name = "BYTES", value_parser = clap::value_parser!(u64).range(1..=MAX_OFFSET))]
@@ -63,6 +64,10 @@ pub struct GlobalArgs {
 
 /// Positions in a file are 32-bit, so no file or statement may be longer.
 const MAX_OFFSET: u64 = u32::MAX as u64;
+
+/// More elements than this is no board, and would not fit in memory on any machine the tool
+/// runs on (each flattened element costs kilobytes through the analyses).
+const MAX_ELEMENTS: u64 = 100_000_000;
 
 /// Deeper nesting than this is no real design, and the walk over it must stay shallow.
 const MAX_DEPTH: u64 = 256;

@@ -64,11 +64,26 @@ fn walk(
                 // Symlinked netlists count; the walk itself does not follow linked folders.
                 let is_file = entry.file_type().is_some_and(|t| t.is_file())
                     || (entry.path_is_symlink() && path.is_file());
-                if !is_file && entry.path_is_symlink() && is_netlist(path) {
-                    // A link to nothing is a netlist that cannot be read, not one to skip.
-                    if let Err(e) = std::fs::metadata(path) {
-                        failures.push((tidy(path), e.to_string()));
-                        found = true;
+                if !is_file && is_netlist(path) {
+                    // A netlist name on something that is not a file (a FIFO, a device, a link
+                    // to one or to nothing) cannot be checked: it is named and counted, never
+                    // opened. A folder with such a name is walked as a folder.
+                    match std::fs::metadata(path) {
+                        Ok(meta) if meta.is_dir() => {}
+                        Ok(meta) => {
+                            failures.push((
+                                tidy(path),
+                                format!(
+                                    "it is {}, not a regular file, and is not read",
+                                    crate::source::file_kind(&meta)
+                                ),
+                            ));
+                            found = true;
+                        }
+                        Err(e) => {
+                            failures.push((tidy(path), e.to_string()));
+                            found = true;
+                        }
                     }
                     continue;
                 }

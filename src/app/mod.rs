@@ -159,46 +159,100 @@ fn check(
             ));
         }
     }
-    let mut reports: Vec<FileReport> = found
-        .files
-        .par_iter()
-        .map(|path| check_file(path, &options))
-        .collect();
-    reports.extend(found.failures.into_iter().map(unreadable));
-    reports.sort_by(|a, b| a.path.cmp(&b.path));
-
-    for (file, message) in report::failures(&reports) {
-        // Most reasons already name the netlist ("cannot read a.cir: ..."); others name only
-        // their own file (a config line), so the netlist is added.
-        if message.contains(&file) {
-            console.error(&message);
-        } else {
-            console.error(&format!("cannot check {file}: {message}"));
-        }
-    }
     let failing = failing_severity(global);
     let shown = if global.quiet {
         failing
     } else {
         Severity::Note
     };
+    let cards = CardsOptions {
+        color: env.color(global.color),
+        unicode: env.unicode(),
+        width: env.width(),
+        min_severity: shown,
+        summary: false,
+    };
+    // Files are checked a batch at a time, in path order; the cards and lines formats print
+    // each batch as soon as it is done and keep only the counts, so a run over many boards
+    // neither waits for the last one to say anything nor holds every report until the end.
+    // JSON and SARIF are one document each: their reports are kept and written at the end.
+    let streamed = matches!(
+        global.format,
+        Format::Cards | Format::Lines | Format::Human | Format::Short
+    );
+    let mut jobs: Vec<Job> = found.files.into_iter().map(Job::Check).collect();
+    jobs.extend(found.failures.into_iter().map(Job::Unreadable));
+    jobs.sort_by(|a, b| a.path().cmp(b.path()));
+    let batch = rayon::current_num_threads().max(1) * 2;
+    let mut kept: Vec<FileReport> = Vec::new();
+    let mut totals = report::Summary::default();
+    let mut code = EXIT_CLEAN;
+    for chunk in jobs.chunks(batch) {
+        let reports: Vec<FileReport> = chunk
+            .par_iter()
+            .map(|job| match job {
+                Job::Check(path) => check_file(path, &options),
+                Job::Unreadable(failure) => unreadable(failure.clone()),
+            })
+            .collect();
+        for (file, message) in report::failures(&reports) {
+            // Most reasons already name the netlist ("cannot read a.cir: ..."); others name
+            // only their own file (a config line), so the netlist is added.
+            if message.contains(&file) {
+                console.error(&message);
+            } else {
+                console.error(&format!("cannot check {file}: {message}"));
+            }
+        }
+        code = code.max(outcome(&reports, failing));
+        if streamed {
+            add_counts(&mut totals, &report::Summary::of(&reports));
+            let text = match global.format {
+                Format::Cards | Format::Human => report::cards::render(&reports, &cards),
+                _ => report::lines::render(&reports, shown),
+            };
+            console.print(&text);
+        } else {
+            kept.extend(reports);
+        }
+    }
     let text = match global.format {
-        Format::Cards | Format::Human => report::cards::render(
-            &reports,
-            &CardsOptions {
-                color: env.color(global.color),
-                unicode: env.unicode(),
-                width: env.width(),
-                min_severity: shown,
-                summary: true,
-            },
-        ),
-        Format::Lines | Format::Short => report::lines::render(&reports, shown),
-        Format::Json => report::json::render(&reports),
-        Format::Sarif => report::sarif::render(&reports),
+        Format::Cards | Format::Human => {
+            totals.failed.sort();
+            let mut line = report::cards::summary_line(&totals, &cards);
+            line.push('\n');
+            line
+        }
+        Format::Lines | Format::Short => String::new(),
+        Format::Json => report::json::render(&kept),
+        Format::Sarif => report::sarif::render(&kept),
     };
     console.print(&text);
-    outcome(&reports, failing)
+    code
+}
+
+/// A path to check, or one that could not be read or walked, with why.
+enum Job {
+    Check(PathBuf),
+    Unreadable((PathBuf, String)),
+}
+
+impl Job {
+    fn path(&self) -> &Path {
+        match self {
+            Job::Check(path) | Job::Unreadable((path, _)) => path,
+        }
+    }
+}
+
+/// Adds one batch's counts to the run's.
+fn add_counts(totals: &mut report::Summary, batch: &report::Summary) {
+    totals.errors = totals.errors.saturating_add(batch.errors);
+    totals.warnings = totals.warnings.saturating_add(batch.warnings);
+    totals.notes = totals.notes.saturating_add(batch.notes);
+    totals.suppressed = totals.suppressed.saturating_add(batch.suppressed);
+    totals.files = totals.files.saturating_add(batch.files);
+    totals.failed.extend(batch.failed.iter().cloned());
 }
 
 /// The exit code of a check: 2 when any file could not be checked, 1 when a finding is at the

@@ -93,7 +93,10 @@ fn read_bounded(path: &Path) -> Result<String, String> {
     use std::io::Read;
     let meta = std::fs::metadata(path).map_err(|e| e.to_string())?;
     if !meta.is_file() {
-        return Err("not a file".into());
+        return Err(format!(
+            "it is {}, not a regular file",
+            crate::source::file_kind(&meta)
+        ));
     }
     let file = std::fs::File::open(path).map_err(|e| e.to_string())?;
     let mut bytes = Vec::new();
@@ -133,6 +136,18 @@ impl Config {
     /// Finds `kickback.toml` beside `netlist` or in a parent folder, up to the filesystem root,
     /// and loads the first one found.
     pub fn discover(netlist: &Path) -> Result<Option<Config>, ConfigError> {
+        Config::discover_with(netlist, false)
+    }
+
+    /// The `kickback.toml` beside `netlist` or in the nearest parent folder that has one.
+    /// The same containment as for includes: a `kickback.toml` that links out of the folder it
+    /// stands in is refused before it is opened (unless `allow_outside`), and one that is not a
+    /// regular file (a FIFO, a folder, a device, a broken link) is an error rather than passed
+    /// over for a parent's.
+    pub fn discover_with(
+        netlist: &Path,
+        allow_outside: bool,
+    ) -> Result<Option<Config>, ConfigError> {
         let absolute = netlist
             .canonicalize()
             .or_else(|_| std::path::absolute(netlist))
@@ -144,14 +159,31 @@ impl Config {
         };
         for folder in start.ancestors() {
             let candidate = folder.join(FILE_NAME);
-            if candidate.is_file() {
-                return Config::load(&candidate).map(Some);
+            if std::fs::symlink_metadata(&candidate).is_err() {
+                continue;
             }
+            let refused = |message: String| ConfigError {
+                path: candidate.clone(),
+                line: 1,
+                column: 1,
+                key: None,
+                message,
+            };
+            let target = std::fs::canonicalize(&candidate)
+                .map_err(|e| refused(format!("cannot read the configuration: {e}")))?;
+            let home = std::fs::canonicalize(folder).unwrap_or_else(|_| folder.to_path_buf());
+            if !allow_outside && !target.starts_with(&home) {
+                return Err(refused(
+                    "it links to a file outside its folder and is not read \
+                     (--allow-outside-includes reads it, or name a configuration with --config)"
+                        .into(),
+                ));
+            }
+            return Config::load(&candidate).map(Some);
         }
         Ok(None)
     }
 
-    /// The `[supply.NAME]` entry for a source element name, case-insensitive.
     pub fn supply(&self, element: &str) -> Option<&SupplyConfig> {
         self.supplies
             .iter()

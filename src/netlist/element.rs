@@ -119,6 +119,19 @@ pub fn parse_with<'a>(
         'K' => cx.coupling(pos, out),
         'X' => cx.instance(pos, out, keep),
         'A' => cx.code_model(items, out),
+        _ if is_schematic_marker(items, |i| cx.word(Some(i))) => Err(Box::new(
+            Finding::new(
+                "element-unknown",
+                Severity::Note,
+                view.span(),
+                format!(
+                    "`{name}` is a schematic marker (a plot probe or an initial-condition \
+                     mark) that a netlist converter removes before simulation; the line is \
+                     skipped"
+                ),
+            )
+            .with_element(name, None),
+        )),
         _ => Err(Box::new(
             Finding::new(
                 "element-unknown",
@@ -130,6 +143,20 @@ pub fn parse_with<'a>(
             )
             .with_element(name, None),
         )),
+    }
+}
+
+/// A line of one or two nodes and a marker word (`plot_v1`, `plot_db`, `IC`): schematic
+/// front ends write probes and initial-condition marks this way and convert them before the
+/// simulator sees the deck.
+fn is_schematic_marker<'i>(items: &'i [Item], word: impl Fn(&'i Item) -> Option<&'i str>) -> bool {
+    let words: Vec<&str> = items.iter().filter_map(word).collect();
+    match words.as_slice() {
+        [_, marker] | [_, _, marker] => {
+            let m = marker.to_ascii_lowercase();
+            m.starts_with("plot_") || m == "ic"
+        }
+        _ => false,
     }
 }
 

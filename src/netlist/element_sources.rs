@@ -50,6 +50,7 @@ impl<'a> Ctx<'_, 'a> {
                 // A bare `DC` before `AC` or a waveform (or at the end) gives no value; some
                 // schematic exports write it so (`DC ac=1 AC 1`).
                 Some(w) if w.eq_ignore_ascii_case("dc") && self.no_value_follows(next) => {
+                    form.blank_dc = next.is_none();
                     j += 1;
                 }
                 Some(w) if w.eq_ignore_ascii_case("dc") => {

@@ -251,7 +251,19 @@ pub struct FlatNetlist {
     /// were checked as definitions (their lines for syntax) rather than flattened; rules about
     /// a whole circuit (dangling nets, missing supplies) have nothing to judge in it.
     pub is_library: bool,
-    /// Nets that element expressions read (`B1 out 0 V=V(ctl)*2`, `R=V(r2)`), flattened and
-    /// sorted: a net whose only wire is a source may still be in use.
+    /// Nets that element expressions read (`B1 out 0 V=V(ctl)*2`, `R=V(r2)`), and the words
+    /// of lines skipped as unknown elements, flattened and sorted (case-blind): a net whose
+    /// only wire is a source, or whose other wires kickback skipped, may still be in use.
     pub sensed_nets: Vec<String>,
+}
+
+impl FlatNetlist {
+    /// True when an expression reads the net or a skipped line may wire it (see
+    /// [`FlatNetlist::sensed_nets`]).
+    pub fn is_sensed(&self, net: &str) -> bool {
+        let key = net.to_ascii_lowercase();
+        self.sensed_nets
+            .binary_search_by(|n| n.to_ascii_lowercase().cmp(&key))
+            .is_ok()
+    }
 }

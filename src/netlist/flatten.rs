@@ -7,7 +7,7 @@ use super::deck::Deck;
 use super::element::{self, Keep, Parsed, XLink};
 use super::expr::Mode;
 use super::flat::{FlatElement, KeptSubckt, Num};
-use super::lex::Head;
+use super::lex::{Head, TokKind};
 use super::load::StmtRef;
 use super::scope::{quiet, Scope};
 use super::source_spec::source_spec;
@@ -17,6 +17,10 @@ use crate::diagnostic::{Finding, InstanceStep};
 use crate::source::Span;
 use std::cell::RefCell;
 use std::collections::{HashMap, HashSet};
+
+/// Node words an element statement holds before its extra ones count as more elements: a
+/// MOSFET with its bulk and model, a 555's eight pins and its name, fit.
+const WORDS_PER_ELEMENT: usize = 10;
 
 /// Caches the caller's keep-whole decision per subcircuit name.
 pub struct KeepCache<'k> {
@@ -114,14 +118,20 @@ impl<'d, 'a> Flattener<'d, 'a> {
             return known;
         }
         self.on_stack[def] = true;
-        let mut total = self.deck.defs[def].elements.len() as u64;
+        let mut total = self.deck.defs[def]
+            .elements
+            .iter()
+            .map(|&at| self.weight(at))
+            .fold(0u64, u64::saturating_add);
         let mut height = 0usize;
         let xs = self.x_lines(def);
         for at in xs {
             let Some((XLink::Expand(child), span, name)) = self.link(def, at) else {
                 continue;
             };
-            total -= 1;
+            // The instance line itself becomes its subcircuit's elements; its extra
+            // connections still count.
+            total = total.saturating_sub(1);
             let child_name = self.deck.defs[child].name;
             if self.on_stack[child] {
                 self.block(at, span, format!("`{name}` places subcircuit `{child_name}` inside itself (recursive instantiation); it is not expanded"));
@@ -142,6 +152,24 @@ impl<'d, 'a> Flattener<'d, 'a> {
         self.on_stack[def] = false;
         self.memo[def] = Some((total, height));
         (total, height)
+    }
+
+    /// What one element statement counts against `max_elements`: one, plus one for every node
+    /// word past the tenth (the words before the first `=`, `{` or `(`), so that one line
+    /// with millions of nodes meets the limit as millions of elements would.
+    fn weight(&self, at: StmtRef) -> u64 {
+        let Some(lexed) = self.deck.files.get(at.0 as usize) else {
+            return 1;
+        };
+        let Some(stmt) = lexed.stmts.get(at.1 as usize) else {
+            return 1;
+        };
+        let words = lexed
+            .toks_of(stmt)
+            .iter()
+            .take_while(|tok| tok.kind == TokKind::Word)
+            .count();
+        1 + words.saturating_sub(WORDS_PER_ELEMENT) as u64
     }
 
     fn too_deep(&self, name: &str) -> String {
@@ -201,7 +229,13 @@ impl<'d, 'a> Flattener<'d, 'a> {
                 chain: self.biggest_chain(),
             });
         }
-        self.out.reserve(total as usize);
+        // The count follows the input: ask for the memory without aborting when it is not there.
+        let wanted = usize::try_from(total).unwrap_or(usize::MAX);
+        if self.out.try_reserve(wanted).is_err() {
+            return Err(LoadError::OutOfMemory {
+                what: format!("{total} flattened elements"),
+            });
+        }
         let top = Inst {
             path: String::new(),
             ports: Vec::new(),

@@ -79,6 +79,21 @@ pub struct Loader<'s> {
     walked: u64,
     /// Top-level `.param` values seen so far, for `.if` conditions.
     condition_params: ConditionParams,
+    /// Where each (including file, path as written) leads.
+    resolved: HashMap<(usize, String), Target>,
+    /// Statements each (file, lowercase section) brings in with its own includes.
+    costs: HashMap<(usize, Option<String>), u64>,
+}
+
+/// What an include leads to.
+#[derive(Clone, Debug)]
+enum Target {
+    /// Index into [`Loaded::files`].
+    File(usize),
+    /// No such file: the models and subcircuits it would define are reported as missing.
+    Missing,
+    /// Not read, with why (the text follows the include's name).
+    Refused(String),
 }
 
 impl<'s> Loader<'s> {
@@ -96,6 +111,8 @@ impl<'s> Loader<'s> {
             depth_reported: false,
             walked: 0,
             condition_params: ConditionParams::default(),
+            resolved: HashMap::new(),
+            costs: HashMap::new(),
         }
     }
 
@@ -379,10 +396,10 @@ impl<'s> Loader<'s> {
             path: shown.clone(),
             span,
         };
-        let Some(root) = self.origin.as_ref().map(|o| o.root.clone()) else {
+        if self.origin.is_none() {
             self.out.missing.push(missing);
             return;
-        };
+        }
         if self.chain.len() > self.limits.max_depth {
             self.refuse(
                 span,
@@ -393,35 +410,16 @@ impl<'s> Loader<'s> {
             );
             return;
         }
-        let portable = written.replace('\\', "/");
-        let from_dir = self.info[from]
-            .canonical
-            .as_ref()
-            .and_then(|p| p.parent().map(Path::to_path_buf))
-            .unwrap_or_else(|| root.clone());
-        let candidate = normalize(&from_dir.join(&portable));
-        let allow = self.limits.allow_outside_includes;
-        if !allow && !candidate.starts_with(&root) {
-            self.refuse(span, format!("`{shown}` is outside the netlist's folder tree and is not read (--allow-outside-includes reads it)"));
-            return;
-        }
-        let canonical = match std::fs::canonicalize(&candidate) {
-            Ok(c) => c,
-            Err(_) => {
+        let file = match self.resolve(from, written) {
+            Target::File(file) => file,
+            Target::Missing => {
                 self.out.missing.push(missing);
                 return;
             }
-        };
-        if !allow && !canonical.starts_with(&root) {
-            self.refuse(span, format!("`{shown}` leads outside the netlist's folder tree (through a link) and is not read (--allow-outside-includes reads it)"));
-            return;
-        }
-        let file = match self.by_path.get(&canonical) {
-            Some(&f) => f,
-            None => match self.read(from, &portable, &canonical, span, &shown) {
-                Some(f) => f,
-                None => return,
-            },
+            Target::Refused(why) => {
+                self.refuse(span, format!("`{shown}` {why}"));
+                return;
+            }
         };
         if let Some(pos) = self
             .chain
@@ -441,78 +439,166 @@ impl<'s> Loader<'s> {
             ));
             return;
         }
-        let range = match &section {
-            None => Some((0, self.out.files[file].stmts.len())),
-            Some(name) => self.out.files[file]
-                .sections
-                .get(&name.to_ascii_lowercase())
-                .map(|&(h, e)| (h + 1, e)),
-        };
-        let Some((start, end)) = range else {
+        let Some((start, end)) = self.range(file, section.as_deref()) else {
             self.out.missing.push(missing);
             return;
         };
         // One file included over and over costs its statements each time: bound the total
-        // before it is walked, as flattening bounds elements.
-        let adds = end.saturating_sub(start) as u64;
-        self.walked = self.walked.saturating_add(adds);
-        if self.walked > self.limits.max_elements {
-            self.out.statements_over_limit.get_or_insert(self.walked);
+        // before anything is walked, from what the include would bring in with everything it
+        // includes in turn, so a deck that would pass the limit is refused at once.
+        let mut stack = self.chain.clone();
+        let adds = self.expanded(file, section.as_deref(), &mut stack);
+        if self.walked.saturating_add(adds) > self.limits.max_elements {
+            self.out
+                .statements_over_limit
+                .get_or_insert(self.walked.saturating_add(adds));
             return;
         }
+        self.walked = self.walked.saturating_add(end.saturating_sub(start) as u64);
         self.chain.push((file, section));
         self.walk(file, start, end);
         self.chain.pop();
     }
 
-    /// Reads, registers and lexes an include; `None` when it cannot be used.
-    fn read(
+    /// The statements of `file` an include of `section` (or of the whole file) walks.
+    fn range(&self, file: usize, section: Option<&str>) -> Option<(usize, usize)> {
+        match section {
+            None => Some((0, self.out.files[file].stmts.len())),
+            Some(name) => self.out.files[file]
+                .sections
+                .get(&name.to_ascii_lowercase())
+                .map(|&(h, e)| (h + 1, e)),
+        }
+    }
+
+    /// Statements an include of `file` (`section`) brings in, counting what it includes in
+    /// turn, each time it is included; `.if` branches are all counted, so this is an upper
+    /// bound. Each (file, section) is worked out once; a cycle adds nothing (the walk reports
+    /// it). `stack` holds the includes being counted.
+    fn expanded(
         &mut self,
-        from: usize,
-        portable: &str,
-        canonical: &Path,
-        span: Span,
-        shown: &str,
-    ) -> Option<usize> {
+        file: usize,
+        section: Option<&str>,
+        stack: &mut Vec<(usize, Option<String>)>,
+    ) -> u64 {
+        let key = (file, section.map(str::to_ascii_lowercase));
+        if let Some(&cost) = self.costs.get(&key) {
+            return cost;
+        }
+        let Some((start, end)) = self.range(file, section) else {
+            return 0;
+        };
+        let mut total = end.saturating_sub(start) as u64;
+        if stack.len() > self.limits.max_depth {
+            return total;
+        }
+        stack.push(key.clone());
+        let mut i = start;
+        while i < end && total <= self.limits.max_elements {
+            let head = self.out.files[file].stmts.get(i).map(|s| s.head);
+            let nested = match head {
+                Some(Head::Dot(Dot::Include)) => self.argument(file, i, 1).map(|p| (p, None)),
+                Some(Head::Dot(Dot::Lib)) => {
+                    if let Some(&section_end) = self.out.files[file].section_end.get(&i) {
+                        i = section_end + 1;
+                        continue;
+                    }
+                    self.argument(file, i, 1)
+                        .map(|p| (p, self.argument(file, i, 2)))
+                }
+                _ => None,
+            };
+            if let Some((written, nested_section)) = nested {
+                if let Target::File(target) = self.resolve(file, &written) {
+                    let looped = stack.iter().any(|(f, s)| {
+                        *f == target && sections_equal(s.as_deref(), nested_section.as_deref())
+                    });
+                    if !looped {
+                        let cost = self.expanded(target, nested_section.as_deref(), stack);
+                        total = total.saturating_add(cost);
+                    }
+                }
+            }
+            i += 1;
+        }
+        stack.pop();
+        self.costs.insert(key, total);
+        total
+    }
+
+    /// Where an include written `written` in file `from` leads: containment is checked on the
+    /// path as written and again after links are resolved, before anything is opened; each
+    /// file is read once and each (file, path) pair resolved once.
+    fn resolve(&mut self, from: usize, written: &str) -> Target {
+        let key = (from, written.to_string());
+        if let Some(target) = self.resolved.get(&key) {
+            return target.clone();
+        }
+        let target = self.resolve_uncached(from, written);
+        self.resolved.insert(key, target.clone());
+        target
+    }
+
+    fn resolve_uncached(&mut self, from: usize, written: &str) -> Target {
+        let Some(root) = self.origin.as_ref().map(|o| o.root.clone()) else {
+            return Target::Missing;
+        };
+        let portable = written.replace('\\', "/");
+        let from_dir = self.info[from]
+            .canonical
+            .as_ref()
+            .and_then(|p| p.parent().map(Path::to_path_buf))
+            .unwrap_or_else(|| root.clone());
+        let candidate = normalize(&from_dir.join(&portable));
+        let allow = self.limits.allow_outside_includes;
+        if !allow && !candidate.starts_with(&root) {
+            return Target::Refused(
+                "is outside the netlist's folder tree and is not read (--allow-outside-includes reads it)".into(),
+            );
+        }
+        let canonical = match std::fs::canonicalize(&candidate) {
+            Ok(c) => c,
+            // No such file (or a link to none): its models and subcircuits are reported missing.
+            Err(e) if e.kind() == std::io::ErrorKind::NotFound => return Target::Missing,
+            // A link loop, a folder that cannot be entered: named, with the reason.
+            Err(e) => return Target::Refused(format!("cannot be read: {e}")),
+        };
+        if !allow && !canonical.starts_with(&root) {
+            return Target::Refused("leads outside the netlist's folder tree (through a link) and is not read (--allow-outside-includes reads it)".into());
+        }
+        match self.by_path.get(&canonical) {
+            Some(&f) => Target::File(f),
+            None => self.read(from, &portable, &canonical),
+        }
+    }
+
+    /// Reads, registers and lexes an include that resolved to `canonical`.
+    fn read(&mut self, from: usize, portable: &str, canonical: &Path) -> Target {
         let size = match std::fs::metadata(canonical) {
             Ok(m) if m.is_file() => m.len(),
-            _ => {
-                self.out.missing.push(MissingInclude {
-                    path: shown.to_string(),
-                    span,
-                });
-                return None;
+            Ok(m) => {
+                return Target::Refused(format!(
+                    "is {}, not a regular file, and is not read",
+                    crate::source::file_kind(&m)
+                ))
             }
+            Err(e) => return Target::Refused(format!("cannot be read: {e}")),
         };
         if size > self.limits.max_file_bytes {
-            self.refuse(
-                span,
-                format!(
-                    "`{shown}` is {size} bytes, above the file size limit of {} bytes (--max-file-size), and is not read",
-                    self.limits.max_file_bytes
-                ),
-            );
-            return None;
+            return Target::Refused(format!(
+                "is {size} bytes, above the file size limit of {} bytes (--max-file-size), and is not read",
+                self.limits.max_file_bytes
+            ));
         }
         let bytes = match super::read_limited(canonical, self.limits.max_file_bytes) {
             Ok(Some(bytes)) => bytes,
             Ok(None) => {
-                self.refuse(
-                    span,
-                    format!(
-                        "`{shown}` is above the file size limit of {} bytes (--max-file-size) and is not read",
-                        self.limits.max_file_bytes
-                    ),
-                );
-                return None;
+                return Target::Refused(format!(
+                    "is above the file size limit of {} bytes (--max-file-size) and is not read",
+                    self.limits.max_file_bytes
+                ))
             }
-            Err(_) => {
-                self.out.missing.push(MissingInclude {
-                    path: shown.to_string(),
-                    span,
-                });
-                return None;
-            }
+            Err(e) => return Target::Refused(format!("cannot be read: {e}")),
         };
         let name = display_name(&self.info[from].name, portable);
         let text = decode(bytes);
@@ -540,6 +626,6 @@ impl<'s> Loader<'s> {
                 self.take_lexed(lexed);
             }
         }
-        Some(index)
+        Target::File(index)
     }
 }

@@ -59,7 +59,7 @@ pub struct Limits {
 impl Default for Limits {
     fn default() -> Self {
         Limits {
-            max_elements: 5_000_000,
+            max_elements: 1_000_000,
             max_depth: 64,
             max_file_bytes: 256 * 1024 * 1024,
             max_statement_bytes: 1024 * 1024,
@@ -87,6 +87,8 @@ pub enum LoadError {
         limit: u64,
         chain: String,
     },
+    #[error("cannot reserve memory for {what}; lower --max-elements or check the netlist")]
+    OutOfMemory { what: String },
     #[error("the includes would hold {count} statements or more (a file included over and over counts each time), above the element limit of {limit} (--max-elements)")]
     TooManyStatements { count: u64, limit: u64 },
 }
@@ -125,7 +127,10 @@ pub fn load(
     if !meta.is_file() {
         return Err(LoadError::Unreadable {
             path: path.to_path_buf(),
-            reason: "not a file".into(),
+            reason: format!(
+                "it is {}, not a regular file",
+                crate::source::file_kind(&meta)
+            ),
         });
     }
     if meta.len() > limits.max_file_bytes {
@@ -222,6 +227,9 @@ pub fn parse_str(name: &str, text: &str) -> (FlatNetlist, Vec<Finding>, SourceMa
     (flat, findings, sources)
 }
 
+/// Words of one skipped line taken as possible nets, at most (a bound on a hostile line).
+const MAX_SKIPPED_LINE_WORDS: usize = 64;
+
 fn run(
     sources: &mut SourceMap,
     top: FileId,
@@ -274,9 +282,23 @@ fn run(
             std::mem::take(&mut flattener.sensed),
         )
     };
+    findings.extend(deck.sink.take());
+    // The words of a skipped line (an element letter kickback does not read) may be nets the
+    // skipped part wires: they count as in use, so its neighbours are not called dangling.
+    for f in findings.iter().filter(|f| f.rule == "element-unknown") {
+        let text = sources
+            .get(f.span.file)
+            .and_then(|file| file.text.get(f.span.start as usize..f.span.end as usize))
+            .unwrap_or("");
+        sensed_nets.extend(
+            text.split_whitespace()
+                .skip(1)
+                .take(MAX_SKIPPED_LINE_WORDS)
+                .map(str::to_string),
+        );
+    }
     sensed_nets.sort_unstable_by_key(|n| n.to_ascii_lowercase());
     sensed_nets.dedup_by(|a, b| a.eq_ignore_ascii_case(b));
-    findings.extend(deck.sink.take());
     findings.sort_by_key(|f| (f.span.file, f.span.start, f.span.end));
     let findings = unknown_letters_once(findings);
     let flat = FlatNetlist {
@@ -306,7 +328,9 @@ fn run(
 fn unknown_letters_once(findings: Vec<Finding>) -> Vec<Finding> {
     const MAX_UNKNOWN_LABELS: usize = 8;
     let mut out: Vec<Finding> = Vec::with_capacity(findings.len());
-    let mut first_of: std::collections::HashMap<(crate::source::FileId, char), (usize, usize)> =
+    // Schematic markers (notes) fold apart from parts kickback does not read (warnings).
+    type Key = (crate::source::FileId, char, bool);
+    let mut first_of: std::collections::HashMap<Key, (usize, usize)> =
         std::collections::HashMap::new();
     for f in findings {
         let letter = f
@@ -315,7 +339,11 @@ fn unknown_letters_once(findings: Vec<Finding>) -> Vec<Finding> {
             .and_then(|n| n.chars().next())
             .map(|c| c.to_ascii_uppercase());
         let key = match (f.rule.as_str(), letter) {
-            ("element-unknown", Some(l)) => (f.span.file, l),
+            ("element-unknown", Some(l)) => (
+                f.span.file,
+                l,
+                f.severity == crate::diagnostic::Severity::Note,
+            ),
             _ => {
                 out.push(f);
                 continue;
@@ -340,11 +368,19 @@ fn unknown_letters_once(findings: Vec<Finding>) -> Vec<Finding> {
             }
         }
     }
-    for ((_, letter), (at, more)) in first_of {
+    for ((_, letter, _), (at, more)) in first_of {
         if more == 0 {
             continue;
         }
         if let Some(first) = out.get_mut(at) {
+            if first.severity == crate::diagnostic::Severity::Note {
+                first.message = if more == 1 {
+                    format!("{}; so is 1 more such line", first.message)
+                } else {
+                    format!("{}; so are {more} more such lines", first.message)
+                };
+                continue;
+            }
             first.message = format!(
                 "{}; so are {more} more `{letter}` lines in this file (a part another tool \
                  draws, such as a probe or a port, or an element kickback does not model)",

@@ -100,6 +100,9 @@ pub struct Wave<'a> {
 pub struct SourceForm<'a> {
     pub dc: Option<Val<'a>>,
     pub wave: Option<Wave<'a>>,
+    /// The line ends in a bare `DC`: a value left blank (schematic tools write the keyword and
+    /// fill the value in later), not SPICE's 0 V of a source written with no value at all.
+    pub blank_dc: bool,
 }
 
 #[derive(Clone, Debug)]

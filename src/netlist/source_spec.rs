@@ -53,6 +53,7 @@ fn waveform(kind: &str, values: Option<Vec<f64>>) -> Waveform {
 /// SPICE's value at time zero, for sources without a DC value.
 fn time_zero(wave: &Waveform, form: &SourceForm<'_>) -> Option<f64> {
     match wave {
+        Waveform::Dc if form.blank_dc => None,
         Waveform::Dc => Some(0.0),
         Waveform::Pulse { v1, .. } => Some(*v1),
         Waveform::Sin { offset, .. } => Some(*offset),

@@ -51,8 +51,8 @@ fn mark(severity: Severity, unicode: bool) -> &'static str {
     }
 }
 
-/// `✖ MST at doser.cir:33 — error (gate-underdrive)`: what and where first, then how bad and
-/// which rule. `place` is `file:line`.
+/// `✖ MST at doser.cir:33:1 — error (gate-underdrive)`: what and where first, then how bad and
+/// which rule. `place` is `file:line:col`, the form terminals and editors open at.
 pub fn heading(finding: &Finding, place: &str, look: Look) -> String {
     let who = finding
         .instance_path
@@ -197,7 +197,8 @@ pub fn theme(look: Look) -> GraphicalTheme {
 
 /// miette's rendering of a card's snippet in the card's own frame: without the line it writes
 /// for the (empty) message above the frame, and with a plain top rule wherever miette would
-/// name the file and place in brackets (the card's heading already names them).
+/// name the file and place in brackets (the card's heading already names them, and an
+/// "also in" line names another file).
 pub fn frame_only(rendered: &str) -> String {
     let mut lines = rendered.split_inclusive('\n').peekable();
     while lines.peek().is_some_and(|line| line.trim().is_empty()) {

@@ -5,7 +5,8 @@
 
 use super::card_parts::{self as card, paint, Look, GREEN_BOLD, RED_BOLD, YELLOW_BOLD};
 use super::source_window::{has_lone_cr, NetlistSource};
-use super::{ordered, Summary};
+use super::wide_lines::{touches_wide_line, ClippedSource, SnippetSource};
+use super::{ordered, Entry, Summary};
 use crate::diagnostic::{Finding, Severity};
 use crate::outcome::FileReport;
 use crate::source::{FileId, SourceMap, Span};
@@ -53,12 +54,7 @@ pub fn render(reports: &[FileReport], options: &CardsOptions) -> String {
         let flags = lone_cr
             .get(&(entry.report as *const FileReport))
             .map_or(&[][..], Vec::as_slice);
-        out.push_str(&render_finding_with(
-            entry.finding,
-            &entry.report.sources,
-            options,
-            flags,
-        ));
+        out.push_str(&render_entry(&entry, options, flags));
         out.push('\n');
     }
     if options.summary {
@@ -66,6 +62,28 @@ pub fn render(reports: &[FileReport], options: &CardsOptions) -> String {
         out.push('\n');
     }
     out
+}
+
+/// One finding drawn, or, should the drawing fail, one line that still says what and where:
+/// a fault in drawing one finding costs only that finding's snippet, never the other findings,
+/// the summary or the exit code.
+fn render_entry(entry: &Entry<'_>, options: &CardsOptions, lone_cr: &[bool]) -> String {
+    let drawn = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
+        render_finding_with(entry.finding, &entry.report.sources, options, lone_cr)
+    }));
+    drawn.unwrap_or_else(|payload| {
+        let why = payload
+            .downcast_ref::<&str>()
+            .map(|s| s.to_string())
+            .or_else(|| payload.downcast_ref::<String>().cloned())
+            .unwrap_or_else(|| "unknown fault".to_string());
+        let at = &entry.location;
+        let finding = entry.finding;
+        format!(
+            "{}:{}:{}: {} {} — {} (the snippet could not be drawn: {why})\n",
+            at.file, at.line, at.column, finding.severity, finding.rule, finding.message
+        )
+    })
 }
 
 pub fn summary_line(summary: &Summary, options: &CardsOptions) -> String {
@@ -127,9 +145,9 @@ fn render_finding_with(
             None,
             clamp(&file.text, finding.span),
         ));
-        let (line, _) = file.line_col(finding.span.start.min(file.text.len() as u32));
-        place = format!("{}:{line}", file.name);
-        NetlistSource::new(&file.name, file, lone(primary_file))
+        let (line, column) = file.line_col(finding.span.start.min(file.text.len() as u32));
+        place = format!("{}:{line}:{column}", file.name);
+        snippet_source(&file.name, file, lone(primary_file), &mut primary_labels)
     });
     let mut out = card::heading(finding, &place, look);
     out.push_str(&card::message(&finding.message, look));
@@ -141,13 +159,18 @@ fn render_finding_with(
         labels: primary_labels,
     };
     out.push_str(&frame(&handler, &main));
-    for (file, labels) in groups {
+    for (file, mut labels) in groups {
         let Some(source) = sources.get(file) else {
             continue;
         };
         out.push_str(&format!("  also in {}:\n", source.name));
         let related = Snippet {
-            source: Some(NetlistSource::new(&source.name, source, lone(file))),
+            source: Some(snippet_source(
+                &source.name,
+                source,
+                lone(file),
+                &mut labels,
+            )),
             labels,
         };
         out.push_str(&frame(&handler, &related));
@@ -178,6 +201,37 @@ fn frame(handler: &GraphicalReportHandler, snippet: &Snippet<'_>) -> String {
     } else {
         format!("\n{framed}")
     }
+}
+
+/// The text a snippet of `file` reads: the file itself, or, when a label lies on a very wide
+/// line, windows around the labels with the labels moved into them (a label outside its
+/// window is left out).
+fn snippet_source<'a>(
+    name: &'a str,
+    file: &'a crate::source::SourceFile,
+    lone_cr: bool,
+    labels: &mut Vec<LabeledSpan>,
+) -> SnippetSource<'a> {
+    let spans: Vec<SourceSpan> = labels.iter().map(|label| *label.inner()).collect();
+    if !touches_wide_line(file, &spans) {
+        return SnippetSource::Lines(NetlistSource::new(name, file, lone_cr));
+    }
+    let primary = labels.iter().position(LabeledSpan::primary);
+    let (clipped, moved) = ClippedSource::new(name, file, &spans, primary);
+    let kept = std::mem::take(labels)
+        .into_iter()
+        .zip(moved)
+        .filter_map(|(label, span)| {
+            let span = span?;
+            Some(if label.primary() {
+                LabeledSpan::new_primary_with_span(label.label().map(str::to_string), span)
+            } else {
+                LabeledSpan::new_with_span(label.label().map(str::to_string), span)
+            })
+        })
+        .collect();
+    *labels = kept;
+    SnippetSource::Clipped(clipped)
 }
 
 /// The other lines of a finding: its labels and the instance lines that placed its element.
@@ -248,7 +302,7 @@ fn clamp(text: &str, span: Span) -> SourceSpan {
 /// code or help of its own: the card draws those.
 #[derive(Debug)]
 struct Snippet<'a> {
-    source: Option<NetlistSource<'a>>,
+    source: Option<SnippetSource<'a>>,
     labels: Vec<LabeledSpan>,
 }
 

@@ -230,7 +230,10 @@ impl Table<'_> {
                     None => {}
                 }
                 if !d.shared_with.is_empty() {
-                    notes.push(format!("shared with {}", self.names(&d.shared_with)));
+                    notes.push(format!(
+                        "shared with {}",
+                        self.names(&d.shared_with.to_vec())
+                    ));
                 }
                 if d.boosted {
                     notes.push("boosted".into());

@@ -12,6 +12,7 @@ pub mod json;
 pub mod lines;
 pub mod sarif;
 mod source_window;
+mod wide_lines;
 
 use crate::diagnostic::{Finding, Severity};
 use crate::outcome::FileReport;

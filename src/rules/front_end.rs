@@ -17,7 +17,7 @@ pub const SYNTAX: Rule = Rule {
 pub const ELEMENT_UNKNOWN: Rule = Rule {
     id: "element-unknown",
     default_severity: Severity::Warning,
-    grades: &[Severity::Warning],
+    grades: &[Severity::Warning, Severity::Note],
     summary: "An element letter that SPICE does not define",
     page: include_str!("../../rules/element-unknown.md"),
     check: None,

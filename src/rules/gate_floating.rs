@@ -61,15 +61,42 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
                 .is_some_and(|d| d.kind == Kind::CurrentSource)
         });
         let held = trace.is_driven() || trace.nets.contains(&source) || fed;
-        let analysis_says_float = cx
-            .analysis
-            .switches
-            .iter()
-            .find(|s| s.device == id)
+        let facts = cx.analysis.switches.iter().find(|s| s.device == id);
+        // A stage biased into its active region, or one that follows another transistor that
+        // is not switched (an output pair behind a driver stage), is not a switch whose drive
+        // can let go: its base or gate network is a bias network.
+        let linear = facts.is_some_and(|s| {
+            s.stage == crate::analysis::Stage::Amplifier
+                || (s.stage == crate::analysis::Stage::Unknown
+                    && s.driver.as_ref().is_some_and(|d| {
+                        d.control.is_none()
+                            && cx
+                                .circuit
+                                .devices
+                                .get(d.device)
+                                .is_some_and(|x| x.kind.is_switch_transistor())
+                    }))
+        });
+        if linear {
+            continue;
+        }
+        let analysis_says_float = facts
             .and_then(|s| s.driver.as_ref())
             .is_some_and(|d| d.can_float);
         let pulled = has_pull(&trace, source);
         if held && (pulled || !analysis_says_float) {
+            continue;
+        }
+        // A part defined nowhere, or a gate network that reaches a net an expression reads or
+        // a skipped line wires: what drives it is not known, so nothing is said.
+        let unknown_driver = cx.circuit.unknown_part(id).is_some()
+            || trace.nets.iter().any(|&n| {
+                cx.circuit
+                    .nets
+                    .get(n)
+                    .is_some_and(|net| cx.netlist.is_sensed(&net.name))
+            });
+        if unknown_driver {
             continue;
         }
         if let Some(f) = report(cx, device, &trace, gate, source, analysis_says_float) {

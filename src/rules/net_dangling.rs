@@ -41,14 +41,6 @@ struct Dangling<'a> {
     scope: &'a str,
 }
 
-fn is_sensed(cx: &RuleContext<'_>, name: &str) -> bool {
-    let sensed = &cx.netlist.sensed_nets;
-    let key = name.to_ascii_lowercase();
-    sensed
-        .binary_search_by(|n| n.to_ascii_lowercase().cmp(&key))
-        .is_ok()
-}
-
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
     let mut dangling = Vec::new();
@@ -64,7 +56,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             continue;
         }
         // A net an expression reads (`V(ctl)` in a behavioural source) is in use.
-        if is_sensed(cx, net_name(cx, net)) {
+        if cx.netlist.is_sensed(net_name(cx, net)) {
             continue;
         }
         let Some(device) = cx.circuit.devices.get(device_id) else {

@@ -40,12 +40,16 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             .pins
             .iter()
             .enumerate()
-            .filter(|(_, pin)| {
+            .filter(|(i, pin)| {
                 // 0 V sources (ammeters) are wires: a pin that meets only an ammeter is open.
                 let open = index.degree(pin.net) <= 2
                     && wire_pins(cx, &index, pin.net).len() == 1
                     && !wire_is_ground_or_global(cx, pin.net);
+                // A vertical MOSFET's thermal nodes (after drain, gate, source and body) are
+                // the junction and case temperatures: a probe point, often left alone.
+                let thermal = matches!(device.kind, Kind::Nmos | Kind::Pmos) && *i >= 4;
                 let excused = may_stay_open(device.kind, pin.role)
+                    || thermal
                     || (device.kind == Kind::Unknown && is_no_connect_name(net_name(cx, pin.net)));
                 open && !excused
             })

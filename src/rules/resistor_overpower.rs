@@ -13,12 +13,13 @@ use crate::analysis::ResistorFacts;
 use crate::circuit::defaults::RESISTOR_POWER_RATING_W;
 use crate::circuit::{DeviceId, Kind};
 use crate::diagnostic::{Finding, Severity};
+use std::collections::BTreeMap;
 
 /// This rule's identity: its ID, the severities it gives and its page.
 pub const RULE: Rule = Rule {
     id: "resistor-overpower",
     default_severity: Severity::Error,
-    grades: &[Severity::Error, Severity::Warning],
+    grades: &[Severity::Error, Severity::Warning, Severity::Note],
     summary: "A resistor dissipates more than its power rating in some state",
     page: include_str!("../../rules/resistor-overpower.md"),
     check: Some(check),
@@ -31,9 +32,65 @@ const UNSTATED_RATING_MAX_W: f64 = 0.5;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
+    // Resistors whose current a linear stage's bias sets, by that stage: one note each.
+    let mut unjudged: BTreeMap<DeviceId, Vec<(DeviceId, f64)>> = BTreeMap::new();
     for facts in &cx.analysis.resistors {
-        out.extend(finding(cx, &index, facts));
+        let Some(f) = finding(cx, &index, facts) else {
+            continue;
+        };
+        match facts.set_by_linear_stage {
+            Some(stage) => unjudged
+                .entry(stage)
+                .or_default()
+                .push((facts.device, facts.power_w.max)),
+            None => out.push(f),
+        }
     }
+    for (stage, resistors) in unjudged {
+        out.extend(linear_stage_note(cx, stage, &resistors));
+    }
+}
+
+/// One note for the resistors whose dissipation follows a linear stage's bias: the DC solve
+/// says they run hot, but that number rests on an operating point kickback does not judge.
+fn linear_stage_note(
+    cx: &RuleContext<'_>,
+    stage: DeviceId,
+    resistors: &[(DeviceId, f64)],
+) -> Option<Finding> {
+    let &(first, _) = resistors.first()?;
+    let &(hottest, watts) = resistors.iter().max_by(|a, b| a.1.total_cmp(&b.1))?;
+    let facts = cx.analysis.switches.iter().find(|s| s.device == stage)?;
+    let names: Vec<String> = resistors.iter().map(|&(r, _)| name(cx, r)).collect();
+    let message = format!(
+        "{} would run above {} rating{} in the DC solve (up to {} in {}), but {} currents \
+         are set by the bias of {}, taken for {} ({}); a DC solve with simplified models \
+         does not settle a feedback-set operating point, so this dissipation is not judged: \
+         check it at a simulator's operating point",
+        super::units::list(&names),
+        if names.len() == 1 { "its" } else { "their" },
+        if names.len() == 1 { "" } else { "s" },
+        format_si(watts, "W"),
+        name(cx, hottest),
+        if names.len() == 1 { "its" } else { "their" },
+        name(cx, stage),
+        if facts.stage == crate::analysis::Stage::Amplifier {
+            "an amplifier stage"
+        } else {
+            "a stage kickback could not place"
+        },
+        facts.stage_reason
+    );
+    let mut f = finding_at(RULE, Severity::Note, cx, first, message)?;
+    for &(other, _) in &resistors[1..] {
+        f = label(f, cx, other, "also in this stage's bias");
+    }
+    Some(label(
+        f,
+        cx,
+        stage,
+        "the stage whose bias sets the currents",
+    ))
 }
 
 /// Pots and timers that share a net with the resistor, or whose discharge chain holds it: the

@@ -52,11 +52,23 @@ fn stuck(cx: &RuleContext<'_>, t: &TimerFacts, s: &StuckPhase) -> Option<Finding
     let resistive = |d: &usize| is_resistor(cx, *d) || is_pot(cx, *d);
     // Bias-limited: the big resistor comes first. Otherwise a pot at its end is the usual cause.
     let pot_first = s.bias_a.is_none() || s.discharge_limited;
-    let target = s
-        .devices
-        .iter()
-        .copied()
-        .find(|&d| pot_first && is_pot(cx, d))
+    // With nothing but a blocking diode in the capacitor's path, the diode is the part to
+    // change (usually fitted the wrong way round).
+    let blocker = s.devices.first().copied().filter(|&d| {
+        s.bias_a.is_none()
+            && cx
+                .circuit
+                .devices
+                .get(d)
+                .is_some_and(|x| x.kind.is_diode_like())
+    });
+    let target = blocker
+        .or_else(|| {
+            s.devices
+                .iter()
+                .copied()
+                .find(|&d| pot_first && is_pot(cx, d))
+        })
         .or_else(|| s.devices.iter().copied().find(resistive))
         .or(t.timing_capacitor)
         .unwrap_or(t.device);
@@ -75,11 +87,23 @@ fn stuck(cx: &RuleContext<'_>, t: &TimerFacts, s: &StuckPhase) -> Option<Finding
             format_si(i, "A"),
             ohms(r),
         ),
-        _ => format!(
-            "{timer} never ends its {phase}{}: {}; {settle}, so {consequence}",
-            at_state(&s.state),
-            s.reason,
-        ),
+        _ => match blocker {
+            Some(_) => format!(
+                "{timer} never ends its {phase}{}: {}: {target_name} blocks the capacitor's \
+                 path in that phase (it points against the current), so {cap} sits at {}, {} the \
+                 {} {comparator}; {consequence}",
+                at_state(&s.state),
+                s.reason,
+                format_si(s.settles_v, "V"),
+                if charging { "short of" } else { "above" },
+                format_si(s.threshold_v, "V"),
+            ),
+            None => format!(
+                "{timer} never ends its {phase}{}: {}; {settle}, so {consequence}",
+                at_state(&s.state),
+                s.reason,
+            ),
+        },
     };
 
     let mut f = finding_at(RULE, Severity::Error, cx, target, message)?;
@@ -123,6 +147,14 @@ fn stuck(cx: &RuleContext<'_>, t: &TimerFacts, s: &StuckPhase) -> Option<Finding
                 ),
             }
         }
+        _ if blocker.is_some() => format!(
+            "check {target_name}'s orientation: fitted the other way round it conducts {}",
+            if charging {
+                format!("from the supply toward {cap}")
+            } else {
+                format!("from {cap} toward the discharge pin")
+            }
+        ),
         _ if s.discharge_limited => format!(
             "the discharge pin needs resistance between DIS and the supply: keep {target_name} from reaching zero with a fixed resistor in series (see discharge-unprotected for its value)"
         ),

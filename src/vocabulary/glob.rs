@@ -29,10 +29,20 @@ fn compile(pattern: &str) -> Result<GlobMatcher, String> {
         .map_err(|e| format!("the glob \"{pattern}\" cannot be read: {}", e.kind()))
 }
 
+/// Longest glob accepted: a part name pattern is a few words; a longer one would make every
+/// match cost its length times the name's.
+pub const MAX_GLOB_BYTES: usize = 256;
+
 /// Explains what is wrong with a pattern, if anything.
 pub fn validate(pattern: &str) -> Result<(), String> {
     if pattern.trim().is_empty() {
         return Err("a part name or glob is empty".into());
+    }
+    if is_glob(pattern) && pattern.len() > MAX_GLOB_BYTES {
+        return Err(format!(
+            "a glob is {} bytes long, above the limit of {MAX_GLOB_BYTES} bytes for a part name pattern",
+            pattern.len()
+        ));
     }
     if is_glob(pattern) {
         compile(pattern)?;
@@ -44,6 +54,9 @@ pub fn validate(pattern: &str) -> Result<(), String> {
 pub fn matches(pattern: &str, name: &str) -> bool {
     if !is_glob(pattern) {
         return pattern.eq_ignore_ascii_case(name);
+    }
+    if pattern.len() > MAX_GLOB_BYTES {
+        return false;
     }
     COMPILED.with(|cache| {
         let mut cache = cache.borrow_mut();
@@ -63,6 +76,15 @@ pub fn matches(pattern: &str, name: &str) -> bool {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn long_globs_are_refused_and_match_nothing() {
+        let long = format!("{}*", "a".repeat(MAX_GLOB_BYTES));
+        assert!(validate(&long).is_err());
+        assert!(!matches(&long, &"a".repeat(2 * MAX_GLOB_BYTES)));
+        // A long exact name is no glob and costs one comparison.
+        assert!(validate(&"b".repeat(10 * MAX_GLOB_BYTES)).is_ok());
+    }
 
     #[test]
     fn globs() {

@@ -329,7 +329,7 @@ pub fn driver(device: DeviceId, network: Vec<DeviceId>) -> DriverFacts {
         control: Some(device),
         on_when_high: None,
         network,
-        shared_with: Vec::new(),
+        shared_with: Default::default(),
         boosted: false,
         bootstrap: None,
         can_float: false,

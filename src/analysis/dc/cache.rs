@@ -41,7 +41,20 @@ pub(crate) enum Outcome {
     },
 }
 
-type Key = Vec<u64>;
+/// The words of a network's contents; hashed word by word (the standard hash of a slice of
+/// words feeds it as bytes, which a word hasher would take apart byte by byte).
+#[derive(Clone, Debug, PartialEq, Eq)]
+pub(crate) struct Key(Vec<u64>);
+
+impl std::hash::Hash for Key {
+    fn hash<H: Hasher>(&self, state: &mut H) {
+        state.write_usize(self.0.len());
+        for &word in &self.0 {
+            state.write_u64(word);
+        }
+    }
+}
+
 type Map = HashMap<Key, Arc<Outcome>, BuildHasherDefault<WordHasher>>;
 
 #[derive(Default)]
@@ -96,7 +109,7 @@ impl Generations {
 
 /// The memo key of solving `net` with `options` from a zero start.
 pub(crate) fn key(net: &Network, options: &SolveOptions) -> Key {
-    let mut k: Key = Vec::with_capacity(8 + 7 * net.elements.len());
+    let mut k = Vec::with_capacity(8 + 7 * net.elements.len());
     k.extend([
         options.reltol.to_bits(),
         options.vntol.to_bits(),
@@ -110,10 +123,10 @@ pub(crate) fn key(net: &Network, options: &SolveOptions) -> Key {
     for element in &net.elements {
         push_element(&mut k, element);
     }
-    k
+    Key(k)
 }
 
-fn push_element(k: &mut Key, element: &Element) {
+fn push_element(k: &mut Vec<u64>, element: &Element) {
     let n = |node: super::network::Node| node.0 as u64;
     match *element {
         Element::Resistor { a, b, ohms } => k.extend([0, n(a), n(b), ohms.to_bits()]),

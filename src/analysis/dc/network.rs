@@ -1,6 +1,6 @@
 //! The sub-network a caller builds: named nodes and primitive elements.
 
-use std::collections::BTreeMap;
+use std::sync::Arc;
 
 /// Resistances below this many ohms are solved as ideal shorts (a 0 V branch), which keeps
 /// the matrix well scaled.
@@ -209,13 +209,41 @@ pub struct SourceHull {
     pub controlled: bool,
 }
 
+/// The name of a node, kept for error messages only: a fixed label or a name shared with the
+/// caller's own table (a net's name), so adding a node never copies a string.
+#[derive(Clone, Debug)]
+pub enum NodeName {
+    Fixed(&'static str),
+    Shared(Arc<str>),
+}
+
+impl NodeName {
+    pub fn as_str(&self) -> &str {
+        match self {
+            NodeName::Fixed(s) => s,
+            NodeName::Shared(s) => s,
+        }
+    }
+}
+
+impl From<&'static str> for NodeName {
+    fn from(s: &'static str) -> Self {
+        NodeName::Fixed(s)
+    }
+}
+
+impl From<Arc<str>> for NodeName {
+    fn from(s: Arc<str>) -> Self {
+        NodeName::Shared(s)
+    }
+}
+
 /// A small circuit to solve: nodes with names (kept for error messages) and primitive
 /// elements between them. Capacitors are left out (open at DC) and inductors are added as
 /// 0 V sources or low resistances by the caller.
 #[derive(Clone, Debug)]
 pub struct Network {
-    names: Vec<String>,
-    by_name: BTreeMap<String, Node>,
+    names: Vec<NodeName>,
     pub(crate) elements: Vec<Element>,
 }
 
@@ -228,11 +256,8 @@ impl Default for Network {
 impl Network {
     /// An empty network holding only ground, named `"0"`.
     pub fn new() -> Self {
-        let mut by_name = BTreeMap::new();
-        by_name.insert("0".to_string(), Node(0));
         Self {
-            names: vec!["0".to_string()],
-            by_name,
+            names: vec![NodeName::Fixed("0")],
             elements: Vec::new(),
         }
     }
@@ -242,25 +267,32 @@ impl Network {
         Node(0)
     }
 
-    /// Adds a node, or returns the existing node of that name (`"0"` is ground).
+    /// Adds a node, or returns the existing node of that name (`"0"` is ground). Looks the
+    /// name up among the nodes so far: for hand-built networks; a caller that builds many
+    /// networks from a table of unique names uses [`Network::add_named_node`].
     pub fn add_node(&mut self, name: &str) -> Node {
-        if let Some(&node) = self.by_name.get(name) {
+        if let Some(node) = self.node(name) {
             return node;
         }
+        self.add_named_node(NodeName::Shared(Arc::from(name)))
+    }
+
+    /// Adds a new node under a name the caller keeps unique (names only label error
+    /// messages); costs no string copy.
+    pub fn add_named_node(&mut self, name: impl Into<NodeName>) -> Node {
         let node = Node(self.names.len());
-        self.names.push(name.to_string());
-        self.by_name.insert(name.to_string(), node);
+        self.names.push(name.into());
         node
     }
 
-    /// Looks a node up by name.
+    /// Looks a node up by name (the first node of that name).
     pub fn node(&self, name: &str) -> Option<Node> {
-        self.by_name.get(name).copied()
+        self.names.iter().position(|n| n.as_str() == name).map(Node)
     }
 
     /// The name a node was added with; `"?"` for a node of another network.
     pub fn node_name(&self, node: Node) -> &str {
-        self.names.get(node.0).map_or("?", String::as_str)
+        self.names.get(node.0).map_or("?", NodeName::as_str)
     }
 
     /// Number of nodes including ground.

@@ -18,6 +18,7 @@ use super::topology::SwitchTopology;
 use crate::analysis::facts::{Freewheel, FreewheelKind, Range, Side};
 use crate::analysis::states::Context;
 use crate::circuit::{DeviceId, Kind, NetId, PinRole};
+use std::collections::HashMap;
 
 /// A freewheel path before its orientation is checked.
 #[derive(Clone, Copy, Debug, PartialEq)]
@@ -26,7 +27,69 @@ pub struct Candidate {
     pub kind: FreewheelKind,
 }
 
-pub fn candidates(cx: &Context<'_>, nets: &NetMap, t: &SwitchTopology) -> Vec<Candidate> {
+/// The walks behind [`candidates_cached`] depend on a switch's branch, never on the switch: switches
+/// in parallel on one branch (thousands of MOSFETs on one drain net) share one walk instead of
+/// each walking every part on the net.
+#[derive(Debug, Default)]
+pub struct CandidateCache {
+    known: HashMap<BranchKey, Vec<Candidate>>,
+}
+
+/// What the branch walks read: the switched net, the side, the anchor net and the branch.
+type BranchKey = (Option<NetId>, u8, Option<NetId>, Vec<DeviceId>, Vec<NetId>);
+
+/// Every freewheel path a switch may have, before orientation: what its branch gives (walked
+/// once per branch, through `cache`) and, for a bridge leg, its partner's body diode.
+pub fn candidates_cached(
+    cx: &Context<'_>,
+    nets: &NetMap,
+    t: &SwitchTopology,
+    cache: &mut CandidateCache,
+) -> Vec<Candidate> {
+    let side = match t.side {
+        Side::Low => 0,
+        Side::High => 1,
+        Side::Bridge => 2,
+    };
+    let key: BranchKey = (
+        t.switched,
+        side,
+        t.anchor.map(|a| a.net),
+        t.branch.devices.clone(),
+        t.branch.nets.clone(),
+    );
+    let mut out = cache
+        .known
+        .entry(key)
+        .or_insert_with(|| branch_candidates(cx, nets, t))
+        .clone();
+    add_partner(cx, t, &mut out);
+    out
+}
+
+/// A bridge leg's opposite MOSFET conducts the winding's current through its body diode.
+fn add_partner(cx: &Context<'_>, t: &SwitchTopology, out: &mut Vec<Candidate>) {
+    if t.switched.is_none() || t.branch.devices.is_empty() {
+        // No branch of its own: nothing to freewheel.
+        return;
+    }
+    if let Some(partner) = t.partner {
+        if cx
+            .circuit
+            .devices
+            .get(partner)
+            .is_some_and(|d| d.kind.is_mos())
+        {
+            out.push(Candidate {
+                device: partner,
+                kind: FreewheelKind::OppositeBodyDiode,
+            });
+        }
+    }
+}
+
+/// The candidates the switch's branch gives, whichever switch it is.
+fn branch_candidates(cx: &Context<'_>, nets: &NetMap, t: &SwitchTopology) -> Vec<Candidate> {
     let mut out: Vec<Candidate> = Vec::new();
     let Some(switched) = t.switched else {
         return out;
@@ -102,19 +165,6 @@ pub fn candidates(cx: &Context<'_>, nets: &NetMap, t: &SwitchTopology) -> Vec<Ca
     out.sort_by_key(|c| (order(c.kind), c.device));
     if out.is_empty() {
         out.extend(ac_paths(cx, nets, t, switched));
-    }
-    if let Some(partner) = t.partner {
-        if cx
-            .circuit
-            .devices
-            .get(partner)
-            .is_some_and(|d| d.kind.is_mos())
-        {
-            out.push(Candidate {
-                device: partner,
-                kind: FreewheelKind::OppositeBodyDiode,
-            });
-        }
     }
     out
 }

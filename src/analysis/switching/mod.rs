@@ -17,8 +17,8 @@ pub mod topology;
 pub mod winding;
 
 use super::facts::{
-    DriverFacts, Freewheel, FreewheelKind, LoadFacts, Range, Stage, SwitchFacts, TimerFacts,
-    SATURATED_BJT_DROP_V,
+    DriverFacts, Freewheel, FreewheelKind, LoadFacts, Range, SharedDrive, Stage, SwitchFacts,
+    TimerFacts, SATURATED_BJT_DROP_V,
 };
 use super::states::{Context, Corner};
 use crate::circuit::{DeviceId, Kind};
@@ -113,6 +113,7 @@ pub fn analyze(
     let mut switches = Vec::new();
     let mut loads: Vec<LoadFacts> = Vec::new();
     let mut load_index: BTreeMap<DeviceId, usize> = BTreeMap::new();
+    let mut freewheels = freewheel::CandidateCache::default();
     for (i, t) in topologies.iter().enumerate() {
         let Some(s) = component_of(t.device).and_then(|c| solved.get(&c)) else {
             switches.push(bare_switch(cx, t, &topologies, stages[i].clone()));
@@ -123,7 +124,17 @@ pub fn analyze(
             Some((drives[j].control?, on_levels[j]?))
         });
         let states = drive::on_off(t, drives[i].control, on_levels[i], partner, s);
-        let mut facts = switch_facts(cx, timers, &nets, t, &topologies, &drives[i], &states, s);
+        let mut facts = switch_facts(
+            cx,
+            timers,
+            &nets,
+            t,
+            &topologies,
+            &drives[i],
+            &states,
+            s,
+            &mut freewheels,
+        );
         (facts.stage, facts.stage_reason) = stages[i].clone();
         for &load_device in t.load.iter().chain(t.parallel_loads.iter()) {
             if load_index.contains_key(&load_device) {
@@ -209,7 +220,8 @@ pub fn analyze(
     (switches, loads, findings)
 }
 
-/// Notes, on each driver, the other switches driven from the same device.
+/// Notes, on each driver, the other switches driven from the same device: one list per
+/// driver, shared by its switches.
 fn share_drives(switches: &mut [SwitchFacts]) {
     let mut by_driver: BTreeMap<DeviceId, Vec<DeviceId>> = BTreeMap::new();
     for s in switches.iter() {
@@ -217,12 +229,20 @@ fn share_drives(switches: &mut [SwitchFacts]) {
             by_driver.entry(d.device).or_default().push(s.device);
         }
     }
+    let lists: BTreeMap<DeviceId, std::sync::Arc<[DeviceId]>> = by_driver
+        .into_iter()
+        .map(|(driver, mut all)| {
+            all.sort_unstable();
+            all.dedup();
+            (driver, all.into())
+        })
+        .collect();
     for s in switches.iter_mut() {
         let me = s.device;
         if let Some(driver) = &mut s.driver {
-            driver.shared_with = by_driver
+            driver.shared_with = lists
                 .get(&driver.device)
-                .map(|all| all.iter().copied().filter(|&sw| sw != me).collect())
+                .map(|all| SharedDrive::new(all.clone(), me))
                 .unwrap_or_default();
         }
     }
@@ -310,6 +330,7 @@ fn switch_facts(
     gate: &GateDrive,
     states: &OnOff,
     s: &ComponentSolves,
+    freewheels: &mut freewheel::CandidateCache,
 ) -> SwitchFacts {
     let branch_parts: Vec<DeviceId> = t
         .branch
@@ -365,7 +386,7 @@ fn switch_facts(
     let load_current = t.load.and_then(|l| {
         drive::range_over(s, &states.conducting, &|_, solved| load::through(l, solved))
     });
-    let candidates = freewheel::candidates(cx, nets, t);
+    let candidates = freewheel::candidates_cached(cx, nets, t, freewheels);
     let freewheel = freewheel::orient(&candidates, states, s, load_current.as_ref(), duty.as_ref());
     let driver = gate.driver.map(|device| {
         let kind_of = |d: DeviceId| cx.circuit.devices.get(d).map(|x| x.kind);
@@ -374,7 +395,7 @@ fn switch_facts(
             control: gate.control,
             on_when_high: states.on_high,
             network: gate.network.clone(),
-            shared_with: Vec::new(),
+            shared_with: SharedDrive::default(),
             boosted,
             bootstrap: gate.bootstrap.map(|b| (b.capacitor, b.diode)),
             can_float: kind_of(device) == Some(Kind::LogicOutput)

@@ -15,8 +15,9 @@
 
 use super::config::{self, NetIndex, Setup};
 use crate::analysis::dc::DcError;
+use crate::analysis::partition::Component;
 use crate::analysis::stand_in;
-use crate::analysis::states::{Context, State};
+use crate::analysis::states::{Context, Solved, State};
 use crate::circuit::{DeviceId, Kind, PinRole};
 
 /// The comparator thresholds on the capacitor net, in volts against ground.
@@ -260,11 +261,15 @@ fn stuck(cx: &Context<'_>, phase: &Phase<'_>) -> Result<Option<Stuck>, DcError> 
     } else {
         th.v_open - bias * th.r_th
     };
-    let reaches_without_bias = if charging {
-        unbiased > phase.v_end
-    } else {
-        unbiased < phase.v_end
-    };
+    // Past this Thevenin resistance only kickback's own leaks (1 TΩ per net) reach the
+    // capacitor: nothing on the board charges or discharges it, whatever the bias does.
+    let unreached = th.r_th > 1e11;
+    let reaches_without_bias = !unreached
+        && if charging {
+            unbiased > phase.v_end
+        } else {
+            unbiased < phase.v_end
+        };
     // Conducting parts that carry the current the capacitor would need, biggest resistance
     // first (the one to change).
     let mut carriers: Vec<(DeviceId, f64)> = Vec::new();
@@ -294,7 +299,30 @@ fn stuck(cx: &Context<'_>, phase: &Phase<'_>) -> Result<Option<Stuck>, DcError> 
         }
     }
     carriers.sort_by(|a, b| b.1.total_cmp(&a.1).then(a.0.cmp(&b.0)));
-    let settles_v = solved.voltage(net).unwrap_or(th.v_open);
+    // A diode that blocks in this phase is the usual cause (fitted the wrong way round): it
+    // comes first, the part to change. With nothing else reaching the capacitor, any diode
+    // that blocks; otherwise, while discharging, a diode whose anode is on the discharge pin
+    // (the pin only sinks current, so such a diode can never carry the capacitor's).
+    let blocking = if unreached {
+        blocking_diodes(cx, component, &solved, floor)
+    } else if !charging {
+        setup
+            .dis
+            .map(|dis| anodes_on(cx, component, dis))
+            .unwrap_or_default()
+    } else {
+        Vec::new()
+    };
+    if !blocking.is_empty() {
+        carriers.retain(|c| !blocking.contains(&c.0));
+        carriers.splice(0..0, blocking.into_iter().map(|d| (d, f64::INFINITY)));
+    }
+    // With nothing to move it, the capacitor keeps the charge it started the phase with.
+    let settles_v = if unreached {
+        phase.v_start
+    } else {
+        solved.voltage(net).unwrap_or(th.v_open)
+    };
     let limited = !charging && !reaches_without_bias && at_current_limit(&solved, setup);
     let reason = if reaches_without_bias {
         if charging {
@@ -302,7 +330,7 @@ fn stuck(cx: &Context<'_>, phase: &Phase<'_>) -> Result<Option<Stuck>, DcError> 
         } else {
             "the trigger input's bias current, pushed through the discharge resistance, holds the capacitor above the trigger threshold".to_string()
         }
-    } else if th.r_th > 1e11 {
+    } else if unreached {
         if charging {
             "nothing charges the timing capacitor".to_string()
         } else {
@@ -324,6 +352,51 @@ fn stuck(cx: &Context<'_>, phase: &Phase<'_>) -> Result<Option<Stuck>, DcError> 
         bias_ohms: reaches_without_bias.then_some(th.r_th),
         discharge_limited: limited,
     }))
+}
+
+/// Diodes of the component that carry no current and sit reverse-biased in a solved state,
+/// in device order.
+fn blocking_diodes(
+    cx: &Context<'_>,
+    component: &Component,
+    solved: &Solved,
+    floor: f64,
+) -> Vec<DeviceId> {
+    component
+        .devices
+        .iter()
+        .copied()
+        .filter(|&d| {
+            let device = &cx.circuit.devices[d];
+            if !device.kind.is_diode_like() {
+                return false;
+            }
+            let current = solved
+                .elements(d)
+                .and_then(|e| e.main)
+                .and_then(|e| solved.current(e))
+                .map_or(0.0, f64::abs);
+            let reverse = solved
+                .pin_voltage(cx.circuit, d, PinRole::Anode, PinRole::Cathode)
+                .is_some_and(|v| v < 0.0);
+            current < floor && reverse
+        })
+        .collect()
+}
+
+/// Diodes of the component whose anode sits on `net`.
+fn anodes_on(cx: &Context<'_>, component: &Component, net: crate::circuit::NetId) -> Vec<DeviceId> {
+    component
+        .devices
+        .iter()
+        .copied()
+        .filter(|&d| {
+            let device = &cx.circuit.devices[d];
+            device.kind.is_diode_like()
+                && device.pin(PinRole::Anode) == Some(net)
+                && device.pin(PinRole::Cathode) != Some(net)
+        })
+        .collect()
 }
 
 /// True when the discharge pin runs at its own current limit (the supply reaches DIS through
