@@ -201,7 +201,7 @@ pub fn theme(look: Look) -> GraphicalTheme {
 /// "also in" line names another file).
 pub fn frame_only(rendered: &str) -> String {
     let mut lines = rendered.split_inclusive('\n').peekable();
-    while lines.peek().is_some_and(|line| line.trim().is_empty()) {
+    while lines.peek().is_some_and(|line| is_blank(line)) {
         lines.next();
     }
     let mut out = String::new();
@@ -212,6 +212,23 @@ pub fn frame_only(rendered: &str) -> String {
         }
     }
     out
+}
+
+/// A line that shows nothing: blanks, and colour codes around nothing (miette styles the empty
+/// message line when colour is on).
+fn is_blank(line: &str) -> bool {
+    let mut rest = line;
+    while let Some(at) = rest.find('\u{1b}') {
+        if !rest[..at].trim().is_empty() {
+            return false;
+        }
+        let code = &rest[at + 1..];
+        let Some(end) = code.find(|c: char| c.is_ascii_alphabetic()) else {
+            return false;
+        };
+        rest = &code[end + 1..];
+    }
+    rest.trim().is_empty()
 }
 
 /// A frame's top line, `   ┏━[file:line:col]`, as a plain rule `   ┏━━━━`; `None` for any
@@ -282,5 +299,10 @@ mod tests {
             "  ┏━━━━\n 3 ┃ R1\n\n  ┗━\n  ┏━━━━\n 9 ┃ R[2]\n"
         );
         assert_eq!(frame_only("\n  ┏━━━━\n  ┗━\n"), "  ┏━━━━\n  ┗━\n");
+        // With colour, miette's empty message line is colour codes around nothing.
+        assert_eq!(
+            frame_only("  \u{1b}[31m\u{1b}[0m \n   ┏━[a.cir:1:1]\n"),
+            "   ┏━━━━\n"
+        );
     }
 }
