@@ -82,7 +82,7 @@ def main():
     scratch = args.keep or Path(tempfile.mkdtemp(prefix="kickback-bench-"))
     # The million-element boards sit at the default element limit (1,000,000) and a few
     # supply lines above it: the limit is raised for them.
-    check = [str(kickback), "check", "--format", "short", "--max-elements", "2000000"]
+    check = [str(kickback), "check", "--format", "lines", "--max-elements", "2000000"]
     rows, targets = [], []
 
     version, _ = measure([str(kickback), "--version"], args.runs * 4, expect=(0,))

@@ -20,7 +20,7 @@ use kickback::circuit::{parts, Circuit};
 use kickback::config::Config;
 use kickback::diagnostic::Severity;
 use kickback::netlist::{self, FlatNetlist, Limits};
-use kickback::report::{human, json, sarif, short};
+use kickback::report::{cards, json, lines, sarif};
 use kickback::rules::{self, RuleContext};
 use kickback::source::SourceMap;
 use std::hint::black_box;
@@ -193,16 +193,16 @@ fn render(c: &mut Criterion) {
         let n = reports[0].findings.len();
         group.throughput(Throughput::Elements(n as u64));
         let id = |format: &str| BenchmarkId::new(format, format!("{n} findings"));
-        group.bench_function(id("short"), |b| {
-            b.iter(|| black_box(short::render(&reports, Severity::Note)))
+        group.bench_function(id("lines"), |b| {
+            b.iter(|| black_box(lines::render(&reports, Severity::Note)))
         });
         group.bench_function(id("json"), |b| b.iter(|| black_box(json::render(&reports))));
         group.bench_function(id("sarif"), |b| {
             b.iter(|| black_box(sarif::render(&reports)))
         });
-        let options = human::HumanOptions::default();
-        group.bench_function(id("human"), |b| {
-            b.iter(|| black_box(human::render(&reports, &options)))
+        let options = cards::CardsOptions::default();
+        group.bench_function(id("cards"), |b| {
+            b.iter(|| black_box(cards::render(&reports, &options)))
         });
     }
     group.finish();

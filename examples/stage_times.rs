@@ -18,7 +18,7 @@ use kickback::check::{self, CheckOptions, FileReport};
 use kickback::circuit::{parts, Circuit};
 use kickback::diagnostic::Severity;
 use kickback::netlist;
-use kickback::report::{human, json, sarif, short};
+use kickback::report::{cards, json, lines, sarif};
 use kickback::rules::{self, RuleContext};
 use kickback::source::SourceMap;
 use std::path::PathBuf;
@@ -127,11 +127,11 @@ fn main() {
         failure: None,
     }];
     let bytes = [
-        timed("short", || short::render(&reports, Severity::Note).len()),
+        timed("lines", || lines::render(&reports, Severity::Note).len()),
         timed("json", || json::render(&reports).len()),
         timed("sarif", || sarif::render(&reports).len()),
-        timed("human", || {
-            human::render(&reports, &human::HumanOptions::default()).len()
+        timed("cards", || {
+            cards::render(&reports, &cards::CardsOptions::default()).len()
         }),
     ];
     println!(

@@ -61,7 +61,7 @@ fn bad_arguments_exit_2() {
         .assert()
         .code(2);
     kickback()
-        .args(["--deny", "errors", "check"])
+        .args(["--fail-on", "errors", "check"])
         .assert()
         .code(2);
     kickback()
@@ -127,12 +127,12 @@ fn unreadable_config_exits_2() {
 }
 
 #[test]
-fn limits_and_deny_flags_are_accepted() {
+fn limits_and_fail_on_flags_are_accepted() {
     kickback()
         .args([
             "check",
-            "--deny",
-            "warnings",
+            "--fail-on",
+            "warning",
             "--max-elements",
             "1000",
             "--allow-outside-includes",
@@ -143,11 +143,52 @@ fn limits_and_deny_flags_are_accepted() {
         .code(0);
     // Global flags may also stand before the command.
     kickback()
-        .args(["--format", "short", "--deny", "warnings", "check"])
+        .args(["--format", "lines", "--fail-on", "warning", "check"])
         .arg(testdata("divider.cir"))
         .assert()
         .code(0)
-        .stdout("");
+        .stdout("")
+        .stderr("");
+}
+
+#[test]
+fn the_earlier_spellings_still_work_with_a_notice() {
+    // `--format short` and `--deny warnings` were the names of the previous release.
+    let output = kickback()
+        .args(["check", "--format", "short", "--deny", "warnings"])
+        .arg(testdata("divider.cir"))
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(0));
+    assert!(output.stdout.is_empty());
+    let err = String::from_utf8_lossy(&output.stderr);
+    assert_eq!(err.lines().count(), 2, "{err}");
+    assert!(
+        err.contains("notice: `--format short` is now `--format lines`"),
+        "{err}"
+    );
+    assert!(
+        err.contains("notice: `--deny warnings` is now `--fail-on warning`"),
+        "{err}"
+    );
+    let output = kickback()
+        .args(["check", "--format", "human", "--color", "never"])
+        .arg(testdata("divider.cir"))
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(0));
+    let err = String::from_utf8_lossy(&output.stderr);
+    assert!(
+        err.contains("notice: `--format human` is now `--format cards`"),
+        "{err}"
+    );
+    // The old names are hidden from the help, which shows only the current ones.
+    let help = stdout_of(kickback().args(["check", "--help"]));
+    assert!(help.contains("cards") && help.contains("fail-on"), "{help}");
+    assert!(
+        !help.contains("human") && !help.contains("--deny"),
+        "{help}"
+    );
 }
 
 // ---- formats ---------------------------------------------------------------------------------
@@ -156,7 +197,7 @@ fn limits_and_deny_flags_are_accepted() {
 fn every_format_of_a_clean_check() {
     let divider = testdata("divider.cir");
     kickback()
-        .args(["check", "--format", "short"])
+        .args(["check", "--format", "lines"])
         .arg(&divider)
         .assert()
         .code(0)
@@ -303,7 +344,7 @@ fn a_folder_without_netlists_is_noted() {
 #[test]
 fn same_input_same_bytes() {
     let dir = project();
-    for format in ["human", "short", "json", "sarif"] {
+    for format in ["cards", "lines", "json", "sarif"] {
         let run = || {
             kickback()
                 .current_dir(dir.path())
@@ -343,7 +384,9 @@ fn report_prints_the_facts_in_both_formats() {
         .arg(testdata("divider.cir"))
         .assert()
         .code(2)
-        .stderr(predicate::str::contains("human or --format json"));
+        .stderr(predicate::str::contains(
+            "--format cards (tables for a person) or --format json",
+        ));
     kickback()
         .args(["report", "no-such-board.cir"])
         .assert()
@@ -447,9 +490,9 @@ fn completions_for_each_shell() {
 fn error_finding_exits_1_in_every_format() {
     let broken = testdata("syntax-error.cir");
     kickback().arg("check").arg(&broken).assert().code(1);
-    let short = stdout_of(kickback().args(["check", "--format", "short"]).arg(&broken));
-    assert!(short.contains("syntax-error.cir:3:"), "{short}");
-    assert!(short.contains(": error[syntax]: "), "{short}");
+    let lines = stdout_of(kickback().args(["check", "--format", "lines"]).arg(&broken));
+    assert!(lines.contains("syntax-error.cir:3:"), "{lines}");
+    assert!(lines.contains(": error syntax — "), "{lines}");
     let json: serde_json::Value = serde_json::from_str(&stdout_of(
         kickback().args(["check", "--format", "json"]).arg(&broken),
     ))
@@ -459,7 +502,7 @@ fn error_finding_exits_1_in_every_format() {
 }
 
 #[test]
-fn human_output_of_a_finding_through_the_program() {
+fn cards_output_of_a_finding_through_the_program() {
     let dir = tempfile::tempdir().expect("tempdir");
     fs::copy(testdata("syntax-error.cir"), dir.path().join("valve.cir")).expect("copy");
     let output = kickback()

@@ -1,11 +1,11 @@
-//! The renderers on hand-built findings: human (snapshots, colour off), short, JSON structure,
+//! The renderers on hand-built findings: cards (snapshots, colour off), lines, JSON structure,
 //! SARIF against the OASIS 2.1.0 schema. The findings imitate what the rules will say about the
 //! demo board (our own invented scenario); their numbers are illustrative only.
 
 use kickback::check::{CheckError, FileReport};
 use kickback::diagnostic::{Finding, InstanceStep, Severity};
 use kickback::netlist::LoadError;
-use kickback::report::{self, human::HumanOptions};
+use kickback::report::{self, cards::CardsOptions};
 use kickback::source::{FileId, SourceMap, Span};
 use std::path::PathBuf;
 
@@ -151,8 +151,8 @@ fn all_reports() -> Vec<FileReport> {
     vec![stirrer_report(), pump_report()]
 }
 
-fn plain() -> HumanOptions {
-    HumanOptions {
+fn plain() -> CardsOptions {
+    CardsOptions {
         color: false,
         unicode: true,
         width: 100,
@@ -162,26 +162,26 @@ fn plain() -> HumanOptions {
 }
 
 #[test]
-fn human_report_unicode() {
-    insta::assert_snapshot!(report::human::render(&all_reports(), &plain()));
+fn cards_report_unicode() {
+    insta::assert_snapshot!(report::cards::render(&all_reports(), &plain()));
 }
 
 #[test]
-fn human_report_ascii() {
-    let options = HumanOptions {
+fn cards_report_ascii() {
+    let options = CardsOptions {
         unicode: false,
         ..plain()
     };
-    insta::assert_snapshot!(report::human::render(&all_reports(), &options));
+    insta::assert_snapshot!(report::cards::render(&all_reports(), &options));
 }
 
 #[test]
-fn human_quiet_shows_only_errors_but_counts_everything() {
-    let options = HumanOptions {
+fn cards_quiet_shows_only_errors_but_counts_everything() {
+    let options = CardsOptions {
         min_severity: Severity::Error,
         ..plain()
     };
-    let text = report::human::render(&all_reports(), &options);
+    let text = report::cards::render(&all_reports(), &options);
     assert!(text.contains("gate-underdrive"));
     assert!(!text.contains("pwm-audible"));
     assert!(!text.contains("value-suspicious"));
@@ -189,13 +189,13 @@ fn human_quiet_shows_only_errors_but_counts_everything() {
 }
 
 #[test]
-fn human_colour_only_when_asked() {
+fn cards_colour_only_when_asked() {
     let reports = all_reports();
-    let off = report::human::render(&reports, &plain());
+    let off = report::cards::render(&reports, &plain());
     assert!(!off.contains('\u{1b}'), "no escape codes without colour");
-    let on = report::human::render(
+    let on = report::cards::render(
         &reports,
-        &HumanOptions {
+        &CardsOptions {
             color: true,
             ..plain()
         },
@@ -204,16 +204,16 @@ fn human_colour_only_when_asked() {
 }
 
 #[test]
-fn human_summary_names_failed_files() {
+fn cards_summary_names_failed_files() {
     let reports = vec![pump_report(), failed_report()];
-    let text = report::human::render(&reports, &plain());
+    let text = report::cards::render(&reports, &plain());
     assert!(text.ends_with(
         "2 errors, 1 note in 2 files (1 suppressed); 1 file could not be checked: hw/gone.cir\n"
     ));
 }
 
 #[test]
-fn human_survives_spans_outside_the_text() {
+fn cards_survive_spans_outside_the_text() {
     let mut sources = SourceMap::new();
     let id = sources.add("x.cir".into(), "x.cir".into(), "t\nµ1 a b\n".into());
     let findings = [
@@ -233,27 +233,27 @@ fn human_survives_spans_outside_the_text() {
         .with_label(Span::new(FileId(9), 0, 1), "nowhere"),
     ];
     for finding in &findings {
-        let text = report::human::render_finding(finding, &sources, &plain());
+        let text = report::cards::render_finding(finding, &sources, &plain());
         assert!(text.contains(&finding.message));
         assert!(!text.contains("Failed to read"), "{text}");
     }
 }
 
 #[test]
-fn short_format_is_one_line_per_finding() {
-    let text = report::short::render(&all_reports(), Severity::Note);
+fn lines_format_is_one_line_per_finding() {
+    let text = report::lines::render(&all_reports(), Severity::Note);
     insta::assert_snapshot!(text, @r"
-    hw/pump.cir:3:12: note[pwm-audible]: VPIN switches at 1 kHz: the pump will whine
-    hw/pump.cir:5:1: error[gate-underdrive]: M1 sees 3.3 V gate-source in the on state; a standard-threshold switch needs about 10 V
-    hw/pump.cir:6:1: error[flyback-missing]: the pump XPUMP is switched by M1 with no freewheeling path
-    hw/stirrer.cir:6:1: warning[value-suspicious]: R1 is 10 MΩ in a gate network; a pull-down of 10 kΩ is usual
+    hw/pump.cir:3:12: note pwm-audible — VPIN switches at 1 kHz: the pump will whine
+    hw/pump.cir:5:1: error gate-underdrive — M1 sees 3.3 V gate-source in the on state; a standard-threshold switch needs about 10 V
+    hw/pump.cir:6:1: error flyback-missing — the pump XPUMP is switched by M1 with no freewheeling path
+    hw/stirrer.cir:6:1: warning value-suspicious — R1 is 10 MΩ in a gate network; a pull-down of 10 kΩ is usual
     ");
-    let errors = report::short::render(&all_reports(), Severity::Error);
+    let errors = report::lines::render(&all_reports(), Severity::Error);
     assert_eq!(errors.lines().count(), 2);
 }
 
 #[test]
-fn short_format_keeps_multi_line_messages_on_one_line() {
+fn lines_format_keeps_multi_line_messages_on_one_line() {
     let mut sources = SourceMap::new();
     let id = sources.add("a.cir".into(), "a.cir".into(), "t\nR1 a b 1\n".into());
     let report = FileReport {
@@ -269,8 +269,8 @@ fn short_format_keeps_multi_line_messages_on_one_line() {
         failure: None,
     };
     assert_eq!(
-        report::short::render(&[report], Severity::Note),
-        "a.cir:2:1: error[syntax]: first second\n"
+        report::lines::render(&[report], Severity::Note),
+        "a.cir:2:1: error syntax — first second\n"
     );
 }
 
@@ -437,7 +437,7 @@ fn sarif_rules_come_from_the_registry_and_pages() {
             info.default_severity.as_str()
         );
         assert_eq!(descriptor["help"]["markdown"], info.page);
-        let what = report::sarif::page_section(info.page, "What it checks").expect("section");
+        let what = report::sarif::page_section(info.page, "The fault").expect("section");
         assert_eq!(descriptor["fullDescription"]["markdown"], what);
     }
     // A finding of a registered rule points at its descriptor.
@@ -467,8 +467,8 @@ fn renderers_do_not_depend_on_report_order() {
     let mut backward = all_reports();
     backward.reverse();
     assert_eq!(
-        report::human::render(&forward, &plain()),
-        report::human::render(&backward, &plain())
+        report::cards::render(&forward, &plain()),
+        report::cards::render(&backward, &plain())
     );
     assert_eq!(
         report::json::render(&forward),

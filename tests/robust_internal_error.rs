@@ -43,7 +43,7 @@ fn run(args: &[&str]) -> (u8, String, String) {
 fn a_panic_fails_its_file_only() {
     let dir = folder();
     let path = dir.path().to_str().unwrap();
-    let (code, out, err) = run(&["kickback", "check", "--format", "short", path]);
+    let (code, out, err) = run(&["kickback", "check", "--format", "lines", path]);
     assert_eq!(code, EXIT_FAILURE, "{out}{err}");
     let boom = dir.path().join("boom.cir");
     let expected = format!(
@@ -55,7 +55,7 @@ fn a_panic_fails_its_file_only() {
     assert!(err.contains("check.rs:"), "the place is named: {err}");
     for other in ["a.cir", "c.cir"] {
         assert!(
-            out.contains(&format!("{other}:3:1: warning[net-dangling]")),
+            out.contains(&format!("{other}:3:1: warning net-dangling")),
             "{other} is still checked: {out}"
         );
     }
@@ -107,7 +107,7 @@ fn no_panic_text_reaches_the_user() {
     for word in ["panicked", "backtrace", "RUST_BACKTRACE"] {
         assert!(!stderr.contains(word), "{word} in {stderr}");
     }
-    assert!(stdout.contains("warning[net-dangling]"), "{stdout}");
+    assert!(stdout.contains("warning net-dangling"), "{stdout}");
 }
 
 /// Not a test of its own: the child half of [`no_panic_text_reaches_the_user`].
@@ -122,7 +122,7 @@ fn child_runs_the_program() {
         "kickback".into(),
         "check".into(),
         "--format".into(),
-        "short".into(),
+        "lines".into(),
         dir,
     ];
     let stdout = std::io::stdout();

@@ -18,7 +18,7 @@ fn kickback() -> Command {
 fn run(dir: &tempfile::TempDir, args: &[&str]) -> (i32, String, String) {
     let output = kickback()
         .current_dir(dir.path())
-        .args(["check", "--format", "short"])
+        .args(["check", "--format", "lines"])
         .args(args)
         .output()
         .unwrap();
@@ -94,7 +94,7 @@ fn definition_and_include_nesting_follow_max_depth() {
     let (code, out, _) = run(&dir, &["--max-depth", "3", "inc.cir"]);
     assert_eq!(code, 1, "{out}");
     assert!(
-        out.contains("error[include-refused]: `n3.lib` is not read: includes are nested more than 3 levels deep (--max-depth)"),
+        out.contains("error include-refused — `n3.lib` is not read: includes are nested more than 3 levels deep (--max-depth)"),
         "{out}"
     );
 }
@@ -129,7 +129,7 @@ fn file_size_follows_max_file_size_for_netlists_and_includes() {
     assert_eq!(code, 1, "{out}");
     assert!(
         out.contains(
-            "top.cir:2:1: error[include-refused]: `parts.lib` is 2213 bytes, above the file size limit of 1000 bytes (--max-file-size), and is not read"
+            "top.cir:2:1: error include-refused — `parts.lib` is 2213 bytes, above the file size limit of 1000 bytes (--max-file-size), and is not read"
         ),
         "{out}"
     );
@@ -155,7 +155,7 @@ fn statement_length_counts_in_includes_too() {
     .unwrap();
     let (_, out, _) = run(&dir, &["--max-statement-bytes", "1000", "top.cir"]);
     assert!(
-        out.contains("parts.lib:1:1: error[syntax]: this statement is 2024 bytes long"),
+        out.contains("parts.lib:1:1: error syntax — this statement is 2024 bytes long"),
         "{out}"
     );
     assert!(out.contains("(--max-statement-bytes)"), "{out}");

@@ -20,7 +20,7 @@ fn board_folder() -> tempfile::TempDir {
     let dir = tempfile::tempdir().unwrap();
     for i in 0..18 {
         let allow = if i == 7 {
-            "* kickback: allow net-dangling -- test point for the scope probe\n"
+            "* kickback waive net-dangling because test point for the scope probe\n"
         } else {
             ""
         };
@@ -47,7 +47,7 @@ fn every_file_is_checked_or_named_as_failed() {
     let dir = board_folder();
     let output = kickback()
         .current_dir(dir.path())
-        .args(["check", "--max-file-size", "5000", "--format", "short", "."])
+        .args(["check", "--max-file-size", "5000", "--format", "lines", "."])
         .output()
         .unwrap();
     let out = String::from_utf8_lossy(&output.stdout);
@@ -56,7 +56,7 @@ fn every_file_is_checked_or_named_as_failed() {
     for i in (0..18).filter(|&i| i != 7) {
         assert!(
             out.contains(&format!(
-                "ch{i:02}.cir:3:1: warning[net-dangling]: net `tp{i}`"
+                "ch{i:02}.cir:3:1: warning net-dangling — net `tp{i}`"
             )),
             "ch{i:02} is reported: {out}"
         );
@@ -76,12 +76,12 @@ fn every_file_is_checked_or_named_as_failed() {
         .args(["check", "--max-file-size", "5000", "."])
         .output()
         .unwrap();
-    let human = String::from_utf8_lossy(&output.stdout);
-    let summary = human.lines().last().unwrap_or_default();
+    let cards = String::from_utf8_lossy(&output.stdout);
+    let summary = cards.lines().last().unwrap_or_default();
     assert_eq!(
         summary,
         "17 warnings in 20 files (1 suppressed); 2 files could not be checked: big.cir, gone.cir",
-        "{human}"
+        "{cards}"
     );
 }
 

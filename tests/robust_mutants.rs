@@ -2,7 +2,7 @@
 //! `testdata/syntax`, `testdata/demo`), each mutated in a few fixed ways a hostile or careless
 //! author might (lines dropped, doubled or swapped, a line pushed past column 65,535, an element
 //! given thousands of nodes, a value that overflows, a cut at a random byte), is checked and
-//! drawn in every format, human included. No mutant may crash, fault a renderer, end as an
+//! drawn in every format, cards included. No mutant may crash, fault a renderer, end as an
 //! internal error, give invalid JSON or SARIF, or take long.
 //!
 //! The mutants are made from a fixed seed, so a failure names a mutant that can be made again.
@@ -153,7 +153,7 @@ fn every_format_survives_every_mutant_of_every_fixture() {
         },
         config_path: None,
     };
-    let human = report::human::HumanOptions {
+    let cards = report::cards::CardsOptions {
         color: false,
         unicode: true,
         width: 100,
@@ -177,12 +177,12 @@ fn every_format_survives_every_mutant_of_every_fixture() {
                 panic!("{name}: internal error: {message}");
             }
             let reports = [file];
-            let drawn = report::human::render(&reports, &human);
+            let drawn = report::cards::render(&reports, &cards);
             assert!(
                 !drawn.contains("could not be drawn"),
                 "{name}: a finding could not be drawn"
             );
-            let _ = report::short::render(&reports, Severity::Note);
+            let _ = report::lines::render(&reports, Severity::Note);
             for (format, text) in [
                 ("json", report::json::render(&reports)),
                 ("sarif", report::sarif::render(&reports)),

@@ -15,7 +15,7 @@ fn kickback() -> Command {
     cmd
 }
 
-const FORMATS: [&str; 4] = ["human", "short", "json", "sarif"];
+const FORMATS: [&str; 4] = ["cards", "lines", "json", "sarif"];
 
 /// A board whose dangling resistor stands after 16,384 tabs: column 16,385 is drawn with an
 /// underline padded to 16,384 tab stops, past what the renderer's formatting width holds.
@@ -47,12 +47,12 @@ fn a_finding_past_column_65535_is_drawn_in_every_format() {
             "{format} printed the whole wide line"
         );
     }
-    let human = kickback()
+    let cards = kickback()
         .current_dir(dir.path())
         .args(["check", "wide.cir"])
         .output()
         .unwrap();
-    let text = String::from_utf8_lossy(&human.stdout);
+    let text = String::from_utf8_lossy(&cards.stdout);
     // The real line and column, and the text around the span.
     assert!(text.contains("wide.cir:3:16385"), "{text}");
     assert!(text.contains("R1 vcc dangle 1k"), "{text}");
@@ -78,7 +78,7 @@ fn a_wide_board_costs_the_other_boards_nothing() {
         let stdout = String::from_utf8_lossy(&output.stdout);
         assert!(stdout.contains("typo"), "{format}: {stdout}");
         assert!(stdout.contains("dangle"), "{format}: {stdout}");
-        if format == "human" {
+        if format == "cards" {
             assert!(stdout.contains("2 warnings in 2 files"), "{stdout}");
         }
         codes.push(output.status.code());

@@ -25,15 +25,15 @@ fn render_all(file: FileReport) {
         panic!("internal error: {message}");
     }
     let reports = [file];
-    let human = report::human::HumanOptions {
+    let human = report::cards::CardsOptions {
         color: true,
         unicode: true,
         width: 80,
         min_severity: Severity::Note,
         summary: true,
     };
-    let _ = report::human::render(&reports, &human);
-    let _ = report::short::render(&reports, Severity::Note);
+    let _ = report::cards::render(&reports, &human);
+    let _ = report::lines::render(&reports, Severity::Note);
     let json = report::json::render(&reports);
     assert!(
         serde_json::from_str::<serde_json::Value>(&json).is_ok(),

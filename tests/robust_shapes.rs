@@ -16,14 +16,14 @@ fn kickback() -> Command {
     cmd
 }
 
-/// Writes `bytes` as `name` and checks it in the short format: (exit code, stdout, stderr).
+/// Writes `bytes` as `name` and checks it in the lines format: (exit code, stdout, stderr).
 fn check(name: &str, bytes: &[u8], extra: &[&str]) -> (i32, String, String) {
     let dir = tempfile::tempdir().unwrap();
     let path = dir.path().join(name);
     std::fs::write(&path, bytes).unwrap();
     let output = kickback()
         .current_dir(dir.path())
-        .args(["check", "--format", "short"])
+        .args(["check", "--format", "lines"])
         .args(extra)
         .arg(name)
         .output()
@@ -42,7 +42,7 @@ fn assert_dangling_b_at_line_3(name: &str, bytes: &[u8]) {
     assert_eq!(
         out.lines().collect::<Vec<_>>(),
         [format!(
-            "{name}:3:1: warning[net-dangling]: net `b` has a single connection (R1 node 2): \
+            "{name}:3:1: warning net-dangling — net `b` has a single connection (R1 node 2): \
              nothing else is wired to it"
         )],
         "{err}"
@@ -100,7 +100,7 @@ fn a_nul_byte_is_part_of_a_word_and_shows_in_the_finding_at_its_line() {
     let (code, out, _) = check("nul.cir", b"Doser\nV1 a 0 12\nR1 a\x00 0 1k\n.end\n", &[]);
     assert_eq!(code, 0, "{out}");
     assert!(
-        out.contains("nul.cir:3:1: warning[net-dangling]: net `a\u{0}` has a single connection"),
+        out.contains("nul.cir:3:1: warning net-dangling — net `a\u{0}` has a single connection"),
         "{out}"
     );
 }
@@ -120,7 +120,7 @@ fn a_million_character_comment_line_passes() {
     let (code, out, err) = check("comment.cir", deck.as_bytes(), &[]);
     assert_eq!(code, 0, "{err}");
     assert!(
-        out.starts_with("comment.cir:4:1: warning[net-dangling]"),
+        out.starts_with("comment.cir:4:1: warning net-dangling"),
         "{out}"
     );
     assert_eq!(out.lines().count(), 1);
@@ -141,7 +141,7 @@ fn a_million_character_statement_is_read_or_skipped_by_the_statement_limit() {
     assert_eq!(code, 1, "{out}");
     assert!(
         out.contains(
-            "sum.cir:3:1: error[syntax]: this statement is 1000008 bytes long with its \
+            "sum.cir:3:1: error syntax — this statement is 1000008 bytes long with its \
              continuation lines, above the statement length limit of 65536 bytes \
              (--max-statement-bytes); it is skipped"
         ),
@@ -155,7 +155,7 @@ fn a_million_character_statement_is_read_or_skipped_by_the_statement_limit() {
     let (code, out, _) = check("big.cir", deck.as_bytes(), &[]);
     assert_eq!(code, 1, "{out}");
     assert!(
-        out.contains("big.cir:3:1: error[syntax]: this statement is"),
+        out.contains("big.cir:3:1: error syntax — this statement is"),
         "{out}"
     );
     assert!(out.contains("limit of 1048576 bytes"), "{out}");
@@ -181,7 +181,7 @@ fn very_many_continuation_lines() {
     );
     assert_eq!(code, 1, "{out}");
     assert!(
-        out.contains("long.cir:3:1: error[syntax]: this statement is"),
+        out.contains("long.cir:3:1: error syntax — this statement is"),
         "{out}"
     );
 }

@@ -40,7 +40,7 @@ fn render(path: &Path, grade_problems: &mut Vec<String>) -> (String, Vec<String>
         let loc = report.sources.locate(f.span);
         writeln!(
             text,
-            "{}:{}: {}[{}]: {}",
+            "{}:{}: {} {} — {}",
             loc.line, loc.column, f.severity, f.rule, f.message
         )
         .unwrap();

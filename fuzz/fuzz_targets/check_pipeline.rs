@@ -24,15 +24,15 @@ fuzz_target!(|data: &[u8]| {
         panic!("internal error: {message}");
     }
     let reports = [file];
-    let human = report::human::HumanOptions {
+    let human = report::cards::CardsOptions {
         color: true,
         unicode: true,
         width: 100,
         min_severity: Severity::Note,
         summary: true,
     };
-    let _ = report::human::render(&reports, &human);
-    let _ = report::short::render(&reports, Severity::Note);
+    let _ = report::cards::render(&reports, &human);
+    let _ = report::lines::render(&reports, Severity::Note);
     let _ = report::json::render(&reports);
     let _ = report::sarif::render(&reports);
 });

@@ -11,8 +11,8 @@ use std::path::PathBuf;
              switches and motors",
     long_about = None,
     arg_required_else_help = true,
-    after_help = "Exit codes: 0 no error-level findings, 1 error-level findings \
-                  (warnings too with --deny warnings), 2 the check could not be done."
+    after_help = "Exit codes: 0 nothing at the failing level, 1 findings at the failing level \
+                  (errors; warnings too with --fail-on warning), 2 the check could not be done."
 )]
 pub struct Cli {
     #[command(flatten)]
@@ -23,19 +23,23 @@ pub struct Cli {
 
 #[derive(Debug, Args)]
 pub struct GlobalArgs {
-    /// Output format.
-    #[arg(long, global = true, value_enum, default_value_t = Format::Human)]
+    /// Output format: `cards` for a person (one card per finding), `lines` for editors and
+    /// terminals (one line per finding), `json`, `sarif`.
+    #[arg(long, global = true, value_enum, default_value_t = Format::Cards)]
     pub format: Format,
     /// Use this configuration file instead of looking for kickback.toml beside each netlist.
     #[arg(long, global = true, value_name = "PATH")]
     pub config: Option<PathBuf>,
-    /// Treat warnings as errors for the exit code.
+    /// The lowest severity that fails the check (exit code 1) [default: error].
     #[arg(long, global = true, value_enum, value_name = "LEVEL")]
+    pub fail_on: Option<FailOn>,
+    /// The earlier spelling of `--fail-on warning`, read for one release.
+    #[arg(long, global = true, value_enum, value_name = "LEVEL", hide = true)]
     pub deny: Option<Deny>,
-    /// Show only the findings that fail the check, and the summary (human and short formats).
+    /// Show only the findings that fail the check, and the summary (cards and lines formats).
     #[arg(long, short, global = true)]
     pub quiet: bool,
-    /// When to colour the human format; `auto` colours a terminal unless NO_COLOR is set.
+    /// When to colour the cards format; `auto` colours a terminal unless NO_COLOR is set.
     #[arg(long, global = true, value_enum, default_value_t = ColorChoice::Auto, value_name = "WHEN")]
     pub color: ColorChoice,
     /// Refuse netlists that flatten to more elements than this; a line with more than ten
@@ -106,10 +110,43 @@ pub enum Command {
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
 pub enum Format {
-    Human,
-    Short,
+    /// For a person: a card per finding with the lines involved, the numbers and the fix.
+    Cards,
+    /// One line per finding after a `file:line:col: ` prefix, for editors and terminals.
+    Lines,
     Json,
     Sarif,
+    /// The earlier name of `cards`, read for one release.
+    #[value(hide = true)]
+    Human,
+    /// The earlier name of `lines`, read for one release.
+    #[value(hide = true)]
+    Short,
+}
+
+impl Format {
+    /// The format itself, with the earlier names mapped to the current ones, and the notice
+    /// to give when an earlier name was used.
+    pub fn current(self) -> (Format, Option<&'static str>) {
+        match self {
+            Format::Human => (
+                Format::Cards,
+                Some("`--format human` is now `--format cards`; the old name is read until the next release"),
+            ),
+            Format::Short => (
+                Format::Lines,
+                Some("`--format short` is now `--format lines`; the old name is read until the next release"),
+            ),
+            other => (other, None),
+        }
+    }
+}
+
+/// The lowest severity that fails a check.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]
+pub enum FailOn {
+    Error,
+    Warning,
 }
 
 #[derive(Clone, Copy, Debug, PartialEq, Eq, ValueEnum)]

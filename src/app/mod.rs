@@ -2,7 +2,7 @@
 //! turns the outcome into an exit code. `src/main.rs` only calls [`main`].
 //!
 //! Exit codes: [`EXIT_CLEAN`] no error-level findings, [`EXIT_FINDINGS`] error-level findings
-//! (warnings too with `--deny warnings`), [`EXIT_FAILURE`] the tool could not do its job.
+//! (warnings too with `--fail-on warning`), [`EXIT_FAILURE`] the tool could not do its job.
 
 pub mod catalogue;
 pub mod cli;
@@ -14,10 +14,10 @@ use crate::check::{check_file, CheckError, CheckOptions, FileReport};
 use crate::config::Config;
 use crate::diagnostic::Severity;
 use crate::netlist::{Limits, LoadError};
-use crate::report::{self, human::HumanOptions};
+use crate::report::{self, cards::CardsOptions};
 use crate::source::SourceMap;
 use clap::{CommandFactory, Parser};
-use cli::{Cli, Command, Deny, Format, GlobalArgs};
+use cli::{Cli, Command, Deny, FailOn, Format, GlobalArgs};
 use rayon::prelude::*;
 use std::ffi::OsString;
 use std::io::{self, Write};
@@ -66,7 +66,7 @@ where
     I: IntoIterator<Item = T>,
     T: Into<OsString> + Clone,
 {
-    let cli = match Cli::try_parse_from(args) {
+    let mut cli = match Cli::try_parse_from(args) {
         Ok(cli) => cli,
         Err(e) => return usage(&e, env, out, err),
     };
@@ -75,6 +75,9 @@ where
         err,
         failed: false,
     };
+    for notice in settle_old_spellings(&mut cli.global) {
+        console.notice(notice);
+    }
     let code = match &cli.command {
         Command::Check { paths } => check(paths, &cli.global, env, &mut console),
         Command::Report { file } => report_command(file, &cli.global, &mut console),
@@ -89,6 +92,30 @@ where
         }
     };
     code.max(console.trouble())
+}
+
+/// Maps the spellings of the previous release (`--format human|short`, `--deny warnings`) to
+/// the current ones, and returns one notice for each that was used.
+fn settle_old_spellings(global: &mut GlobalArgs) -> Vec<&'static str> {
+    let mut notices = Vec::new();
+    let (format, notice) = global.format.current();
+    global.format = format;
+    notices.extend(notice);
+    if global.deny == Some(Deny::Warnings) {
+        notices.push(
+            "`--deny warnings` is now `--fail-on warning`; the old spelling is read until the next release",
+        );
+        global.fail_on.get_or_insert(FailOn::Warning);
+    }
+    notices
+}
+
+/// The severity at which findings fail a check.
+fn failing_severity(global: &GlobalArgs) -> Severity {
+    match global.fail_on {
+        Some(FailOn::Warning) => Severity::Warning,
+        Some(FailOn::Error) | None => Severity::Error,
+    }
 }
 
 /// clap's own messages: help and version go to stdout with exit 0, usage errors to stderr
@@ -132,28 +159,27 @@ fn check(
             ));
         }
     }
-    let failing = if global.deny == Some(Deny::Warnings) {
-        Severity::Warning
-    } else {
-        Severity::Error
-    };
+    let failing = failing_severity(global);
     let shown = if global.quiet {
         failing
     } else {
         Severity::Note
     };
-    let human = HumanOptions {
+    let cards = CardsOptions {
         color: env.color(global.color),
         unicode: env.unicode(),
         width: env.width(),
         min_severity: shown,
         summary: false,
     };
-    // Files are checked a batch at a time, in path order; the human and short formats print
+    // Files are checked a batch at a time, in path order; the cards and lines formats print
     // each batch as soon as it is done and keep only the counts, so a run over many boards
     // neither waits for the last one to say anything nor holds every report until the end.
     // JSON and SARIF are one document each: their reports are kept and written at the end.
-    let streamed = matches!(global.format, Format::Human | Format::Short);
+    let streamed = matches!(
+        global.format,
+        Format::Cards | Format::Lines | Format::Human | Format::Short
+    );
     let mut jobs: Vec<Job> = found.files.into_iter().map(Job::Check).collect();
     jobs.extend(found.failures.into_iter().map(Job::Unreadable));
     jobs.sort_by(|a, b| a.path().cmp(b.path()));
@@ -182,8 +208,8 @@ fn check(
         if streamed {
             add_counts(&mut totals, &report::Summary::of(&reports));
             let text = match global.format {
-                Format::Human => report::human::render(&reports, &human),
-                _ => report::short::render(&reports, shown),
+                Format::Cards | Format::Human => report::cards::render(&reports, &cards),
+                _ => report::lines::render(&reports, shown),
             };
             console.print(&text);
         } else {
@@ -191,13 +217,13 @@ fn check(
         }
     }
     let text = match global.format {
-        Format::Human => {
+        Format::Cards | Format::Human => {
             totals.failed.sort();
-            let mut line = report::human::summary_line(&totals, &human);
+            let mut line = report::cards::summary_line(&totals, &cards);
             line.push('\n');
             line
         }
-        Format::Short => String::new(),
+        Format::Lines | Format::Short => String::new(),
         Format::Json => report::json::render(&kept),
         Format::Sarif => report::sarif::render(&kept),
     };
@@ -307,8 +333,8 @@ fn rules_command(global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
 }
 
 fn report_command(file: &Path, global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
-    if !matches!(global.format, Format::Human | Format::Json) {
-        console.error("report prints --format human or --format json");
+    if !matches!(global.format, Format::Cards | Format::Json) {
+        console.error("report prints --format cards (tables for a person) or --format json");
         return EXIT_FAILURE;
     }
     if !file.is_file() {
@@ -392,6 +418,11 @@ impl Console<'_> {
 
     fn note(&mut self, message: &str) {
         self.write_err(&format!("note: {message}\n"));
+    }
+
+    /// A change of spelling the user should know about; never affects the exit code.
+    fn notice(&mut self, message: &str) {
+        self.write_err(&format!("notice: {message}\n"));
     }
 
     fn write_err(&mut self, text: &str) {

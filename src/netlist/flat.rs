@@ -208,13 +208,16 @@ impl FlatElement {
     }
 }
 
-/// A `* kickback: allow rule-a, rule-b -- reason` comment.
+/// A `* kickback waive rule-a, rule-b because reason` comment.
 #[derive(Clone, Debug, PartialEq)]
 pub struct Suppression {
     /// Rule IDs as written, lower-cased.
     pub rules: Vec<String>,
-    /// The text after `--`, when given (required by the rules; absent is itself a finding).
+    /// The text after `because`, when given (required by the rules; absent is itself a finding).
     pub reason: Option<String>,
+    /// Written in the earlier form, `kickback: allow rule-a -- reason`: still honoured for one
+    /// release, with a note that gives the current form.
+    pub earlier_form: bool,
     /// The comment's own span.
     pub span: Span,
     /// 1-based line of the statement it applies to: its own line when it trails an element,

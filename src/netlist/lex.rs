@@ -4,7 +4,7 @@
 //! the file text, so nothing is copied.
 
 use super::flat::Suppression;
-use super::suppress::parse_allow;
+use super::suppress::parse_waiver;
 use super::text::is_ws;
 use super::text::{first_word, space_len, word_len};
 use crate::diagnostic::{Finding, Severity};
@@ -514,15 +514,16 @@ impl Lexer<'_> {
         taken
     }
 
-    /// Records a `kickback: allow ...` comment; `own_line` is set for trailing comments.
+    /// Records a `kickback waive ...` comment; `own_line` is set for trailing comments.
     fn suppression(&mut self, at: usize, comment: &str, own_line: Option<u32>) {
-        let Some((rules, reason)) = parse_allow(comment) else {
+        let Some(waiver) = parse_waiver(comment) else {
             return;
         };
         let len = comment.trim_end_matches(is_ws).len();
         let suppression = Suppression {
-            rules,
-            reason,
+            rules: waiver.rules,
+            reason: waiver.reason,
+            earlier_form: waiver.earlier_form,
             span: Span::new(self.out.file, at, at + len),
             target_line: own_line.unwrap_or(0) as usize,
             file: self.out.file,

@@ -3,7 +3,7 @@
 //! which subcircuits to keep whole.
 //!
 //! Stages, each in its own module: `text` (decoding, caseless names), `lex` (lines, comments,
-//! continuation, tokens) with `suppress` (allow comments) and `dialect` (other netlist
+//! continuation, tokens) with `suppress` (waiver comments) and `dialect` (other netlist
 //! families), `load` (files, includes, definitions), `deck` (names, headers, models), `scope`,
 //! `expr` and `functions` (parameters and expressions), [`value`] (numbers), `stmt` and
 //! `element*` (per-letter grammar into `parsed` parts), `flatten` and `source_spec` (hierarchy

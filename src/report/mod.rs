@@ -4,12 +4,13 @@
 //! text. They share the order of findings ([`ordered`]), the counts ([`Summary`]) and the way a
 //! number is written for a person ([`format_quantity`]).
 
+mod card_parts;
+pub mod cards;
 pub mod facts;
 mod facts_table;
-pub mod human;
 pub mod json;
+pub mod lines;
 pub mod sarif;
-pub mod short;
 mod source_window;
 mod wide_lines;
 

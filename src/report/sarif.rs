@@ -125,7 +125,7 @@ pub fn render(reports: &[FileReport]) -> String {
 }
 
 fn descriptor(rule: &Rule) -> sarif::ReportingDescriptor {
-    let what = page_section(rule.page, "What it checks").unwrap_or(rule.summary);
+    let what = page_section(rule.page, "The fault").unwrap_or(rule.summary);
     sarif::ReportingDescriptor::builder()
         .id(rule.id)
         .name(rule.id)
@@ -290,11 +290,8 @@ mod tests {
 
     #[test]
     fn page_sections_are_found_by_title() {
-        let page = "# x\n\n## What it checks\n\nThe thing.\nMore.\n\n## Why\n\nBecause.\n";
-        assert_eq!(
-            page_section(page, "What it checks"),
-            Some("The thing.\nMore.")
-        );
+        let page = "# x\n\n## The fault\n\nThe thing.\nMore.\n\n## Why\n\nBecause.\n";
+        assert_eq!(page_section(page, "The fault"), Some("The thing.\nMore."));
         assert_eq!(page_section(page, "why"), Some("Because."));
         assert_eq!(page_section(page, "Missing"), None);
     }

@@ -80,8 +80,8 @@ pub const SUPPRESSION_UNUSED: Rule = Rule {
 pub const SUPPRESSION_INVALID: Rule = Rule {
     id: "suppression-invalid",
     default_severity: Severity::Warning,
-    grades: &[Severity::Warning],
-    summary: "A suppression comment without a reason or naming an unknown rule",
+    grades: &[Severity::Warning, Severity::Note],
+    summary: "A suppression comment without a reason or naming an unknown rule (a note for the earlier form)",
     page: include_str!("../../rules/suppression-invalid.md"),
     check: None,
 };

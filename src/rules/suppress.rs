@@ -92,8 +92,29 @@ pub fn apply(
 }
 
 /// A suppression must name known rules and give a reason; otherwise it is itself a finding.
+/// One in the earlier form is honoured, with a note that gives the current form.
 fn is_valid(s: &Suppression, out: &mut Vec<Finding>) -> bool {
     let mut ok = true;
+    if s.earlier_form {
+        out.push(
+            Finding::new(
+                "suppression-invalid",
+                Severity::Note,
+                s.span,
+                "this suppression is in the earlier form `kickback: allow ... -- ...`, which is \
+                 read until the next release",
+            )
+            .with_help(format!(
+                "rewrite it as `kickback waive {} because {}`",
+                if s.rules.is_empty() {
+                    "<rule-id>".to_string()
+                } else {
+                    s.rules.join(", ")
+                },
+                s.reason.as_deref().unwrap_or("<reason>")
+            )),
+        );
+    }
     for rule in &s.rules {
         if super::find(rule).is_none() {
             let near = closest_rules(rule);
@@ -118,7 +139,10 @@ fn is_valid(s: &Suppression, out: &mut Vec<Finding>) -> bool {
                 s.span,
                 "this suppression names no rule",
             )
-            .with_help("write `* kickback: allow <rule-id> -- <reason>`"),
+            .with_help(
+                "write `* kickback waive <rule-id> because <reason>` on the line above the \
+                 element",
+            ),
         );
         ok = false;
     }
@@ -128,10 +152,10 @@ fn is_valid(s: &Suppression, out: &mut Vec<Finding>) -> bool {
                 "suppression-invalid",
                 Severity::Warning,
                 s.span,
-                "a suppression needs a reason after `--`, so the next reviewer knows why",
+                "a suppression needs a reason after `because`, so the next reviewer knows why",
             )
             .with_help(format!(
-                "write `* kickback: allow {} -- <why this is safe here>`",
+                "write `* kickback waive {} because <why this is safe here>`",
                 s.rules.join(", ")
             )),
         );

@@ -180,7 +180,7 @@ impl Kit {
         if std::env::var_os("KICKBACK_SHOW").is_some() {
             for f in &found {
                 eprintln!(
-                    "{}[{}] at {}: {}",
+                    "{} {} at {}: {}",
                     f.severity,
                     f.rule,
                     self.element_at(f.span),

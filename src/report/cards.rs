@@ -1,20 +1,21 @@
-//! `--format human`: miette's graphical report for each finding — the netlist lines with labels,
-//! the rule and severity, the fix, the numbers behind the finding — and a summary line.
+//! `--format cards`: one card per finding — a heading with the element, its place, the
+//! severity and the rule; the message; the netlist lines with labels (drawn by miette in a frame
+//! of our own, `card_parts::theme`); the numbers as a table with their sources; the fix — and
+//! a summary line.
 
+use super::card_parts::{self as card, paint, Look, GREEN_BOLD, RED_BOLD, YELLOW_BOLD};
 use super::source_window::{has_lone_cr, NetlistSource};
 use super::wide_lines::{touches_wide_line, ClippedSource, SnippetSource};
-use super::{format_quantity, ordered, Entry, Summary};
+use super::{ordered, Entry, Summary};
 use crate::diagnostic::{Finding, Severity};
 use crate::outcome::FileReport;
 use crate::source::{FileId, SourceMap, Span};
-use miette::{
-    Diagnostic, GraphicalReportHandler, GraphicalTheme, LabeledSpan, SourceCode, SourceSpan,
-};
+use miette::{Diagnostic, GraphicalReportHandler, LabeledSpan, SourceCode, SourceSpan};
 use std::collections::{BTreeMap, HashMap};
 use std::fmt;
 
 #[derive(Clone, Debug, PartialEq, Eq)]
-pub struct HumanOptions {
+pub struct CardsOptions {
     /// ANSI colour. The caller decides (terminal, `--color`, `NO_COLOR`); the renderer obeys.
     pub color: bool,
     /// Box-drawing characters and `→`; plain ASCII otherwise.
@@ -27,9 +28,9 @@ pub struct HumanOptions {
     pub summary: bool,
 }
 
-impl Default for HumanOptions {
+impl Default for CardsOptions {
     fn default() -> Self {
-        HumanOptions {
+        CardsOptions {
             color: false,
             unicode: true,
             width: 100,
@@ -40,7 +41,7 @@ impl Default for HumanOptions {
 }
 
 /// Every finding of every file in order, then the summary line.
-pub fn render(reports: &[FileReport], options: &HumanOptions) -> String {
+pub fn render(reports: &[FileReport], options: &CardsOptions) -> String {
     let mut out = String::new();
     let lone_cr: HashMap<*const FileReport, Vec<bool>> = reports
         .iter()
@@ -66,7 +67,7 @@ pub fn render(reports: &[FileReport], options: &HumanOptions) -> String {
 /// One finding drawn, or, should the drawing fail, one line that still says what and where:
 /// a fault in drawing one finding costs only that finding's snippet, never the other findings,
 /// the summary or the exit code.
-fn render_entry(entry: &Entry<'_>, options: &HumanOptions, lone_cr: &[bool]) -> String {
+fn render_entry(entry: &Entry<'_>, options: &CardsOptions, lone_cr: &[bool]) -> String {
     let drawn = std::panic::catch_unwind(std::panic::AssertUnwindSafe(|| {
         render_finding_with(entry.finding, &entry.report.sources, options, lone_cr)
     }));
@@ -79,17 +80,14 @@ fn render_entry(entry: &Entry<'_>, options: &HumanOptions, lone_cr: &[bool]) -> 
         let at = &entry.location;
         let finding = entry.finding;
         format!(
-            "{}:{}:{}: {}[{}]: {} (the snippet could not be drawn: {why})\n",
+            "{}:{}:{}: {} {} — {} (the snippet could not be drawn: {why})\n",
             at.file, at.line, at.column, finding.severity, finding.rule, finding.message
         )
     })
 }
 
-pub fn summary_line(summary: &Summary, options: &HumanOptions) -> String {
+pub fn summary_line(summary: &Summary, options: &CardsOptions) -> String {
     let line = summary.line();
-    if !options.color {
-        return line;
-    }
     let code = if summary.errors > 0 || !summary.failed.is_empty() {
         RED_BOLD
     } else if summary.warnings > 0 {
@@ -97,21 +95,20 @@ pub fn summary_line(summary: &Summary, options: &HumanOptions) -> String {
     } else {
         GREEN_BOLD
     };
-    paint(code, &line)
+    paint(look(options), code, &line)
 }
 
-const RED_BOLD: &str = "1;31";
-const YELLOW_BOLD: &str = "1;33";
-const GREEN_BOLD: &str = "1;32";
-const CYAN: &str = "36";
-
-fn paint(code: &str, text: &str) -> String {
-    format!("\u{1b}[{code}m{text}\u{1b}[0m")
+fn look(options: &CardsOptions) -> Look {
+    Look {
+        color: options.color,
+        unicode: options.unicode,
+        width: options.width,
+    }
 }
 
 /// One finding: the snippet of the file that holds its primary span (with every label and
 /// instance line in that file), the fix, the numbers, then the lines it involves in other files.
-pub fn render_finding(finding: &Finding, sources: &SourceMap, options: &HumanOptions) -> String {
+pub fn render_finding(finding: &Finding, sources: &SourceMap, options: &CardsOptions) -> String {
     render_finding_with(finding, sources, options, &lone_cr_files(sources))
 }
 
@@ -127,11 +124,12 @@ fn lone_cr_files(sources: &SourceMap) -> Vec<bool> {
 fn render_finding_with(
     finding: &Finding,
     sources: &SourceMap,
-    options: &HumanOptions,
+    options: &CardsOptions,
     lone_cr: &[bool],
 ) -> String {
     let lone = |file: FileId| lone_cr.get(file.0 as usize).copied().unwrap_or(true);
-    let handler = GraphicalReportHandler::new_themed(theme(options)).with_width(options.width);
+    let look = look(options);
+    let handler = GraphicalReportHandler::new_themed(card::theme(look)).with_width(options.width);
     let primary_file = finding.span.file;
     let mut groups: BTreeMap<FileId, Vec<LabeledSpan>> = BTreeMap::new();
     for (span, text) in involved_lines(finding) {
@@ -141,54 +139,32 @@ fn render_finding_with(
         }
     }
     let mut primary_labels = groups.remove(&primary_file).unwrap_or_default();
+    let mut place = String::new();
     let primary_source = sources.get(primary_file).map(|file| {
         primary_labels.push(LabeledSpan::new_primary_with_span(
             None,
             clamp(&file.text, finding.span),
         ));
+        let (line, column) = file.line_col(finding.span.start.min(file.text.len() as u32));
+        place = format!("{}:{line}:{column}", file.name);
         snippet_source(&file.name, file, lone(primary_file), &mut primary_labels)
     });
-    let mut message = finding.message.clone();
+    let mut out = card::heading(finding, &place, look);
+    out.push_str(&card::message(&finding.message, look));
     if let Some(chain) = instance_chain(finding, sources, options.unicode) {
-        message.push('\n');
-        message.push_str(&chain);
+        out.push_str(&card::message(&chain, look));
     }
     let main = Snippet {
-        code: Some(format!("{}[{}]", finding.severity, finding.rule)),
-        severity: miette_severity(finding.severity),
-        message,
-        help: finding.help.as_deref(),
         source: primary_source,
         labels: primary_labels,
     };
-    let mut out = String::new();
-    // Writing into a String cannot fail.
-    let _ = handler.render_report(&mut out, &main);
-    for quantity in &finding.values {
-        let mut line = format!(
-            "{}: {}",
-            quantity.name,
-            format_quantity(quantity.value, &quantity.unit, !options.unicode)
-        );
-        if !quantity.source.is_empty() {
-            line.push_str(&format!(" ({})", quantity.source));
-        }
-        let equals = if options.color {
-            paint(CYAN, "=")
-        } else {
-            "=".to_string()
-        };
-        out.push_str(&format!("  {equals} {line}\n"));
-    }
+    out.push_str(&frame(&handler, &main));
     for (file, mut labels) in groups {
         let Some(source) = sources.get(file) else {
             continue;
         };
+        out.push_str(&format!("  also in {}:\n", source.name));
         let related = Snippet {
-            code: None,
-            severity: miette::Severity::Advice,
-            message: format!("related lines in {}", source.name),
-            help: None,
             source: Some(snippet_source(
                 &source.name,
                 source,
@@ -197,10 +173,34 @@ fn render_finding_with(
             )),
             labels,
         };
+        out.push_str(&frame(&handler, &related));
+    }
+    let table = card::numbers(&finding.values, look);
+    if !table.is_empty() {
         out.push('\n');
-        let _ = handler.render_report(&mut out, &related);
+        out.push_str(&table);
+    }
+    if let Some(help) = &finding.help {
+        out.push('\n');
+        out.push_str(&card::fix(help, look));
     }
     out
+}
+
+/// The netlist lines of a snippet in the card's frame; nothing when it has no lines to show.
+fn frame(handler: &GraphicalReportHandler, snippet: &Snippet<'_>) -> String {
+    if snippet.source.is_none() || snippet.labels.is_empty() {
+        return String::new();
+    }
+    let mut rendered = String::new();
+    // Writing into a String cannot fail.
+    let _ = handler.render_report(&mut rendered, snippet);
+    let framed = card::frame_only(&rendered);
+    if framed.trim().is_empty() {
+        String::new()
+    } else {
+        format!("\n{framed}")
+    }
 }
 
 /// The text a snippet of `file` reads: the file itself, or, when a label lies on a very wide
@@ -283,23 +283,6 @@ fn instance_chain(finding: &Finding, sources: &SourceMap, unicode: bool) -> Opti
     Some(format!("in {}", parts.join(arrow)))
 }
 
-fn theme(options: &HumanOptions) -> GraphicalTheme {
-    match (options.color, options.unicode) {
-        (true, true) => GraphicalTheme::unicode(),
-        (true, false) => GraphicalTheme::ascii(),
-        (false, true) => GraphicalTheme::unicode_nocolor(),
-        (false, false) => GraphicalTheme::none(),
-    }
-}
-
-fn miette_severity(severity: Severity) -> miette::Severity {
-    match severity {
-        Severity::Error => miette::Severity::Error,
-        Severity::Warning => miette::Severity::Warning,
-        Severity::Note => miette::Severity::Advice,
-    }
-}
-
 /// A span that fits the text and starts and ends on character boundaries, so miette can always
 /// read it.
 fn clamp(text: &str, span: Span) -> SourceSpan {
@@ -315,40 +298,23 @@ fn clamp(text: &str, span: Span) -> SourceSpan {
     (start, end - start).into()
 }
 
+/// The netlist lines of one file that a card shows, for miette to draw. It has no message,
+/// code or help of its own: the card draws those.
 #[derive(Debug)]
 struct Snippet<'a> {
-    code: Option<String>,
-    severity: miette::Severity,
-    message: String,
-    help: Option<&'a str>,
     source: Option<SnippetSource<'a>>,
     labels: Vec<LabeledSpan>,
 }
 
 impl fmt::Display for Snippet<'_> {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        f.write_str(&self.message)
+    fn fmt(&self, _: &mut fmt::Formatter<'_>) -> fmt::Result {
+        Ok(())
     }
 }
 
 impl std::error::Error for Snippet<'_> {}
 
 impl Diagnostic for Snippet<'_> {
-    fn code<'b>(&'b self) -> Option<Box<dyn fmt::Display + 'b>> {
-        self.code
-            .as_ref()
-            .map(|code| Box::new(code) as Box<dyn fmt::Display>)
-    }
-
-    fn severity(&self) -> Option<miette::Severity> {
-        Some(self.severity)
-    }
-
-    fn help<'b>(&'b self) -> Option<Box<dyn fmt::Display + 'b>> {
-        self.help
-            .map(|help| Box::new(help) as Box<dyn fmt::Display>)
-    }
-
     fn source_code(&self) -> Option<&dyn SourceCode> {
         self.source.as_ref().map(|s| s as &dyn SourceCode)
     }

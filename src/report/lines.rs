@@ -1,5 +1,7 @@
-//! `--format short`: `path:line:col: severity[rule-id]: message`, one finding per line — the
-//! form editors, terminals and quickfix lists parse.
+//! `--format lines`: `path:line:col: severity rule-id — message`, one finding per line. The
+//! `path:line:col: ` prefix is the GNU convention that editors, terminals and quickfix lists
+//! parse; the rest of the line is kickback's own: the severity as the first word (so those
+//! lists can tell errors from warnings), the rule, then the message after a dash.
 
 use super::ordered;
 use crate::diagnostic::Severity;
@@ -15,7 +17,7 @@ pub fn render(reports: &[FileReport], min_severity: Severity) -> String {
         }
         let loc = &entry.location;
         out.push_str(&format!(
-            "{}:{}:{}: {}[{}]: {}\n",
+            "{}:{}:{}: {} {} — {}\n",
             loc.file,
             loc.line,
             loc.column,
