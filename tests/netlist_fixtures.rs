@@ -83,6 +83,8 @@ const CLEAN: &[&str] = &[
     "blank_dc_value.cir",
     // Quoted attribute values are bill-of-materials text, not parameters.
     "quoted_attributes.cir",
+    // A `.model` card's `)` alone on the line after its `+` lines.
+    "model_paren_own_line.cir",
     // Parses clean; the missing library is the rules' business (one path, see below).
     "lib_path_with_spaces.cir",
     "suppressions.cir",
@@ -726,4 +728,20 @@ fn an_unquoted_lib_path_with_spaces_is_one_path() {
         .map(|m| m.path.as_str())
         .collect();
     assert_eq!(paths, ["C:\\Program Files\\sim\\lib\\cmp\\standard.dio"]);
+}
+
+#[test]
+fn a_model_closed_on_its_own_line_keeps_its_parameters() {
+    let (flat, _, _) = fixture("model_paren_own_line.cir");
+    let model = flat
+        .models
+        .iter()
+        .find(|m| m.name == "DFW")
+        .expect("model DFW");
+    let names: Vec<&str> = model.params.iter().map(|(k, _)| k.as_str()).collect();
+    assert_eq!(names.len(), 3, "{names:?}");
+    assert!(
+        names.iter().any(|k| k.eq_ignore_ascii_case("bv")),
+        "{names:?}"
+    );
 }

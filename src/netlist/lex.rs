@@ -243,6 +243,18 @@ pub fn lex(file: FileId, text: &str, is_top: bool) -> Lexed {
                 lx.suppression(cstart, content, None);
                 continue;
             }
+            // A `.model` card's closing parenthesis alone on its line, after `+` lines of
+            // parameters: read as the card's last continuation, as simulators do.
+            Some(')')
+                if content.trim_end() == ")"
+                    && lx.open.is_some_and(|open| open.3 == Head::Dot(Dot::Model)) =>
+            {
+                let consumed = lx.continue_group(cstart, content);
+                if consumed == 0 || consumed < content.len() {
+                    lx.segment(cstart + consumed, &content[consumed..]);
+                }
+                continue;
+            }
             Some('+') => {
                 if lx.open.is_none() {
                     if line_no > 2 || !is_top {
