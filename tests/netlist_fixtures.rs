@@ -195,6 +195,17 @@ const WRONG: &[(&str, &[Expected])] = &[
         &[("foreign_keyword_first_line.cir", 2, "dialect-foreign", "5 of 5 statements")],
     ),
     (
+        // Placeholders for code-model devices: one note for the file's `U` lines, and their
+        // nets count as connected.
+        "code_model_placeholders.cir",
+        &[(
+            "code_model_placeholders.cir",
+            4,
+            "element-unknown",
+            "stands for a mixed-signal code-model device",
+        )],
+    ),
+    (
         // A layout tool's netlists: one note each, however many lines.
         "foreign_parenthesised.cir",
         &[("foreign_parenthesised.cir", 2, "dialect-foreign", "parenthesised netlist")],
