@@ -85,6 +85,10 @@ const CLEAN: &[&str] = &[
     "quoted_attributes.cir",
     // A `.model` card's `)` alone on the line after its `+` lines.
     "model_paren_own_line.cir",
+    // A schematic tool's `.ALIASES` name map is not circuit.
+    "aliases_block.cir",
+    // Monte-Carlo spreads are read at their nominal values.
+    "monte_carlo_functions.cir",
     // Parses clean; the missing library is the rules' business (one path, see below).
     "lib_path_with_spaces.cir",
     "suppressions.cir",
@@ -755,4 +759,26 @@ fn a_model_closed_on_its_own_line_keeps_its_parameters() {
         names.iter().any(|k| k.eq_ignore_ascii_case("bv")),
         "{names:?}"
     );
+}
+
+#[test]
+fn monte_carlo_spreads_are_read_at_their_nominal_values() {
+    let (flat, _, _) = fixture("monte_carlo_functions.cir");
+    let value = |name: &str| {
+        flat.elements
+            .iter()
+            .find(|e| e.name == name)
+            .and_then(|e| e.value)
+            .and_then(|v| v.known())
+    };
+    assert_eq!(value("R1"), Some(10e3));
+    assert_eq!(value("R2"), Some(4.7e3));
+    assert!((value("C1").unwrap_or(0.0) - 100e-9).abs() < 1e-18);
+}
+
+#[test]
+fn an_aliases_block_holds_no_elements() {
+    let (flat, _, _) = fixture("aliases_block.cir");
+    let names: Vec<&str> = flat.elements.iter().map(|e| e.name.as_str()).collect();
+    assert_eq!(names, ["V1", "R_R1", "C_C1"]);
 }

@@ -110,7 +110,8 @@ pub(crate) fn element_kind(element: &FlatElement, model: Option<&Model>) -> Kind
             .or_else(|| diode_kind_from_name(model_name))
             .unwrap_or(Kind::Diode),
         'Q' => match model_type.as_deref() {
-            Some("PNP") => Kind::Pnp,
+            // `LPNP`: the lateral PNP of some simulators' model sets.
+            Some("PNP" | "LPNP") => Kind::Pnp,
             Some("NPN") => Kind::Npn,
             _ => library_kind().filter(|k| k.is_bjt()).unwrap_or(Kind::Npn),
         },

@@ -1,5 +1,7 @@
 //! The built-in functions of expressions: the common math set of SPICE dialects plus
-//! `if`, `limit`, `u` and `uramp`.
+//! `if`, `limit`, `u` and `uramp`, and the statistical spreads some simulators offer for
+//! Monte-Carlo runs (`mc`, `gauss`, `agauss`, `flat`, `aunif`, ...), taken at their nominal
+//! value: a check judges the design as drawn.
 
 use super::expr::{finite, flag, truth, ExprError, Mode};
 use super::flat::Num;
@@ -12,6 +14,8 @@ pub(super) fn builtin(name: &str, args: &[Num], mode: Mode) -> Result<Num, ExprE
         | "sgn" | "sign" | "u" | "uramp" => Some(1),
         "pow" | "pwr" | "atan2" | "hypot" => Some(2),
         "limit" | "if" => Some(3),
+        // A spread around a nominal value: `mc(10k, 0.01)`, `gauss(1, 0.05, 3)`.
+        "mc" | "gauss" | "agauss" | "aunif" | "unif" | "flat" | "gauss_tol" => None,
         "min" | "max" => None,
         _ => {
             return match mode {
@@ -105,6 +109,9 @@ pub(super) fn builtin(name: &str, args: &[Num], mode: Mode) -> Result<Num, ExprE
             let (lo, hi) = (arg(1).min(arg(2)), arg(1).max(arg(2)));
             x.clamp(lo, hi)
         }
+        // The nominal value; `flat(x)` alone is a spread around zero of width x.
+        "flat" if known.len() == 1 => 0.0,
+        "mc" | "gauss" | "agauss" | "aunif" | "unif" | "flat" | "gauss_tol" => x,
         "min" => known.iter().copied().fold(f64::INFINITY, f64::min),
         _ => known.iter().copied().fold(f64::NEG_INFINITY, f64::max),
     };

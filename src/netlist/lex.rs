@@ -152,6 +152,8 @@ enum Block {
     None,
     Control,
     Data,
+    /// `.aliases` … `.endaliases`: a schematic tool's map of part and net names, no circuit.
+    Aliases,
 }
 
 struct Lexer<'t> {
@@ -221,10 +223,10 @@ pub fn lex(file: FileId, text: &str, is_top: bool) -> Lexed {
         let content = &line[indent..];
         let cstart = start + indent;
         if block != Block::None {
-            let end_word = if block == Block::Control {
-                ".endc"
-            } else {
-                ".enddata"
+            let end_word = match block {
+                Block::Control => ".endc",
+                Block::Aliases => ".endaliases",
+                _ => ".enddata",
             };
             if first_word(content).eq_ignore_ascii_case(end_word) {
                 block = Block::None;
@@ -291,6 +293,11 @@ pub fn lex(file: FileId, text: &str, is_top: bool) -> Lexed {
             if word.eq_ignore_ascii_case(".data") {
                 lx.close();
                 block = Block::Data;
+                continue;
+            }
+            if word.eq_ignore_ascii_case(".aliases") {
+                lx.close();
+                block = Block::Aliases;
                 continue;
             }
         }

@@ -17,7 +17,7 @@ use crate::diagnostic::{Finding, Severity};
 pub const RULE: Rule = Rule {
     id: "base-underdrive",
     default_severity: Severity::Error,
-    grades: &[Severity::Error],
+    grades: &[Severity::Error, Severity::Warning, Severity::Note],
     summary: "A BJT switch gets too little base current and runs in its active region",
     page: include_str!("../../rules/base-underdrive.md"),
     check: Some(check),
@@ -110,15 +110,33 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
     if !active && ib * MAX_PLAUSIBLE_BETA < ic {
         return None;
     }
+    // Saturated in the solve, the question is margin: the forced β it runs at against the
+    // part's minimum gain. Half of hfe_min is ample (common practice); with no hfe_min given
+    // kickback cannot judge the margin and says what it needs.
+    let hfe_min = rated(cx, sw.device, "hfe_min").map(|h| h.value);
+    let forced = ic / ib.max(f64::MIN_POSITIVE);
+    let severity = if active {
+        Severity::Error
+    } else {
+        match hfe_min {
+            Some(h) if forced <= h / 2.0 => return None,
+            Some(_) => Severity::Warning,
+            None => Severity::Note,
+        }
+    };
     if active {
         message.push_str(": it runs in its active region");
     } else {
-        message.push_str(
-            ": it saturates only while its gain holds, and gain falls at high current and when \
-             cold",
-        );
-        if let Some(h) = rated(cx, sw.device, "hfe_min") {
-            message.push_str(&format!(" (hfe_min {})", super::units::sig3(h.value)));
+        message.push_str(&format!(
+            ": it saturates in the DC solve at a forced β of {}, only while its gain holds, and \
+             gain falls at high current and when cold",
+            super::units::sig3(forced)
+        ));
+        match hfe_min {
+            Some(h) => message.push_str(&format!(" (hfe_min {})", super::units::sig3(h))),
+            None => message.push_str(
+                "; the part's minimum gain (hfe_min) is not given, so the margin is not judged",
+            ),
         }
     }
     match (vce, power) {
@@ -134,7 +152,7 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
 
     let resistor = base_resistor(cx, sw);
     let primary = resistor.unwrap_or(sw.device);
-    let mut f = finding_at(RULE, Severity::Error, cx, primary, message)?;
+    let mut f = finding_at(RULE, severity, cx, primary, message)?;
     f = label(
         f,
         cx,
