@@ -49,11 +49,13 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 /// and no base current saturates it, so a forced-β test says nothing about it (its drop and
 /// dissipation are the switch's facts).
 fn is_follower(cx: &RuleContext<'_>, sw: &SwitchFacts) -> bool {
-    match kind(cx, sw.device) {
-        Some(Kind::Npn) => sw.side == Side::High,
-        Some(Kind::Pnp) => sw.side == Side::Low,
-        _ => false,
-    }
+    // The analysis marks the upper N-type device of a high side or of a bridge leg.
+    sw.follower
+        || match kind(cx, sw.device) {
+            Some(Kind::Npn) => sw.side == Side::High,
+            Some(Kind::Pnp) => sw.side == Side::Low,
+            _ => false,
+        }
 }
 
 /// The collector current the load needs and the state it is taken in: the branch with the

@@ -174,6 +174,11 @@ fn finding(
         names.dedup();
         names
     };
+    // Switches with no load branch return no energy and draw no load current from the rail
+    // (an unloaded output stage inside a part's transistor-level model).
+    if loads.is_empty() {
+        return None;
+    }
     let what = if switches.iter().any(|s| s.side == Side::Bridge) {
         "a bridge"
     } else {
