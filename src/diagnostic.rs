@@ -167,6 +167,20 @@ pub struct Finding {
 }
 
 impl Finding {
+    /// The other lines the finding involves, in the order every format shows them: its labels,
+    /// then the instance lines that placed its element.
+    pub fn involved_lines(&self) -> Vec<(Span, String)> {
+        let labels = self
+            .labels
+            .iter()
+            .map(|label| (label.span, label.message.clone()));
+        let instances = self
+            .instances
+            .iter()
+            .map(|step| (step.span, format!("instance {}", step.name)));
+        labels.chain(instances).collect()
+    }
+
     pub fn new(
         rule: impl Into<String>,
         severity: Severity,

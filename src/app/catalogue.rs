@@ -50,14 +50,7 @@ pub fn table(registry: &[&Rule], config: Option<&Config>) -> String {
             ]
         })
         .collect();
-    let width = |column: usize| {
-        rows.iter()
-            .map(|r| r[column].chars().count())
-            .chain([header[column].len()])
-            .max()
-            .unwrap_or(0)
-    };
-    let (w0, w1, w2) = (width(0), width(1), width(2));
+    let [w0, w1, w2, _] = crate::report::column_widths(header, &rows);
     let mut out = String::new();
     let mut row = |cells: [&str; 4]| {
         let line = format!(

@@ -97,14 +97,7 @@ pub fn numbers(values: &[Quantity], look: Look) -> String {
         })
         .collect();
     let header = ["number", "value", "source"];
-    let width = |column: usize| {
-        rows.iter()
-            .map(|r| r[column].chars().count())
-            .chain([header[column].len()])
-            .max()
-            .unwrap_or(0)
-    };
-    let (w0, w1) = (width(0), width(1));
+    let [w0, w1, _] = super::column_widths(header, &rows);
     let pad = |text: &str, to: usize| {
         let fill = to.saturating_sub(text.chars().count());
         format!("{text}{}", " ".repeat(fill))

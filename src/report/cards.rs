@@ -132,7 +132,7 @@ fn render_finding_with(
     let handler = GraphicalReportHandler::new_themed(card::theme(look)).with_width(options.width);
     let primary_file = finding.span.file;
     let mut groups: BTreeMap<FileId, Vec<LabeledSpan>> = BTreeMap::new();
-    for (span, text) in involved_lines(finding) {
+    for (span, text) in finding.involved_lines() {
         if let Some(source) = sources.get(span.file) {
             let label = LabeledSpan::new_with_span(Some(text), clamp(&source.text, span));
             groups.entry(span.file).or_default().push(label);
@@ -232,19 +232,6 @@ fn snippet_source<'a>(
         .collect();
     *labels = kept;
     SnippetSource::Clipped(clipped)
-}
-
-/// The other lines of a finding: its labels and the instance lines that placed its element.
-fn involved_lines(finding: &Finding) -> Vec<(Span, String)> {
-    let labels = finding
-        .labels
-        .iter()
-        .map(|label| (label.span, label.message.clone()));
-    let instances = finding
-        .instances
-        .iter()
-        .map(|step| (step.span, format!("instance {}", step.name)));
-    labels.chain(instances).collect()
 }
 
 /// `in XDRV (line 12) → M1`: how the flagged element was placed, outermost instance first.

@@ -165,6 +165,17 @@ fn plural(n: usize, one: &str, many: &str) -> String {
 
 pub use crate::units::format_quantity;
 
+/// The width in characters of each column of a table: its widest cell or its header.
+pub fn column_widths<const N: usize>(header: [&str; N], rows: &[[String; N]]) -> [usize; N] {
+    let mut widths = header.map(|h| h.chars().count());
+    for row in rows {
+        for (width, cell) in widths.iter_mut().zip(row) {
+            *width = (*width).max(cell.chars().count());
+        }
+    }
+    widths
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

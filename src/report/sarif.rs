@@ -32,16 +32,9 @@ pub fn log(reports: &[FileReport]) -> sarif::Sarif {
                 .iter()
                 .position(|rule| rule.id == finding.rule)
                 .and_then(|i| i64::try_from(i).ok());
-            let labels = finding
-                .labels
-                .iter()
-                .map(|label| (label.span, label.message.clone()));
-            let instances = finding
-                .instances
-                .iter()
-                .map(|step| (step.span, format!("instance {}", step.name)));
-            let related: Vec<sarif::Location> = labels
-                .chain(instances)
+            let related: Vec<sarif::Location> = finding
+                .involved_lines()
+                .into_iter()
                 .enumerate()
                 .map(|(id, (span, message))| {
                     let at = locate(entry.report, span);

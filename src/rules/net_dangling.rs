@@ -44,6 +44,10 @@ struct Dangling<'a> {
     pin: usize,
     /// The element's instance prefix (`XDRV.`), as written.
     scope: &'a str,
+    /// The element's line (a definition line, for an element inside a subcircuit).
+    line: Span,
+    /// The net's name inside the element's scope, as written.
+    local: &'a str,
 }
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
@@ -78,11 +82,14 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         if pin < 2 && matches!(element.letter, 'B' | 'E' | 'F' | 'G' | 'H') {
             continue;
         }
+        let scope = scope_of(&element.path, &element.name);
         dangling.push(Dangling {
             net,
             device: device_id,
             pin,
-            scope: scope_of(&element.path, &element.name),
+            scope,
+            line: element.span,
+            local: strip_scope(net_name(cx, net), scope),
         });
     }
     if dangling.is_empty() {
@@ -93,8 +100,8 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         distances: DISTANCE_BUDGET,
     };
     let mut once = Once::default();
-    let repeats = repeats(cx, &dangling);
-    let per_line = per_line(cx, &dangling);
+    let repeats = repeats(&dangling);
+    let per_line = per_line(&dangling);
     let mut grouped_lines: HashSet<Span> = HashSet::new();
     for d in &dangling {
         let Some(device) = cx.circuit.devices.get(d.device) else {
@@ -104,19 +111,19 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             continue;
         };
         let name = net_name(cx, d.net);
-        let local = strip_scope(name, d.scope);
-        if let Some(line) = per_line.get(&element.span).filter(|l| l.nets > GROUP_ABOVE) {
-            if grouped_lines.insert(element.span) {
+        let local = d.local;
+        if let Some(line) = per_line.get(&d.line).filter(|l| l.nets > GROUP_ABOVE) {
+            if grouped_lines.insert(d.line) {
                 out.push(grouped(element, line));
             }
             continue;
         }
-        if !once.first(element.span, local.to_ascii_lowercase()) {
+        if !once.first(d.line, local.to_ascii_lowercase()) {
             continue;
         }
         let near = closest(cx, &index, d.device, local, d.scope, &mut budget);
         let others = repeats
-            .get(&(element.span, local.to_ascii_lowercase()))
+            .get(&(d.line, local.to_ascii_lowercase()))
             .map_or(0, |n| n.saturating_sub(1));
         let elsewhere = match others {
             0 => String::new(),
@@ -197,23 +204,14 @@ struct LineDangling {
     seen: HashSet<String>,
 }
 
-fn per_line(cx: &RuleContext<'_>, dangling: &[Dangling<'_>]) -> HashMap<Span, LineDangling> {
+fn per_line(dangling: &[Dangling<'_>]) -> HashMap<Span, LineDangling> {
     let mut lines: HashMap<Span, LineDangling> = HashMap::new();
     for d in dangling {
-        let Some(element) = cx
-            .circuit
-            .devices
-            .get(d.device)
-            .and_then(|x| cx.netlist.elements.get(x.element))
-        else {
-            continue;
-        };
-        let local = strip_scope(net_name(cx, d.net), d.scope);
-        let line = lines.entry(element.span).or_default();
-        if line.seen.insert(local.to_ascii_lowercase()) {
+        let line = lines.entry(d.line).or_default();
+        if line.seen.insert(d.local.to_ascii_lowercase()) {
             line.nets += 1;
             if line.named.len() < GROUP_NAMED {
-                line.named.push((local.to_string(), d.pin + 1));
+                line.named.push((d.local.to_string(), d.pin + 1));
             }
         }
     }
@@ -248,19 +246,12 @@ fn grouped(element: &crate::netlist::FlatElement, line: &LineDangling) -> Findin
 }
 
 /// How many instances share each dangling definition line and net.
-fn repeats(cx: &RuleContext<'_>, dangling: &[Dangling<'_>]) -> HashMap<(Span, String), usize> {
+fn repeats(dangling: &[Dangling<'_>]) -> HashMap<(Span, String), usize> {
     let mut counts = HashMap::new();
     for d in dangling {
-        let Some(element) = cx
-            .circuit
-            .devices
-            .get(d.device)
-            .and_then(|x| cx.netlist.elements.get(x.element))
-        else {
-            continue;
-        };
-        let local = strip_scope(net_name(cx, d.net), d.scope).to_ascii_lowercase();
-        *counts.entry((element.span, local)).or_insert(0) += 1;
+        *counts
+            .entry((d.line, d.local.to_ascii_lowercase()))
+            .or_insert(0) += 1;
     }
     counts
 }
