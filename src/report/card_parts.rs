@@ -42,7 +42,7 @@ fn severity_style(severity: Severity) -> &'static str {
 /// The mark that opens a card: one shape per severity, so it reads without colour too.
 fn mark(severity: Severity, unicode: bool) -> &'static str {
     match (severity, unicode) {
-        (Severity::Error, true) => "✖",
+        (Severity::Error, true) => "■",
         (Severity::Warning, true) => "▲",
         (Severity::Note, true) => "●",
         (Severity::Error, false) => "X",
@@ -51,7 +51,7 @@ fn mark(severity: Severity, unicode: bool) -> &'static str {
     }
 }
 
-/// `✖ MST at doser.cir:33:1 — error (gate-underdrive)`: what and where first, then how bad and
+/// `■ MST at doser.cir:33:1 — error (gate-underdrive)`: what and where first, then how bad and
 /// which rule. `place` is `file:line:col`, the form terminals and editors open at.
 pub fn heading(finding: &Finding, place: &str, look: Look) -> String {
     let who = finding
