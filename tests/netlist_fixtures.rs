@@ -763,6 +763,8 @@ fn a_model_closed_on_its_own_line_keeps_its_parameters() {
 
 #[test]
 fn monte_carlo_spreads_are_read_at_their_nominal_values() {
+    // mc(x, tol), gauss(x, rel, sigmas) and agauss(x, abs, sigmas) each spread a nominal x by a
+    // tolerance (simulators' manuals, from memory); a check judges the nominal design.
     let (flat, _, _) = fixture("monte_carlo_functions.cir");
     let value = |name: &str| {
         flat.elements
