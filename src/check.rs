@@ -3,7 +3,7 @@
 
 use crate::analysis::{self, Analysis};
 use crate::circuit::{parts, Circuit};
-use crate::config::{Config, ConfigError};
+use crate::config::{Config, ConfigError, RuleLevel};
 use crate::diagnostic::Finding;
 use crate::netlist::{self, FlatNetlist, Limits};
 use crate::rules::{self, RuleContext};
@@ -18,16 +18,27 @@ pub struct CheckOptions {
     pub limits: Limits,
     /// `--config PATH`; otherwise `kickback.toml` is looked for beside each netlist.
     pub config_path: Option<PathBuf>,
+    /// Rule levels for this run alone (`--only`, `--skip`), laid over the configuration's
+    /// `[rules]`; the IDs are registry IDs.
+    pub rule_levels: Vec<(String, RuleLevel)>,
 }
 
 pub fn load_config(netlist: &Path, options: &CheckOptions) -> Result<Config, ConfigError> {
-    let config = match &options.config_path {
+    let mut config = match &options.config_path {
         Some(path) => Config::load(path)?,
         None => Config::discover_with(netlist, options.limits.allow_outside_includes)?
             .unwrap_or_default(),
     };
     validate_rule_ids(&config)?;
+    overlay_rule_levels(&mut config, &options.rule_levels);
     Ok(config)
+}
+
+/// Lays rule levels given for one run over a configuration's `[rules]`.
+pub fn overlay_rule_levels(config: &mut Config, levels: &[(String, RuleLevel)]) {
+    for (id, level) in levels {
+        config.rules.insert(id.to_ascii_lowercase(), *level);
+    }
 }
 
 /// `[rules]` may only name rules that exist: a typo there would silently keep a rule on.

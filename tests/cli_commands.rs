@@ -331,13 +331,13 @@ fn files_named_explicitly_are_always_checked() {
 }
 
 #[test]
-fn a_folder_without_netlists_is_noted() {
+fn a_folder_without_netlists_fails() {
     let dir = tempfile::tempdir().expect("tempdir");
     kickback()
         .current_dir(dir.path())
         .arg("check")
         .assert()
-        .code(0)
+        .code(2)
         .stderr(predicate::str::contains("no netlists"));
 }
 

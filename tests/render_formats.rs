@@ -208,7 +208,7 @@ fn cards_summary_names_failed_files() {
     let reports = vec![pump_report(), failed_report()];
     let text = report::cards::render(&reports, &plain());
     assert!(text.ends_with(
-        "2 errors, 1 note in 2 files (1 suppressed); 1 file could not be checked: hw/gone.cir\n"
+        "2 errors, 1 note in 1 file (1 suppressed); 1 file could not be checked: hw/gone.cir\n"
     ));
 }
 

@@ -152,6 +152,7 @@ fn every_format_survives_every_mutant_of_every_fixture() {
             ..Limits::default()
         },
         config_path: None,
+        rule_levels: Vec::new(),
     };
     let cards = report::cards::CardsOptions {
         color: false,

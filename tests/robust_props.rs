@@ -53,6 +53,7 @@ fn pipeline(text: &str) {
             ..Limits::default()
         },
         config_path: None,
+        rule_levels: Vec::new(),
     };
     render_all(check_str("prop.cir", text, &Config::default(), &options));
 }

@@ -18,6 +18,7 @@ fuzz_target!(|data: &[u8]| {
             ..Limits::default()
         },
         config_path: None,
+        rule_levels: Vec::new(),
     };
     let file = check_str("fuzz.cir", &text, &Config::default(), &options);
     if let Some(CheckError::Internal { message, .. }) = &file.failure {

@@ -70,6 +70,38 @@ pub fn table(registry: &[&Rule], config: Option<&Config>) -> String {
     out
 }
 
+/// Every rule as JSON for a program: `version`, the configuration read (`config`, or null) and
+/// `rules`, each with `id`, `default` (its usual severity), `gives` (every severity it can give,
+/// worst first), `in_effect` (`as-graded`, `off`, or the one level the configuration or the
+/// command line sets) and `summary`.
+pub fn json(registry: &[&Rule], config: Option<&Config>) -> String {
+    let rules: Vec<serde_json::Value> = registry
+        .iter()
+        .map(|rule| {
+            let in_effect = match config.and_then(|c| c.rule_level(rule.id)) {
+                Some(RuleLevel::Off) => "off".to_string(),
+                Some(RuleLevel::Set(level)) => level.as_str().to_string(),
+                None => "as-graded".to_string(),
+            };
+            serde_json::json!({
+                "id": rule.id,
+                "default": rule.default_severity.as_str(),
+                "gives": grades(rule).split('/').collect::<Vec<_>>(),
+                "in_effect": in_effect,
+                "summary": rule.summary,
+            })
+        })
+        .collect();
+    let document = serde_json::json!({
+        "version": 1,
+        "config": config.and_then(|c| c.path.as_ref()).map(|p| p.display().to_string()),
+        "rules": rules,
+    });
+    let mut text = serde_json::to_string_pretty(&document).unwrap_or_default();
+    text.push('\n');
+    text
+}
+
 /// The page of a rule followed by the caution, or the closest IDs when there is no such rule.
 pub fn explain(id: &str) -> Result<String, Vec<&'static str>> {
     match rules::find(id) {

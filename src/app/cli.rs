@@ -60,6 +60,14 @@ pub struct GlobalArgs {
     /// Let .include and .lib read files outside the folder tree of the netlist.
     #[arg(long, global = true)]
     pub allow_outside_includes: bool,
+    /// For this run, give findings of these rules only (comma-separated IDs). What reading the
+    /// netlist reports (`syntax`, includes, dialect) is kept unless `--skip` names it.
+    #[arg(long, global = true, value_name = "RULES", value_delimiter = ',')]
+    pub only: Vec<String>,
+    /// For this run, leave out the findings of these rules (comma-separated IDs), as `off` in
+    /// `[rules]` would.
+    #[arg(long, global = true, value_name = "RULES", value_delimiter = ',')]
+    pub skip: Vec<String>,
 }
 
 /// Positions in a file are 32-bit, so no file or statement may be longer.
@@ -78,16 +86,37 @@ pub enum Command {
     Check {
         /// Netlist files or folders (folders are searched for *.cir *.sp *.spice *.net *.ckt,
         /// honouring .gitignore).
+        /// `-` reads one netlist from stdin (see `--name`).
         #[arg(value_name = "PATHS", default_value = ".")]
         paths: Vec<PathBuf>,
+        /// Leave out the findings this baseline file lists (written by `kickback baseline`):
+        /// only new findings fail the check, and entries that no longer occur are named.
+        #[arg(long, value_name = "FILE")]
+        baseline: Option<PathBuf>,
+        /// The path findings give the netlist read from stdin (`check -`); kickback.toml is
+        /// looked for from its folder. Includes are not read from stdin.
+        #[arg(long, value_name = "PATH", default_value = "stdin.cir")]
+        name: PathBuf,
     },
-    /// Print what kickback works out about a netlist: supplies, timers, switches, loads.
+    /// Write a baseline file of today's errors and warnings, for `check --baseline`: a design
+    /// adopted with known faults then fails only on new ones.
+    Baseline {
+        /// Netlist files or folders, as for `check`.
+        #[arg(value_name = "PATHS", default_value = ".")]
+        paths: Vec<PathBuf>,
+        /// The file to write.
+        #[arg(long, value_name = "FILE", default_value = "kickback-baseline.toml")]
+        out: PathBuf,
+    },
+    /// Print what kickback works out about one netlist file: supplies, timers, switches, loads.
+    /// Exits 1 when some of its lines cannot be read.
     Report {
         /// The netlist.
         #[arg(value_name = "FILE")]
         file: PathBuf,
     },
-    /// List every rule with its default severity.
+    /// List every rule, the severities it gives and the level in effect under the
+    /// configuration (`--format json` for a program).
     Rules,
     /// Print the page of one rule: what it checks, why, an example and its fix.
     Explain {

@@ -7,6 +7,11 @@ use std::path::{Component, Path, PathBuf};
 /// Netlist extensions, compared case-insensitively.
 pub const EXTENSIONS: &[&str] = &["cir", "sp", "spice", "net", "ckt"];
 
+/// Extensions of files that hold definitions for netlists to include (subcircuits, models),
+/// compared case-insensitively. Such a file has no title line and is never checked as a deck:
+/// named on the command line, it stands for the netlists that include it.
+pub const LIBRARY_EXTENSIONS: &[&str] = &["lib", "inc", "mod", "sub"];
+
 #[derive(Debug, Default)]
 pub struct Discovery {
     /// Netlists to check, sorted, each once.
@@ -15,6 +20,8 @@ pub struct Discovery {
     pub failures: Vec<(PathBuf, String)>,
     /// Folders that held no netlist.
     pub empty_folders: Vec<PathBuf>,
+    /// Library files named on the command line: the netlists that include them are checked.
+    pub libraries: Vec<PathBuf>,
 }
 
 pub fn discover(paths: &[PathBuf]) -> Discovery {
@@ -36,11 +43,27 @@ pub fn discover_with(paths: &[PathBuf], allow_outside: bool) -> Discovery {
                     out.empty_folders.push(path);
                 }
             }
+            // A changed configuration re-checks every netlist it governs: those in its folder
+            // and below.
+            Ok(_)
+                if path
+                    .file_name()
+                    .is_some_and(|n| n == crate::config::FILE_NAME) =>
+            {
+                let folder = match path.parent() {
+                    Some(p) if !p.as_os_str().is_empty() => p.to_path_buf(),
+                    _ => PathBuf::from("."),
+                };
+                walk(&folder, allow_outside, &mut files, &mut out.failures);
+            }
+            Ok(_) if is_library(&path) => out.libraries.push(path),
             Ok(_) => {
                 files.insert(path);
             }
         }
     }
+    out.libraries.sort();
+    out.libraries.dedup();
     out.files = files.into_iter().collect();
     out.failures.sort();
     out.empty_folders.sort();
@@ -111,6 +134,12 @@ fn walk(
         }
     }
     found
+}
+
+pub fn is_library(path: &Path) -> bool {
+    path.extension()
+        .and_then(|e| e.to_str())
+        .is_some_and(|e| LIBRARY_EXTENSIONS.iter().any(|x| x.eq_ignore_ascii_case(e)))
 }
 
 pub fn is_netlist(path: &Path) -> bool {

@@ -4,6 +4,7 @@
 //! Exit codes: [`EXIT_CLEAN`] no error-level findings, [`EXIT_FINDINGS`] error-level findings
 //! (warnings too with `--fail-on warning`), [`EXIT_FAILURE`] the tool could not do its job.
 
+pub mod baseline;
 pub mod catalogue;
 pub mod cli;
 pub mod discover;
@@ -11,7 +12,7 @@ pub mod init;
 pub mod terminal;
 
 use crate::check::{check_file, CheckError, CheckOptions, FileReport};
-use crate::config::Config;
+use crate::config::{Config, RuleLevel};
 use crate::diagnostic::Severity;
 use crate::netlist::{Limits, LoadError};
 use crate::report::{self, cards::CardsOptions};
@@ -79,7 +80,26 @@ where
         console.notice(notice);
     }
     let code = match &cli.command {
-        Command::Check { paths } => check(paths, &cli.global, env, &mut console),
+        Command::Check {
+            paths,
+            baseline,
+            name,
+        } => {
+            let run = CheckRun {
+                baseline: baseline.as_deref(),
+                stdin_name: name,
+                write_baseline: None,
+            };
+            check(paths, &run, &cli.global, env, &mut console)
+        }
+        Command::Baseline { paths, out } => {
+            let run = CheckRun {
+                baseline: None,
+                stdin_name: Path::new("stdin.cir"),
+                write_baseline: Some(out),
+            };
+            check(paths, &run, &cli.global, env, &mut console)
+        }
         Command::Report { file } => report_command(file, &cli.global, &mut console),
         Command::Rules => rules_command(&cli.global, &mut console),
         Command::Explain { rule } => explain(rule, &mut console),
@@ -136,28 +156,63 @@ fn usage(e: &clap::Error, env: &Environment, out: &mut dyn Write, err: &mut dyn 
     }
 }
 
+/// What a `check` or `baseline` run does besides checking.
+struct CheckRun<'a> {
+    /// `check --baseline FILE`.
+    baseline: Option<&'a Path>,
+    /// `check --name PATH`, for `check -`.
+    stdin_name: &'a Path,
+    /// `baseline --out FILE`: write the findings there instead of printing them.
+    write_baseline: Option<&'a Path>,
+}
+
 fn check(
     paths: &[PathBuf],
+    run: &CheckRun<'_>,
     global: &GlobalArgs,
     env: &Environment,
     console: &mut Console<'_>,
 ) -> u8 {
-    let options = check_options(global);
+    let options = match check_options_checked(global) {
+        Ok(options) => options,
+        Err(message) => {
+            console.error(&message);
+            return EXIT_FAILURE;
+        }
+    };
     if let Some(config) = &global.config {
         if let Err(message) = preflight_config(config) {
             console.error(&message);
             return EXIT_FAILURE;
         }
     }
-    let found = discover::discover_with(paths, global.allow_outside_includes);
-    if !global.quiet {
-        for folder in &found.empty_folders {
-            console.note(&format!(
-                "no netlists (*.{}) found in {}",
-                discover::EXTENSIONS.join(" *."),
-                folder.display()
-            ));
+    let mut baseline = match run.baseline.map(baseline::Baseline::load).transpose() {
+        Ok(b) => b,
+        Err(message) => {
+            console.error(&message);
+            return EXIT_FAILURE;
         }
+    };
+    let stdin = paths.iter().any(|p| p.as_os_str() == "-");
+    if stdin && paths.len() > 1 {
+        console.error("`-` (a netlist on stdin) cannot be checked together with other paths");
+        return EXIT_FAILURE;
+    }
+    let found = if stdin {
+        discover::Discovery::default()
+    } else {
+        discover::discover_with(paths, global.allow_outside_includes)
+    };
+    // A folder with no netlist in it is a mistyped path more often than not: a CI gate that
+    // checked nothing must not pass.
+    let mut code = EXIT_CLEAN;
+    for folder in &found.empty_folders {
+        console.error(&format!(
+            "no netlists (*.{}) in {}; name the files, or check the path",
+            discover::EXTENSIONS.join(" *."),
+            folder.display()
+        ));
+        code = EXIT_FAILURE;
     }
     let failing = failing_severity(global);
     let shown = if global.quiet {
@@ -180,21 +235,61 @@ fn check(
         global.format,
         Format::Cards | Format::Lines | Format::Human | Format::Short
     );
+    let streamed = streamed && run.write_baseline.is_none();
+    // A library named on the command line (a hook passes the files a commit changed) stands
+    // for the netlists under the current folder that include it.
+    let found_libraries: Vec<String> = found
+        .libraries
+        .iter()
+        .map(|l| l.display().to_string())
+        .collect();
+    let libraries: Vec<PathBuf> = found
+        .libraries
+        .iter()
+        .map(|l| l.canonicalize().unwrap_or_else(|_| l.clone()))
+        .collect();
+    let mut dependents = Vec::new();
+    if !libraries.is_empty() {
+        let named: std::collections::BTreeSet<&PathBuf> = found.files.iter().collect();
+        let around = discover::discover_with(&[PathBuf::from(".")], global.allow_outside_includes);
+        dependents.extend(around.files.into_iter().filter(|f| !named.contains(f)));
+    }
     let mut jobs: Vec<Job> = found.files.into_iter().map(Job::Check).collect();
+    jobs.extend(dependents.into_iter().map(Job::IfIncludes));
     jobs.extend(found.failures.into_iter().map(Job::Unreadable));
+    if stdin {
+        jobs.push(Job::Stdin(run.stdin_name.to_path_buf()));
+    }
     jobs.sort_by(|a, b| a.path().cmp(b.path()));
     let batch = rayon::current_num_threads().max(1) * 2;
     let mut kept: Vec<FileReport> = Vec::new();
     let mut totals = report::Summary::default();
-    let mut code = EXIT_CLEAN;
+    let mut included = 0usize;
     for chunk in jobs.chunks(batch) {
-        let reports: Vec<FileReport> = chunk
+        let mut reports: Vec<FileReport> = chunk
             .par_iter()
-            .map(|job| match job {
-                Job::Check(path) => check_file(path, &options),
-                Job::Unreadable(failure) => unreadable(failure.clone()),
+            .filter_map(|job| match job {
+                Job::Check(path) => Some(check_file(path, &options)),
+                Job::Unreadable(failure) => Some(unreadable(failure.clone())),
+                Job::Stdin(name) => Some(check_stdin(name, &options)),
+                Job::IfIncludes(path) => {
+                    let report = check_file(path, &options);
+                    includes_any(&report, &libraries).then_some(report)
+                }
             })
             .collect();
+        let named = chunk
+            .iter()
+            .filter(|job| !matches!(job, Job::IfIncludes(_)))
+            .count();
+        included = included.saturating_add(reports.len().saturating_sub(named));
+        let mut known = 0usize;
+        if let Some(baseline) = baseline.as_mut() {
+            for report in &mut reports {
+                known = known.saturating_add(baseline.absorb(report));
+            }
+        }
+        totals.known = totals.known.saturating_add(known);
         for (file, message) in report::failures(&reports) {
             // Most reasons already name the netlist ("cannot read a.cir: ..."); others name
             // only their own file (a config line), so the netlist is added.
@@ -216,6 +311,28 @@ fn check(
             kept.extend(reports);
         }
     }
+    if !libraries.is_empty() && included == 0 {
+        console.note(&format!(
+            "no netlist under the current folder includes {}",
+            found_libraries.join(", ")
+        ));
+    }
+    if let Some(baseline) = &baseline {
+        for stale in baseline.stale() {
+            console.note(&format!(
+                "{stale}; `kickback baseline` rewrites the file without it"
+            ));
+        }
+    }
+    if let Some(out) = run.write_baseline {
+        // Findings are what a baseline is for: only a file that could not be checked fails.
+        let code = if code == EXIT_FAILURE {
+            EXIT_FAILURE
+        } else {
+            EXIT_CLEAN
+        };
+        return code.max(write_baseline(&kept, out, console));
+    }
     let text = match global.format {
         Format::Cards | Format::Human => {
             totals.failed.sort();
@@ -231,16 +348,94 @@ fn check(
     code
 }
 
-/// A path to check, or one that could not be read or walked, with why.
+/// A path to check, or one that could not be read or walked, with why, or the netlist on
+/// stdin under the name it is given.
 enum Job {
     Check(PathBuf),
     Unreadable((PathBuf, String)),
+    Stdin(PathBuf),
+    /// A netlist checked only for what it makes of the libraries named: kept when it includes
+    /// one of them.
+    IfIncludes(PathBuf),
 }
 
 impl Job {
     fn path(&self) -> &Path {
         match self {
-            Job::Check(path) | Job::Unreadable((path, _)) => path,
+            Job::Check(path)
+            | Job::Unreadable((path, _))
+            | Job::Stdin(path)
+            | Job::IfIncludes(path) => path,
+        }
+    }
+}
+
+/// True when `report` read one of `libraries` (canonical paths) through its includes.
+fn includes_any(report: &FileReport, libraries: &[PathBuf]) -> bool {
+    report.sources.files().any(|(_, file)| {
+        let path = file
+            .path
+            .canonicalize()
+            .unwrap_or_else(|_| file.path.clone());
+        libraries.contains(&path)
+    })
+}
+
+/// Checks the netlist on stdin as if it were the file `name` (its configuration is looked for
+/// from there); it is read up to the file size limit.
+fn check_stdin(name: &Path, options: &CheckOptions) -> FileReport {
+    use std::io::Read;
+    let limit = options.limits.max_file_bytes;
+    let mut bytes = Vec::new();
+    let read = io::stdin()
+        .lock()
+        .take(limit.saturating_add(1))
+        .read_to_end(&mut bytes);
+    let failed = |reason: String| unreadable((name.to_path_buf(), reason));
+    if let Err(e) = read {
+        return failed(format!("cannot read stdin: {e}"));
+    }
+    if bytes.len() as u64 > limit {
+        return failed(format!(
+            "stdin holds more than the file size limit of {limit} bytes (--max-file-size)"
+        ));
+    }
+    let text = String::from_utf8_lossy(&bytes);
+    let config = match crate::check::load_config(name, options) {
+        Ok(config) => config,
+        Err(e) => {
+            let mut report = unreadable((name.to_path_buf(), String::new()));
+            report.failure = Some(CheckError::Config(e));
+            return report;
+        }
+    };
+    crate::check::check_str(&name.to_string_lossy(), &text, &config, options)
+}
+
+/// Writes a baseline of `reports` to `out`; files that could not be checked have no entries,
+/// and the run fails (exit 2) so that a baseline is never written short without a word.
+fn write_baseline(reports: &[FileReport], out: &Path, console: &mut Console<'_>) -> u8 {
+    let text = baseline::write(reports, out);
+    let entries: usize = reports
+        .iter()
+        .flat_map(|r| &r.findings)
+        .filter(|f| f.severity >= Severity::Warning)
+        .count();
+    let written = std::fs::write(out, text);
+    match written {
+        Ok(()) => {
+            console.print(&format!(
+                "wrote {} with {entries} finding{} from {} netlist{}\n",
+                out.display(),
+                if entries == 1 { "" } else { "s" },
+                reports.len(),
+                if reports.len() == 1 { "" } else { "s" },
+            ));
+            EXIT_CLEAN
+        }
+        Err(e) => {
+            console.error(&format!("cannot write {}: {e}", out.display()));
+            EXIT_FAILURE
         }
     }
 }
@@ -251,6 +446,7 @@ fn add_counts(totals: &mut report::Summary, batch: &report::Summary) {
     totals.warnings = totals.warnings.saturating_add(batch.warnings);
     totals.notes = totals.notes.saturating_add(batch.notes);
     totals.suppressed = totals.suppressed.saturating_add(batch.suppressed);
+    totals.known = totals.known.saturating_add(batch.known);
     totals.files = totals.files.saturating_add(batch.files);
     totals.failed.extend(batch.failed.iter().cloned());
 }
@@ -289,6 +485,48 @@ fn preflight_config(path: &Path) -> Result<(), String> {
     Config::load(path).map(|_| ()).map_err(|e| e.to_string())
 }
 
+/// `--only` and `--skip` as `[rules]` levels laid over the configuration, or why they cannot be.
+fn rule_selection(global: &GlobalArgs) -> Result<Vec<(String, RuleLevel)>, String> {
+    let named = |list: &[String]| -> Result<Vec<&'static str>, String> {
+        let mut ids = Vec::new();
+        for id in list.iter().map(|s| s.trim()).filter(|s| !s.is_empty()) {
+            match crate::rules::find(id) {
+                Some(rule) => ids.push(rule.id),
+                None => {
+                    let near = crate::rules::suppress::closest_rules(id);
+                    let hint = if near.is_empty() {
+                        " (`kickback rules` lists them)".to_string()
+                    } else {
+                        format!("; did you mean {}?", near.join(" or "))
+                    };
+                    return Err(format!("`{id}` is not a kickback rule{hint}"));
+                }
+            }
+        }
+        Ok(ids)
+    };
+    let only = named(&global.only)?;
+    let skip = named(&global.skip)?;
+    let mut levels = Vec::new();
+    if !global.only.is_empty() {
+        for rule in crate::rules::REGISTRY {
+            // What the reading stages report (no check of its own) stays unless skipped.
+            if rule.check.is_some() && !only.contains(&rule.id) {
+                levels.push((rule.id.to_string(), RuleLevel::Off));
+            }
+        }
+    }
+    levels.extend(skip.iter().map(|id| (id.to_string(), RuleLevel::Off)));
+    Ok(levels)
+}
+
+/// [`check_options`], with `--only` and `--skip` checked against the registry.
+fn check_options_checked(global: &GlobalArgs) -> Result<CheckOptions, String> {
+    let mut options = check_options(global);
+    options.rule_levels = rule_selection(global)?;
+    Ok(options)
+}
+
 fn check_options(global: &GlobalArgs) -> CheckOptions {
     let defaults = Limits::default();
     CheckOptions {
@@ -305,17 +543,36 @@ fn check_options(global: &GlobalArgs) -> CheckOptions {
             allow_outside_includes: global.allow_outside_includes,
         },
         config_path: global.config.clone(),
+        rule_levels: Vec::new(),
     }
 }
 
 /// `kickback rules`: the registry, with what the configuration in effect (`--config`, or the
 /// `kickback.toml` found from the current folder up) makes of each rule.
 fn rules_command(global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
-    let options = check_options(global);
+    if !matches!(global.format, Format::Cards | Format::Json) {
+        console.error("rules prints --format cards (a table for a person) or --format json");
+        return EXIT_FAILURE;
+    }
+    let options = match check_options_checked(global) {
+        Ok(options) => options,
+        Err(message) => {
+            console.error(&message);
+            return EXIT_FAILURE;
+        }
+    };
     let config = match &options.config_path {
         Some(path) => Config::load(path).map(Some),
         None => Config::discover(Path::new(".")),
     };
+    let config = config.map(|found| {
+        if options.rule_levels.is_empty() {
+            return found;
+        }
+        let mut config = found.unwrap_or_default();
+        crate::check::overlay_rule_levels(&mut config, &options.rule_levels);
+        Some(config)
+    });
     let config = match config.and_then(|c| {
         if let Some(c) = &c {
             crate::check::validate_rule_ids(c)?;
@@ -328,13 +585,26 @@ fn rules_command(global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
             return EXIT_FAILURE;
         }
     };
-    console.print(&catalogue::table(crate::rules::REGISTRY, config.as_ref()));
+    let text = match global.format {
+        Format::Json => catalogue::json(crate::rules::REGISTRY, config.as_ref()),
+        _ => catalogue::table(crate::rules::REGISTRY, config.as_ref()),
+    };
+    console.print(&text);
     EXIT_CLEAN
 }
 
 fn report_command(file: &Path, global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
     if !matches!(global.format, Format::Cards | Format::Json) {
         console.error("report prints --format cards (tables for a person) or --format json");
+        return EXIT_FAILURE;
+    }
+    if file.is_dir() {
+        console.error(&format!(
+            "report takes one netlist file, and {} is a folder (`kickback check {}` checks \
+             every netlist in it)",
+            file.display(),
+            file.display()
+        ));
         return EXIT_FAILURE;
     }
     if !file.is_file() {
@@ -350,7 +620,40 @@ fn report_command(file: &Path, global: &GlobalArgs, console: &mut Console<'_>) -
                 _ => report::facts::render_human(&facts.analysis, &facts.netlist, &facts.circuit),
             };
             console.print(&text);
-            EXIT_CLEAN
+            // A line the parser could not read is missing from every table above: say so, and
+            // fail, so a report is never taken for the whole deck.
+            let unread: Vec<String> = facts
+                .findings
+                .iter()
+                .filter(|f| f.rule == crate::rules::front_end::SYNTAX.id)
+                .map(|f| {
+                    let at = facts.sources.locate(f.span);
+                    format!("{}:{}: {}", at.file, at.line, f.message)
+                })
+                .collect();
+            if unread.is_empty() {
+                EXIT_CLEAN
+            } else {
+                console.error(&format!(
+                    "{} of {} could not be read, and this report leaves out what {} \
+                     (`kickback check` shows each):",
+                    if unread.len() == 1 {
+                        "1 statement".to_string()
+                    } else {
+                        format!("{} statements", unread.len())
+                    },
+                    file.display(),
+                    if unread.len() == 1 {
+                        "it says"
+                    } else {
+                        "they say"
+                    },
+                ));
+                for line in unread {
+                    console.write_err(&format!("  {line}\n"));
+                }
+                EXIT_FINDINGS
+            }
         }
         Err(e) => {
             console.error(&format!("cannot report on {}: {e}", file.display()));

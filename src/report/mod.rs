@@ -100,6 +100,8 @@ pub struct Summary {
     pub files: usize,
     /// Netlists that could not be checked, as shown to the user, sorted.
     pub failed: Vec<String>,
+    /// Findings left out because the baseline lists them (`check --baseline`).
+    pub known: usize,
 }
 
 impl Summary {
@@ -138,15 +140,30 @@ impl Summary {
         .filter(|(n, _, _)| *n > 0)
         .map(|&(n, one, many)| plural(n, one, many))
         .collect();
-        let mut line = if counts.is_empty() {
-            "no findings".to_string()
+        // A file that could not be checked has no findings to speak of: it is named after the
+        // semicolon, never counted as a clean one.
+        let checked = self.files.saturating_sub(self.failed.len());
+        let mut line = if checked == 0 && counts.is_empty() {
+            "no netlist was checked".to_string()
         } else {
-            counts.join(", ")
+            let mut line = if counts.is_empty() {
+                "no findings".to_string()
+            } else {
+                counts.join(", ")
+            };
+            line.push_str(" in ");
+            line.push_str(&plural(checked, "file", "files"));
+            line
         };
-        line.push_str(" in ");
-        line.push_str(&plural(self.files, "file", "files"));
+        let mut asides = Vec::new();
         if self.suppressed > 0 {
-            line.push_str(&format!(" ({} suppressed)", self.suppressed));
+            asides.push(format!("{} suppressed", self.suppressed));
+        }
+        if self.known > 0 {
+            asides.push(format!("{} known from the baseline", self.known));
+        }
+        if !asides.is_empty() {
+            line.push_str(&format!(" ({})", asides.join(", ")));
         }
         if !self.failed.is_empty() {
             line.push_str(&format!(
@@ -199,6 +216,7 @@ mod tests {
             suppressed: 1,
             files: 2,
             failed: vec![],
+            known: 0,
         };
         assert_eq!(
             summary.line(),
@@ -217,7 +235,16 @@ mod tests {
         };
         assert_eq!(
             failed.line(),
-            "1 error in 3 files; 1 file could not be checked: bad.cir"
+            "1 error in 2 files; 1 file could not be checked: bad.cir"
+        );
+        let missing = Summary {
+            files: 1,
+            failed: vec!["gone.cir".into()],
+            ..Summary::default()
+        };
+        assert_eq!(
+            missing.line(),
+            "no netlist was checked; 1 file could not be checked: gone.cir"
         );
     }
 }

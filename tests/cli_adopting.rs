@@ -1,0 +1,395 @@
+//! Adopting kickback on designs that already exist, end to end through the program: a CI gate
+//! that checked nothing fails, baselines, rule selection for one run, `rules --format json`,
+//! a netlist on stdin, and `report` refusing what it cannot do.
+
+use assert_cmd::Command;
+use predicates::prelude::*;
+use std::fs;
+use std::path::{Path, PathBuf};
+
+fn repo(path: &str) -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join(path)
+}
+
+/// The program with an environment that does not vary between machines.
+fn kickback() -> Command {
+    let mut cmd = Command::cargo_bin("kickback").expect("binary built");
+    for name in ["NO_COLOR", "COLUMNS", "TERM", "LC_ALL", "LC_CTYPE", "LANG"] {
+        cmd.env_remove(name);
+    }
+    cmd
+}
+
+fn text(bytes: &[u8]) -> String {
+    String::from_utf8_lossy(bytes).into_owned()
+}
+
+/// A scratch project: the flyback fixtures' part data and the valve channel that has no
+/// freewheel diode, as `hw/valve.cir`.
+fn project() -> tempfile::TempDir {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let hw = dir.path().join("hw");
+    fs::create_dir(&hw).unwrap();
+    let fixtures = repo("testdata/rules/flyback-missing");
+    fs::copy(fixtures.join("kickback.toml"), hw.join("kickback.toml")).unwrap();
+    fs::copy(fixtures.join("fires-valve-npn.cir"), hw.join("valve.cir")).unwrap();
+    dir
+}
+
+// ---- a gate that checked nothing does not pass ------------------------------------------------
+
+#[test]
+fn a_folder_with_no_netlist_exits_2() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    fs::create_dir(dir.path().join("hw")).unwrap();
+    fs::write(dir.path().join("hw/notes.txt"), "no netlists here\n").unwrap();
+    kickback()
+        .current_dir(dir.path())
+        .args(["check", "hw"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("no netlists (*.cir"))
+        .stderr(predicate::str::contains(
+            "in hw; name the files, or check the path",
+        ))
+        .stdout("no netlist was checked\n");
+}
+
+#[test]
+fn a_missing_file_is_never_counted_as_clean() {
+    let output = kickback()
+        .args(["check", "--color", "never", "no-such-board.cir"])
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(2));
+    assert_eq!(
+        text(&output.stdout),
+        "no netlist was checked; 1 file could not be checked: no-such-board.cir\n"
+    );
+}
+
+#[test]
+fn report_takes_one_file_and_says_so_for_a_folder() {
+    kickback()
+        .args(["report"])
+        .arg(repo("testdata/cli"))
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("report takes one netlist file"))
+        .stderr(predicate::str::contains("is a folder"));
+}
+
+#[test]
+fn report_on_a_deck_with_unreadable_lines_says_so_and_fails() {
+    kickback()
+        .args(["report"])
+        .arg(repo("testdata/cli/syntax-error.cir"))
+        .assert()
+        .code(1)
+        .stdout(predicate::str::contains("Supplies"))
+        .stderr(predicate::str::contains("1 statement of"))
+        .stderr(predicate::str::contains("could not be read"))
+        .stderr(predicate::str::contains("syntax-error.cir:3:"));
+}
+
+// ---- baselines ---------------------------------------------------------------------------------
+
+#[test]
+fn a_baseline_keeps_old_findings_out_and_fails_on_new_ones() {
+    let dir = project();
+    let root = dir.path();
+    // Without a baseline the valve channel fails.
+    kickback()
+        .current_dir(root)
+        .args(["check", "hw"])
+        .assert()
+        .code(1);
+
+    let output = kickback()
+        .current_dir(root)
+        .args(["baseline", "hw"])
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(0), "{}", text(&output.stderr));
+    assert!(text(&output.stdout).starts_with("wrote kickback-baseline.toml with "));
+    let written = fs::read_to_string(root.join("kickback-baseline.toml")).unwrap();
+    assert!(written.contains("version = 1"), "{written}");
+    assert!(written.contains("file = \"hw/valve.cir\""), "{written}");
+    assert!(written.contains("rule = \"flyback-missing\""), "{written}");
+    assert!(written.contains("element = \"XV\""), "{written}");
+    assert!(
+        !written.contains("line ="),
+        "keyed without lines: {written}"
+    );
+
+    // With it, the same findings pass, and the summary says how many were known.
+    let output = kickback()
+        .current_dir(root)
+        .args([
+            "check",
+            "--color",
+            "never",
+            "--baseline",
+            "kickback-baseline.toml",
+            "hw",
+        ])
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(0), "{}", text(&output.stdout));
+    assert!(
+        text(&output.stdout).contains("known from the baseline"),
+        "{}",
+        text(&output.stdout)
+    );
+
+    // Lines moving and unrelated edits do not disturb it.
+    let valve = fs::read_to_string(root.join("hw/valve.cir")).unwrap();
+    let (title, rest) = valve.split_once('\n').unwrap();
+    let moved =
+        format!("{title}\n* bench notes\n* wired on the second rack\nRSPARE v12 0 100k\n{rest}");
+    fs::write(root.join("hw/valve.cir"), moved).unwrap();
+    kickback()
+        .current_dir(root)
+        .args(["check", "--baseline", "kickback-baseline.toml", "hw"])
+        .assert()
+        .code(0);
+
+    // A new board with the same fault is new: it fails, and only it is shown.
+    fs::write(root.join("hw/second.cir"), &valve).unwrap();
+    let output = kickback()
+        .current_dir(root)
+        .args([
+            "check",
+            "--format",
+            "lines",
+            "--baseline",
+            "kickback-baseline.toml",
+            "hw",
+        ])
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(1));
+    let lines = text(&output.stdout);
+    assert!(lines.contains("hw/second.cir:"), "{lines}");
+    assert!(!lines.contains("hw/valve.cir:"), "{lines}");
+}
+
+#[test]
+fn a_baseline_names_entries_that_no_longer_occur() {
+    let dir = project();
+    let root = dir.path();
+    kickback()
+        .current_dir(root)
+        .args(["baseline", "--out", "known.toml", "hw"])
+        .assert()
+        .code(0);
+    // The valve gets its diode: the baseline's entry is stale, and the check passes.
+    let fixed = fs::read_to_string(root.join("hw/valve.cir"))
+        .unwrap()
+        .replace("CB    v12 0 100u", "CB    v12 0 100u\nDFW   c v12 DSW");
+    fs::write(root.join("hw/valve.cir"), fixed).unwrap();
+    kickback()
+        .current_dir(root)
+        .args(["check", "--baseline", "known.toml", "hw/valve.cir"])
+        .assert()
+        .code(0)
+        .stderr(predicate::str::contains(
+            "the baseline lists 1 flyback-missing finding on xv in hw/valve.cir that no longer occurs",
+        ));
+    // A netlist the run did not check (a hook passes only the changed files) is never stale.
+    fs::write(
+        root.join("hw/other.cir"),
+        "Other\nV1 a 0 DC 1\nR1 a 0 1k\n.end\n",
+    )
+    .unwrap();
+    kickback()
+        .current_dir(root)
+        .args(["check", "--baseline", "known.toml", "hw/other.cir"])
+        .assert()
+        .code(0)
+        .stderr(predicate::str::contains("no longer").not());
+}
+
+#[test]
+fn a_baseline_that_cannot_be_read_stops_the_run() {
+    let dir = project();
+    fs::write(dir.path().join("bad.toml"), "version = 7\n").unwrap();
+    kickback()
+        .current_dir(dir.path())
+        .args(["check", "--baseline", "bad.toml", "hw"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("version 7"));
+    kickback()
+        .current_dir(dir.path())
+        .args(["check", "--baseline", "absent.toml", "hw"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains(
+            "cannot use the baseline absent.toml",
+        ));
+}
+
+// ---- rule selection for one run ------------------------------------------------------------
+
+#[test]
+fn only_and_skip_select_rules_for_one_run() {
+    let demo = repo("testdata/demo/doser.cir");
+    let all = text(
+        &kickback()
+            .args(["check", "--format", "lines"])
+            .arg(&demo)
+            .output()
+            .unwrap()
+            .stdout,
+    );
+    assert!(all.contains(" flyback-missing "), "{all}");
+    assert!(all.contains(" gate-underdrive "), "{all}");
+
+    let only = text(
+        &kickback()
+            .args(["check", "--format", "lines", "--only", "flyback-missing"])
+            .arg(&demo)
+            .output()
+            .unwrap()
+            .stdout,
+    );
+    assert!(only.contains(" flyback-missing "), "{only}");
+    assert!(!only.contains(" gate-underdrive "), "{only}");
+
+    let skipped = text(
+        &kickback()
+            .args([
+                "check",
+                "--format",
+                "lines",
+                "--skip",
+                "Flyback-Missing,gate-underdrive",
+            ])
+            .arg(&demo)
+            .output()
+            .unwrap()
+            .stdout,
+    );
+    assert!(!skipped.contains(" flyback-missing "), "{skipped}");
+    assert!(!skipped.contains(" gate-underdrive "), "{skipped}");
+    assert!(!skipped.is_empty(), "other rules still run");
+
+    kickback()
+        .args(["check", "--only", "flyback-misssing"])
+        .arg(&demo)
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("did you mean flyback-missing"));
+}
+
+#[test]
+fn rules_prints_json_with_the_level_in_effect() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    fs::write(
+        dir.path().join("kickback.toml"),
+        "[rules]\nGate-Underdrive = \"off\"\npwm-audible = \"warning\"\n",
+    )
+    .unwrap();
+    let output = kickback()
+        .current_dir(dir.path())
+        .args(["rules", "--format", "json", "--skip", "shoot-through"])
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(0), "{}", text(&output.stderr));
+    let json: serde_json::Value = serde_json::from_slice(&output.stdout).unwrap();
+    assert_eq!(json["version"], 1);
+    let rules = json["rules"].as_array().unwrap();
+    let find = |id: &str| {
+        rules
+            .iter()
+            .find(|r| r["id"] == id)
+            .unwrap_or_else(|| panic!("{id} listed"))
+            .clone()
+    };
+    assert_eq!(find("gate-underdrive")["in_effect"], "off");
+    assert_eq!(find("pwm-audible")["in_effect"], "warning");
+    assert_eq!(find("shoot-through")["in_effect"], "off");
+    assert_eq!(find("flyback-missing")["in_effect"], "as-graded");
+    assert_eq!(find("flyback-missing")["default"], "error");
+    assert!(find("flyback-missing")["gives"].is_array());
+    assert!(json["config"]
+        .as_str()
+        .is_some_and(|p| p.ends_with("kickback.toml")));
+
+    // The table says the same.
+    let table = text(
+        &kickback()
+            .current_dir(dir.path())
+            .args(["rules"])
+            .output()
+            .unwrap()
+            .stdout,
+    );
+    let line = table
+        .lines()
+        .find(|l| l.starts_with("gate-underdrive "))
+        .expect("listed");
+    assert!(line.contains(" off "), "{line}");
+
+    kickback()
+        .args(["rules", "--format", "sarif"])
+        .assert()
+        .code(2);
+}
+
+#[test]
+fn a_config_rule_level_applies_whatever_its_case() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    fs::copy(
+        repo("testdata/demo/doser.cir"),
+        dir.path().join("doser.cir"),
+    )
+    .unwrap();
+    let mut config = fs::read_to_string(repo("testdata/demo/kickback.toml")).unwrap();
+    config.push_str("\n[rules]\nGate-Underdrive = \"off\"\n");
+    fs::write(dir.path().join("kickback.toml"), config).unwrap();
+    let lines = text(
+        &kickback()
+            .current_dir(dir.path())
+            .args(["check", "--format", "lines", "doser.cir"])
+            .output()
+            .unwrap()
+            .stdout,
+    );
+    assert!(!lines.contains("gate-underdrive"), "{lines}");
+}
+
+// ---- a netlist on stdin --------------------------------------------------------------------
+
+#[test]
+fn stdin_is_checked_under_the_name_given() {
+    let dir = project();
+    let valve = fs::read_to_string(dir.path().join("hw/valve.cir")).unwrap();
+    // The name places the netlist in hw/, so hw/kickback.toml describes its parts.
+    let output = kickback()
+        .current_dir(dir.path())
+        .args(["check", "--format", "lines", "--name", "hw/piped.cir", "-"])
+        .write_stdin(valve.clone())
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(1), "{}", text(&output.stderr));
+    let lines = text(&output.stdout);
+    assert!(lines.starts_with("hw/piped.cir:"), "{lines}");
+    assert!(lines.contains(" flyback-missing "), "{lines}");
+
+    // Without a name it is stdin.cir; `-` does not mix with other paths.
+    let output = kickback()
+        .current_dir(dir.path())
+        .args(["check", "--format", "lines", "-"])
+        .write_stdin("Clean\nV1 a 0 DC 5\nR1 a 0 1k\n.end\n")
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(0), "{}", text(&output.stdout));
+    kickback()
+        .current_dir(dir.path())
+        .args(["check", "-", "hw"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("cannot be checked together"));
+}
