@@ -181,6 +181,7 @@ fn report(channels: usize, config: &Config) -> FileReport {
         sources,
         findings: outcome.findings,
         suppressed: outcome.suppressed,
+        configs: Vec::new(),
         failure: None,
     }
 }

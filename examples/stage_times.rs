@@ -124,6 +124,7 @@ fn main() {
         sources,
         findings: outcome.findings,
         suppressed: outcome.suppressed,
+        configs: Vec::new(),
         failure: None,
     }];
     let bytes = [

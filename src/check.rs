@@ -24,10 +24,22 @@ pub struct CheckOptions {
 }
 
 pub fn load_config(netlist: &Path, options: &CheckOptions) -> Result<Config, ConfigError> {
-    let mut config = match &options.config_path {
-        Some(path) => Config::load(path)?,
-        None => Config::discover_with(netlist, options.limits.allow_outside_includes)?
-            .unwrap_or_default(),
+    let given = options
+        .config_path
+        .as_deref()
+        .map(Config::load)
+        .transpose()?;
+    // `--config` is laid over the files found from the netlist up, or stands alone when it
+    // says `root = true`.
+    let mut config = match given {
+        Some(given) if given.root => given,
+        given => {
+            let found = Config::discover_with(netlist, options.limits.allow_outside_includes)?;
+            match (found, given) {
+                (Some(found), Some(given)) => found.overlay(given),
+                (found, given) => given.or(found).unwrap_or_default(),
+            }
+        }
     };
     validate_rule_ids(&config)?;
     overlay_rule_levels(&mut config, &options.rule_levels);
@@ -48,6 +60,12 @@ pub fn validate_rule_ids(config: &Config) -> Result<(), ConfigError> {
             continue;
         }
         let (line, column) = config.rule_spans.get(id).copied().unwrap_or((1, 1));
+        let path = config
+            .rule_files
+            .get(id)
+            .or(config.path.as_ref())
+            .cloned()
+            .unwrap_or_default();
         let near = rules::suppress::closest_rules(id);
         let hint = if near.is_empty() {
             " (`kickback rules` lists them)".to_string()
@@ -55,7 +73,7 @@ pub fn validate_rule_ids(config: &Config) -> Result<(), ConfigError> {
             format!("; did you mean {}?", near.join(" or "))
         };
         return Err(ConfigError {
-            path: config.path.clone().unwrap_or_default(),
+            path,
             line,
             column,
             key: Some(format!("rules.{id}")),
@@ -122,6 +140,7 @@ pub fn check_str(name: &str, text: &str, config: &Config, options: &CheckOptions
     let path = Path::new(name);
     guarded(path, || {
         let mut report = empty_report(path);
+        report.configs = config.files.clone();
         let keep = |part: &str| parts::keeps_whole(part, config);
         match netlist::parse_text(name, text, &mut report.sources, &options.limits, &keep) {
             Ok((flat, findings)) => finish(report, &flat, findings, config),
@@ -139,6 +158,7 @@ fn empty_report(path: &Path) -> FileReport {
         sources: SourceMap::new(),
         findings: Vec::new(),
         suppressed: 0,
+        configs: Vec::new(),
         failure: None,
     }
 }
@@ -152,6 +172,7 @@ fn check_file_unguarded(path: &Path, options: &CheckOptions) -> FileReport {
             return report;
         }
     };
+    report.configs = config.files.clone();
     let keep = |name: &str| parts::keeps_whole(name, &config);
     let (flat, findings) = match netlist::load(path, &mut report.sources, &options.limits, &keep) {
         Ok(x) => x,

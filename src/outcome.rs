@@ -29,6 +29,8 @@ pub struct FileReport {
     pub findings: Vec<Finding>,
     /// Findings silenced by a suppression comment or `off` in `[rules]`.
     pub suppressed: usize,
+    /// The configuration files read for it, outermost first.
+    pub configs: Vec<std::path::PathBuf>,
     /// Set when the file could not be checked; `findings` may then be empty.
     pub failure: Option<CheckError>,
 }

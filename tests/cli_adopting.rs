@@ -313,7 +313,7 @@ fn rules_prints_json_with_the_level_in_effect() {
     assert_eq!(find("flyback-missing")["in_effect"], "as-graded");
     assert_eq!(find("flyback-missing")["default"], "error");
     assert!(find("flyback-missing")["gives"].is_array());
-    assert!(json["config"]
+    assert!(json["configs"][0]
         .as_str()
         .is_some_and(|p| p.ends_with("kickback.toml")));
 
@@ -392,4 +392,178 @@ fn stdin_is_checked_under_the_name_given() {
         .assert()
         .code(2)
         .stderr(predicate::str::contains("cannot be checked together"));
+}
+
+// ---- configuration values carry their units ------------------------------------------------
+
+#[test]
+fn a_value_in_the_wrong_unit_is_an_error_with_its_line() {
+    let dir = project();
+    let config = dir.path().join("hw/kickback.toml");
+    let text = fs::read_to_string(&config).unwrap().replace(
+        "rated_voltage = 12\nresistance = 24",
+        "rated_voltage = \"6 A\"\nresistance = 24",
+    );
+    fs::write(&config, text).unwrap();
+    let output = kickback()
+        .current_dir(dir.path())
+        .args(["check", "hw"])
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(2));
+    let err = text_of(&output.stderr);
+    assert!(
+        err.contains("`parts.VALVE12.rated_voltage`: \"6 A\" is in A, and `rated_voltage` is in V"),
+        "{err}"
+    );
+    // The line, and the value underlined under it.
+    assert!(err.contains("| rated_voltage = \"6 A\"\n"), "{err}");
+    assert!(err.contains("|                 ^^^^^"), "{err}");
+
+    // A unit that agrees is read.
+    let text = fs::read_to_string(&config)
+        .unwrap()
+        .replace("rated_voltage = \"6 A\"", "rated_voltage = \"12 V\"")
+        .replace("inductance = \"45m\"", "inductance = \"45 mH\"");
+    fs::write(&config, text).unwrap();
+    kickback()
+        .current_dir(dir.path())
+        .args(["check", "hw"])
+        .assert()
+        .code(1)
+        .stdout(predicate::str::contains("flyback-missing"));
+}
+
+fn text_of(bytes: &[u8]) -> String {
+    text(bytes)
+}
+
+// ---- layered configuration -----------------------------------------------------------------
+
+#[test]
+fn configurations_layer_from_the_project_root_down_and_under_config() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    let outer = dir.path();
+    // Above the project: a file that would silence the rule, never read past `root = true`.
+    fs::write(
+        outer.join("kickback.toml"),
+        "[rules]\nflyback-missing = \"off\"\n",
+    )
+    .unwrap();
+    let project = outer.join("bench");
+    let hw = project.join("hw");
+    fs::create_dir_all(&hw).unwrap();
+    let fixtures = repo("testdata/rules/flyback-missing");
+    let parts = fs::read_to_string(fixtures.join("kickback.toml")).unwrap();
+    fs::write(
+        project.join("kickback.toml"),
+        format!("root = true\n\n{parts}"),
+    )
+    .unwrap();
+    fs::copy(fixtures.join("fires-valve-npn.cir"), hw.join("valve.cir")).unwrap();
+
+    // Only the project's file: the parts are known and the rule fires as an error.
+    let output = kickback()
+        .current_dir(&project)
+        .args(["check", "--color", "never", "hw"])
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(1), "{}", text(&output.stderr));
+    let out = text(&output.stdout);
+    assert!(out.contains("flyback-missing"), "{out}");
+    assert!(out.contains("configuration: kickback.toml\n"), "{out}");
+
+    // A file in the subfolder is laid over it: its level wins, the parts still come from above.
+    fs::write(
+        hw.join("kickback.toml"),
+        "[rules]\nFlyback-Missing = \"warning\"\n",
+    )
+    .unwrap();
+    let output = kickback()
+        .current_dir(&project)
+        .args(["check", "--color", "never", "hw"])
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(0), "{}", text(&output.stderr));
+    let out = text(&output.stdout);
+    assert!(out.contains("warning"), "{out}");
+    assert!(!out.contains("model-missing"), "{out}");
+    assert!(
+        out.contains("configuration: hw/kickback.toml, kickback.toml\n"),
+        "{out}"
+    );
+
+    // `--config` is laid over both.
+    fs::write(
+        project.join("ci.toml"),
+        "[rules]\nflyback-missing = \"off\"\n",
+    )
+    .unwrap();
+    let output = kickback()
+        .current_dir(&project)
+        .args(["check", "--color", "never", "--config", "ci.toml", "hw"])
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(0), "{}", text(&output.stderr));
+    let out = text(&output.stdout);
+    assert!(!out.contains("flyback-missing"), "{out}");
+    assert!(out.contains("ci.toml"), "{out}");
+    assert!(
+        !out.contains("model-missing"),
+        "the parts still come from below: {out}"
+    );
+
+    // An unknown rule in a layer above is reported at its own file.
+    fs::write(
+        project.join("kickback.toml"),
+        format!("root = true\n\n{parts}\n[rules]\nflyback-mising = \"off\"\n"),
+    )
+    .unwrap();
+    kickback()
+        .current_dir(&project)
+        .args(["check", "hw"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("bench/kickback.toml:"))
+        .stderr(predicate::str::contains("did you mean flyback-missing"));
+}
+
+// ---- summaries for big runs ----------------------------------------------------------------
+
+#[test]
+fn counts_by_rule_and_file_come_before_the_summary() {
+    let dir = project();
+    let valve = fs::read_to_string(dir.path().join("hw/valve.cir")).unwrap();
+    for i in 0..12 {
+        fs::write(dir.path().join(format!("hw/copy{i:02}.cir")), &valve).unwrap();
+    }
+    let output = kickback()
+        .current_dir(dir.path())
+        .args(["check", "--color", "never", "--counts", "hw"])
+        .output()
+        .unwrap();
+    assert_eq!(output.status.code(), Some(1));
+    let out = text(&output.stdout);
+    let rule_header = out.find("RULE ").expect("a table by rule");
+    let file_header = out.find("FILE ").expect("a table by file");
+    let summary = out.rfind("in 13 files").expect("the summary");
+    assert!(rule_header < file_header && file_header < summary, "{out}");
+    let row = out[rule_header..]
+        .lines()
+        .find(|l| l.starts_with("flyback-missing "))
+        .expect("a row for the rule");
+    let cells: Vec<&str> = row.split_whitespace().collect();
+    assert_eq!(cells[1], "13", "{row}");
+    assert!(out[file_header..].contains("hw/copy00.cir "), "{out}");
+    // A pipe never gets a progress line, however long the run.
+    assert!(
+        !text(&output.stderr).contains("netlists\r"),
+        "{}",
+        text(&output.stderr)
+    );
+    assert!(
+        !text(&output.stderr).contains("checked "),
+        "{}",
+        text(&output.stderr)
+    );
 }

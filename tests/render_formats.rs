@@ -100,6 +100,7 @@ fn pump_report() -> FileReport {
         // Deliberately not in line order: the renderer sorts.
         findings: vec![audible, flyback, underdrive],
         suppressed: 1,
+        configs: Vec::new(),
         failure: None,
     }
 }
@@ -129,6 +130,7 @@ fn stirrer_report() -> FileReport {
         sources,
         findings: vec![floating],
         suppressed: 0,
+        configs: Vec::new(),
         failure: None,
     }
 }
@@ -139,6 +141,7 @@ fn failed_report() -> FileReport {
         sources: SourceMap::new(),
         findings: Vec::new(),
         suppressed: 0,
+        configs: Vec::new(),
         failure: Some(CheckError::Load(LoadError::Unreadable {
             path: "hw/gone.cir".into(),
             reason: "No such file or directory".into(),
@@ -266,6 +269,7 @@ fn lines_format_keeps_multi_line_messages_on_one_line() {
             "first\nsecond",
         )],
         suppressed: 0,
+        configs: Vec::new(),
         failure: None,
     };
     assert_eq!(
@@ -453,6 +457,7 @@ fn sarif_rules_come_from_the_registry_and_pages() {
             "R needs two nodes and a value",
         )],
         suppressed: 0,
+        configs: Vec::new(),
         failure: None,
     };
     let value = assert_valid_sarif(&report::sarif::render(&[report]));

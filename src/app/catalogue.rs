@@ -64,13 +64,19 @@ pub fn table(registry: &[&Rule], config: Option<&Config>) -> String {
     for r in &rows {
         row([&r[0], &r[1], &r[2], &r[3]]);
     }
-    if let Some(path) = config.and_then(|c| c.path.as_ref()) {
-        out.push_str(&format!("\nIN EFFECT read from {}\n", path.display()));
+    if let Some(config) = config.filter(|c| !c.files.is_empty()) {
+        let files: Vec<String> = config
+            .files
+            .iter()
+            .map(|p| p.display().to_string())
+            .collect();
+        out.push_str(&format!("\nIN EFFECT read from {}\n", files.join(", ")));
     }
     out
 }
 
-/// Every rule as JSON for a program: `version`, the configuration read (`config`, or null) and
+/// Every rule as JSON for a program: `version`, the configuration files read (`configs`,
+/// outermost first) and
 /// `rules`, each with `id`, `default` (its usual severity), `gives` (every severity it can give,
 /// worst first), `in_effect` (`as-graded`, `off`, or the one level the configuration or the
 /// command line sets) and `summary`.
@@ -94,7 +100,9 @@ pub fn json(registry: &[&Rule], config: Option<&Config>) -> String {
         .collect();
     let document = serde_json::json!({
         "version": 1,
-        "config": config.and_then(|c| c.path.as_ref()).map(|p| p.display().to_string()),
+        "configs": config
+            .map(|c| c.files.iter().map(|p| p.display().to_string()).collect::<Vec<_>>())
+            .unwrap_or_default(),
         "rules": rules,
     });
     let mut text = serde_json::to_string_pretty(&document).unwrap_or_default();

@@ -97,6 +97,9 @@ pub enum Command {
         /// looked for from its folder. Includes are not read from stdin.
         #[arg(long, value_name = "PATH", default_value = "stdin.cir")]
         name: PathBuf,
+        /// Cards format: before the summary, count the findings by rule and by file.
+        #[arg(long)]
+        counts: bool,
     },
     /// Write a baseline file of today's errors and warnings, for `check --baseline`: a design
     /// adopted with known faults then fails only on new ones.

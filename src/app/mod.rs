@@ -84,11 +84,13 @@ where
             paths,
             baseline,
             name,
+            counts,
         } => {
             let run = CheckRun {
                 baseline: baseline.as_deref(),
                 stdin_name: name,
                 write_baseline: None,
+                counts: *counts,
             };
             check(paths, &run, &cli.global, env, &mut console)
         }
@@ -97,6 +99,7 @@ where
                 baseline: None,
                 stdin_name: Path::new("stdin.cir"),
                 write_baseline: Some(out),
+                counts: false,
             };
             check(paths, &run, &cli.global, env, &mut console)
         }
@@ -164,6 +167,8 @@ struct CheckRun<'a> {
     stdin_name: &'a Path,
     /// `baseline --out FILE`: write the findings there instead of printing them.
     write_baseline: Option<&'a Path>,
+    /// `check --counts`: findings by rule and by file before the summary.
+    counts: bool,
 }
 
 fn check(
@@ -265,6 +270,15 @@ fn check(
     let mut kept: Vec<FileReport> = Vec::new();
     let mut totals = report::Summary::default();
     let mut included = 0usize;
+    let mut tally = report::Tally::default();
+    // A run that takes more than a second says how far it got, on a terminal only: never on a
+    // pipe, never in JSON or SARIF, and wiped before anything else is printed.
+    let total = jobs.len();
+    let started = std::time::Instant::now();
+    let progress = env.stderr_is_terminal && streamed;
+    let mut progress_shown = false;
+    let mut done = 0usize;
+    let mut configs: std::collections::BTreeSet<PathBuf> = std::collections::BTreeSet::new();
     for chunk in jobs.chunks(batch) {
         let mut reports: Vec<FileReport> = chunk
             .par_iter()
@@ -278,6 +292,10 @@ fn check(
                 }
             })
             .collect();
+        if progress_shown {
+            console.write_err("\r\x1b[K");
+            progress_shown = false;
+        }
         let named = chunk
             .iter()
             .filter(|job| !matches!(job, Job::IfIncludes(_)))
@@ -290,6 +308,7 @@ fn check(
             }
         }
         totals.known = totals.known.saturating_add(known);
+        configs.extend(reports.iter().flat_map(|r| r.configs.iter().cloned()));
         for (file, message) in report::failures(&reports) {
             // Most reasons already name the netlist ("cannot read a.cir: ..."); others name
             // only their own file (a config line), so the netlist is added.
@@ -300,6 +319,10 @@ fn check(
             }
         }
         code = code.max(outcome(&reports, failing));
+        done = done.saturating_add(chunk.len());
+        if run.counts {
+            tally.add(&reports);
+        }
         if streamed {
             add_counts(&mut totals, &report::Summary::of(&reports));
             let text = match global.format {
@@ -310,6 +333,13 @@ fn check(
         } else {
             kept.extend(reports);
         }
+        if progress && done < total && started.elapsed() >= std::time::Duration::from_secs(1) {
+            console.write_err(&format!("\rchecked {done} of {total} netlists"));
+            progress_shown = true;
+        }
+    }
+    if progress_shown {
+        console.write_err("\r\x1b[K");
     }
     if !libraries.is_empty() && included == 0 {
         console.note(&format!(
@@ -336,9 +366,28 @@ fn check(
     let text = match global.format {
         Format::Cards | Format::Human => {
             totals.failed.sort();
-            let mut line = report::cards::summary_line(&totals, &cards);
-            line.push('\n');
-            line
+            let mut text = if run.counts {
+                tally.render()
+            } else {
+                String::new()
+            };
+            if !configs.is_empty() {
+                let here = std::env::current_dir().and_then(|d| d.canonicalize()).ok();
+                let shown: Vec<String> = configs
+                    .iter()
+                    .map(|path| {
+                        here.as_ref()
+                            .and_then(|h| path.strip_prefix(h).ok())
+                            .unwrap_or(path)
+                            .display()
+                            .to_string()
+                    })
+                    .collect();
+                text.push_str(&format!("configuration: {}\n", shown.join(", ")));
+            }
+            text.push_str(&report::cards::summary_line(&totals, &cards));
+            text.push('\n');
+            text
         }
         Format::Lines | Format::Short => String::new(),
         Format::Json => report::json::render(&kept),
@@ -474,6 +523,7 @@ fn unreadable((path, reason): (PathBuf, String)) -> FileReport {
         sources: SourceMap::new(),
         findings: Vec::new(),
         suppressed: 0,
+        configs: Vec::new(),
         failure: Some(CheckError::Load(LoadError::Unreadable { path, reason })),
     }
 }
@@ -561,25 +611,10 @@ fn rules_command(global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
             return EXIT_FAILURE;
         }
     };
-    let config = match &options.config_path {
-        Some(path) => Config::load(path).map(Some),
-        None => Config::discover(Path::new(".")),
-    };
-    let config = config.map(|found| {
-        if options.rule_levels.is_empty() {
-            return found;
-        }
-        let mut config = found.unwrap_or_default();
-        crate::check::overlay_rule_levels(&mut config, &options.rule_levels);
-        Some(config)
-    });
-    let config = match config.and_then(|c| {
-        if let Some(c) = &c {
-            crate::check::validate_rule_ids(c)?;
-        }
-        Ok(c)
-    }) {
-        Ok(config) => config,
+    // The configuration a netlist in the current folder would be checked under: the files
+    // found from here up, `--config`, `--only` and `--skip`.
+    let config = match crate::check::load_config(Path::new("."), &options) {
+        Ok(config) => Some(config),
         Err(e) => {
             console.error(&e.to_string());
             return EXIT_FAILURE;

@@ -7,6 +7,8 @@ use std::io::IsTerminal;
 #[derive(Clone, Debug, Default, PartialEq, Eq)]
 pub struct Environment {
     pub stdout_is_terminal: bool,
+    /// stderr is a terminal: a progress line may be drawn there.
+    pub stderr_is_terminal: bool,
     /// `NO_COLOR`, when set.
     pub no_color: Option<String>,
     /// `TERM`, when set.
@@ -22,6 +24,7 @@ impl Environment {
         let var = |name: &str| std::env::var(name).ok();
         Environment {
             stdout_is_terminal: std::io::stdout().is_terminal(),
+            stderr_is_terminal: std::io::stderr().is_terminal(),
             no_color: var("NO_COLOR"),
             term: var("TERM"),
             locale: ["LC_ALL", "LC_CTYPE", "LANG"]

@@ -1,4 +1,10 @@
-//! `kickback.toml`: discovery beside the netlist or in a parent folder, schema and validation.
+//! `kickback.toml`: discovery beside the netlist and in its parent folders, layering, schema
+//! and validation.
+//!
+//! Every `kickback.toml` from the netlist's folder up to the filesystem root is read, and each
+//! nearer one is laid over those above it, key by key; a file with `root = true` ends the
+//! search upwards (a project's top). `--config FILE` is laid over them all (alone, when it says
+//! `root = true` itself).
 //!
 //! The schema: `[analysis] ground`, `[rules]` severities, `[supply.NAME]` corners,
 //! `[parts.NAME]` (a model or subcircuit name or a glob) and `[elements."PATH"]` (one flattened
@@ -58,14 +64,23 @@ pub struct PartConfig {
 
 #[derive(Clone, Debug, Default, PartialEq)]
 pub struct Config {
-    /// Where it was read from; `None` for the built-in defaults.
+    /// Where it was read from (the nearest file, or `--config`); `None` for the built-in
+    /// defaults.
     pub path: Option<PathBuf>,
+    /// Every file laid together to make this configuration, outermost first.
+    pub files: Vec<PathBuf>,
+    /// `root = true`: no file above this one is read.
+    pub root: bool,
+    /// True when `[analysis] ground` was written (else `analysis.ground` is the default).
+    pub ground_given: bool,
     pub analysis: AnalysisConfig,
     /// Rule ID as written → level. IDs are not checked against the rule registry here.
     pub rules: BTreeMap<String, RuleLevel>,
     /// Rule ID as written → 1-based (line, column) of its key, so that an unknown ID can be
     /// reported at its line.
     pub rule_spans: BTreeMap<String, (usize, usize)>,
+    /// Rule ID → the file whose `[rules]` names it, when that is not `path` (a layer above).
+    pub rule_files: BTreeMap<String, PathBuf>,
     /// Source element name as written → corners.
     pub supplies: BTreeMap<String, SupplyConfig>,
     /// In file order: the pattern (name or glob, as written) and its data.
@@ -130,17 +145,58 @@ impl Config {
     pub fn parse(text: &str, path: &Path) -> Result<Config, ConfigError> {
         let mut config = schema::read(text, path)?;
         config.path = Some(path.to_path_buf());
+        config.files = vec![path.to_path_buf()];
         Ok(config)
     }
 
-    /// Finds `kickback.toml` beside `netlist` or in a parent folder, up to the filesystem root,
-    /// and loads the first one found.
+    /// Lays `nearer` (a file nearer the netlist, or `--config`) over this configuration: its
+    /// values win key by key, its part entries are matched before these.
+    pub fn overlay(mut self, nearer: Config) -> Config {
+        let nearer_path = nearer.path.clone();
+        if nearer.ground_given {
+            self.analysis = nearer.analysis;
+            self.ground_given = true;
+        }
+        if let Some(here) = &self.path {
+            for id in self.rules.keys() {
+                self.rule_files
+                    .entry(id.clone())
+                    .or_insert_with(|| here.clone());
+            }
+        }
+        for (id, level) in nearer.rules {
+            self.rule_files.remove(&id);
+            self.rules.insert(id, level);
+        }
+        self.rule_files.extend(nearer.rule_files);
+        self.rule_spans.extend(nearer.rule_spans);
+        for (name, supply) in nearer.supplies {
+            self.supplies
+                .retain(|written, _| !written.eq_ignore_ascii_case(&name));
+            self.supplies.insert(name, supply);
+        }
+        let mut parts = nearer.parts;
+        parts.append(&mut self.parts);
+        self.parts = parts;
+        for (path, element) in nearer.elements {
+            self.elements
+                .retain(|written, _| !written.eq_ignore_ascii_case(&path));
+            self.elements.insert(path, element);
+        }
+        self.files.extend(nearer.files);
+        self.root |= nearer.root;
+        self.path = nearer_path.or(self.path);
+        self
+    }
+
+    /// Finds every `kickback.toml` beside `netlist` and in its parent folders, up to the
+    /// filesystem root or the first with `root = true`, and lays them together.
     pub fn discover(netlist: &Path) -> Result<Option<Config>, ConfigError> {
         Config::discover_with(netlist, false)
     }
 
-    /// The `kickback.toml` beside `netlist` or in the nearest parent folder that has one.
-    /// The same containment as for includes: a `kickback.toml` that links out of the folder it
+    /// The `kickback.toml` files beside `netlist` and above it, laid together (see
+    /// [`Config::overlay`]). The same containment as for includes: a `kickback.toml` that links out of the folder it
     /// stands in is refused before it is opened (unless `allow_outside`), and one that is not a
     /// regular file (a FIFO, a folder, a device, a broken link) is an error rather than passed
     /// over for a parent's.
@@ -157,6 +213,7 @@ impl Config {
         } else {
             absolute.parent().unwrap_or(absolute.as_path())
         };
+        let mut layers = Vec::new();
         for folder in start.ancestors() {
             let candidate = folder.join(FILE_NAME);
             if std::fs::symlink_metadata(&candidate).is_err() {
@@ -175,13 +232,23 @@ impl Config {
             if !allow_outside && !target.starts_with(&home) {
                 return Err(refused(
                     "it links to a file outside its folder and is not read \
-                     (--allow-outside-includes reads it, or name a configuration with --config)"
+                     (--allow-outside-includes reads it, or name a configuration that says \
+                     `root = true` with --config)"
                         .into(),
                 ));
             }
-            return Config::load(&candidate).map(Some);
+            let layer = Config::load(&candidate)?;
+            let stop = layer.root;
+            layers.push(layer);
+            if stop {
+                break;
+            }
         }
-        Ok(None)
+        let mut layers = layers.into_iter().rev();
+        let Some(outermost) = layers.next() else {
+            return Ok(None);
+        };
+        Ok(Some(layers.fold(outermost, Config::overlay)))
     }
 
     pub fn supply(&self, element: &str) -> Option<&SupplyConfig> {

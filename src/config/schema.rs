@@ -2,7 +2,7 @@
 //! unknown keys, wrong types and impossible values with the line, column and key.
 
 use super::tree::{line_column, Node};
-use super::value::parse_value;
+use super::value::{parse_value, written_unit};
 use super::{Config, ConfigError, PartConfig, RuleLevel, SupplyConfig};
 use crate::diagnostic::Severity;
 use crate::vocabulary::{glob, ratings, roles, Kind};
@@ -12,7 +12,7 @@ use std::path::Path;
 
 type Entries = Vec<(Spanned<String>, Node)>;
 
-const TOP_KEYS: [&str; 5] = ["analysis", "rules", "supply", "parts", "elements"];
+const TOP_KEYS: [&str; 6] = ["root", "analysis", "rules", "supply", "parts", "elements"];
 const SUPPLY_KEYS: [&str; 3] = ["min", "nominal", "max"];
 
 /// Pairs of ratings where the first may not exceed the second.
@@ -42,6 +42,16 @@ pub(super) fn read(text: &str, path: &Path) -> Result<Config, ConfigError> {
     let mut config = Config::default();
     for (key, node) in &top {
         match key.get_ref().as_str() {
+            "root" => match node {
+                Node::Bool(flag) => config.root = *flag,
+                other => {
+                    return Err(cx.error(
+                        key.span(),
+                        "root",
+                        format!("must be true or false, not {}", other.type_name()),
+                    ))
+                }
+            },
             "analysis" => cx.analysis(key, node, &mut config)?,
             "rules" => cx.rules(key, node, &mut config)?,
             "supply" => {
@@ -170,6 +180,7 @@ impl Reader<'_> {
                 }
             }
             config.analysis.ground = ground;
+            config.ground_given = true;
         }
         Ok(())
     }
@@ -385,7 +396,55 @@ impl Reader<'_> {
         Ok(roles)
     }
 
+    /// The line of `span` with the value after its key underlined, for a message about it.
+    fn snippet(&self, span: &Range<usize>) -> String {
+        let (line, _) = line_column(self.text, span.start);
+        let text = self.text.lines().nth(line - 1).unwrap_or("");
+        let start = text.find('=').map_or(0, |eq| {
+            eq + 1 + text[eq + 1..].len() - text[eq + 1..].trim_start().len()
+        });
+        let value = text[start..].split('#').next().unwrap_or("").trim_end();
+        let gutter = line.to_string();
+        let pad = " ".repeat(gutter.len());
+        let lead = " ".repeat(text[..start].chars().count());
+        let marks = "^".repeat(value.chars().count().max(1));
+        format!("\n {pad} |\n {gutter} | {text}\n {pad} | {lead}{marks}")
+    }
+
+    /// A unit written after a number must be the key's own: `"6 A"` is no voltage.
+    fn check_unit(
+        &self,
+        name: &Spanned<String>,
+        text: &str,
+        here: &str,
+    ) -> Result<(), ConfigError> {
+        let key = here.rsplit('.').next().unwrap_or(here);
+        let expected = match key {
+            "min" | "nominal" | "max" if here.starts_with("supply.") => Some("V"),
+            other => ratings::rating_unit(other),
+        };
+        let (Some(expected), Some(written)) = (expected, written_unit(text)) else {
+            return Ok(());
+        };
+        if expected == written {
+            return Ok(());
+        }
+        let wanted = if expected.is_empty() {
+            "a plain number".to_string()
+        } else {
+            format!("in {expected}")
+        };
+        let message = format!(
+            "\"{text}\" is in {written}, and `{key}` is {wanted}{}",
+            self.snippet(&name.span())
+        );
+        Err(self.error(name.span(), here, message))
+    }
+
     fn number(&self, name: &Spanned<String>, value: &Node, here: &str) -> Result<f64, ConfigError> {
+        if let Node::Str(text) = value {
+            self.check_unit(name, text, here)?;
+        }
         let number = match value {
             Node::Integer(i) => Some(*i as f64),
             Node::Float(f) => Some(*f),

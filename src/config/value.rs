@@ -21,9 +21,63 @@ pub(crate) fn parse_value(text: &str) -> Option<f64> {
     value.ok()
 }
 
+/// The unit a config value string names after its number and scale suffix, as an SI symbol
+/// (`"45 mH"` → `H`, `"6 A"` → `A`, `"10k"` → none), when the letters are a unit kickback knows.
+/// Unknown letters name no unit: they are ignored, as SPICE ignores them.
+pub(crate) fn written_unit(text: &str) -> Option<&'static str> {
+    let text = text.trim();
+    let start = text.find(|c: char| c.is_alphabetic() || c == 'Ω' || c == 'µ')?;
+    let letters = text[start..].trim().to_lowercase();
+    // The scale suffix first, as the number parser reads it: letters that are only a scale
+    // (`1f` is a femto, not a farad) name no unit.
+    for prefix in ["meg", "mil", "t", "g", "k", "m", "u", "µ", "n", "p", "f"] {
+        if let Some(rest) = letters.strip_prefix(prefix) {
+            if rest.trim().is_empty() {
+                return None;
+            }
+            if let Some(unit) = unit_of(rest.trim()) {
+                return Some(unit);
+            }
+        }
+    }
+    unit_of(&letters)
+}
+
+fn unit_of(letters: &str) -> Option<&'static str> {
+    Some(match letters {
+        "v" | "volt" | "volts" => "V",
+        "a" | "amp" | "amps" | "ampere" | "amperes" => "A",
+        "ohm" | "ohms" | "Ω" | "r" => "Ω",
+        "h" | "henry" | "henries" => "H",
+        "f" | "farad" | "farads" => "F",
+        "w" | "watt" | "watts" => "W",
+        "s" | "sec" | "second" | "seconds" => "s",
+        "c" | "coulomb" | "coulombs" => "C",
+        "hz" => "Hz",
+        _ => return None,
+    })
+}
+
 #[cfg(test)]
 mod tests {
     use super::parse_value;
+
+    #[test]
+    fn units_after_the_scale_are_read() {
+        use super::written_unit;
+        assert_eq!(written_unit("6 A"), Some("A"));
+        assert_eq!(written_unit("45 mH"), Some("H"));
+        assert_eq!(written_unit("4.7uF"), Some("F"));
+        assert_eq!(written_unit("100mohm"), Some("Ω"));
+        assert_eq!(written_unit("1MEGohm"), Some("Ω"));
+        assert_eq!(written_unit("12V"), Some("V"));
+        assert_eq!(written_unit("10k"), None);
+        assert_eq!(written_unit("1f"), None);
+        assert_eq!(written_unit("2.2m"), None);
+        assert_eq!(written_unit("6"), None);
+        assert_eq!(written_unit("1 farad"), Some("F"));
+        assert_eq!(written_unit("5 ms"), Some("s"));
+    }
 
     fn close(a: f64, b: f64) -> bool {
         (a - b).abs() <= 1e-12 * b.abs().max(1e-30)

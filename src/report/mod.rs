@@ -176,6 +176,78 @@ impl Summary {
     }
 }
 
+/// Findings counted by rule and by file over a run, for `check --counts` on big runs.
+#[derive(Clone, Debug, Default, PartialEq, Eq)]
+pub struct Tally {
+    /// Rule ID → errors, warnings, notes.
+    pub rules: std::collections::BTreeMap<String, [usize; 3]>,
+    /// File as shown → errors, warnings, notes.
+    pub files: std::collections::BTreeMap<String, [usize; 3]>,
+}
+
+impl Tally {
+    /// Adds the findings of `reports` (after baselines and suppressions).
+    pub fn add(&mut self, reports: &[FileReport]) {
+        for report in reports {
+            for finding in &report.findings {
+                let slot = match finding.severity {
+                    Severity::Error => 0,
+                    Severity::Warning => 1,
+                    Severity::Note => 2,
+                };
+                for counts in [
+                    self.rules.entry(finding.rule.clone()).or_default(),
+                    self.files.entry(display_path(&report.path)).or_default(),
+                ] {
+                    counts[slot] = counts[slot].saturating_add(1);
+                }
+            }
+        }
+    }
+
+    /// Two aligned tables: findings by rule, most first, then by file, most first.
+    pub fn render(&self) -> String {
+        let mut out = String::new();
+        for (title, map) in [("RULE", &self.rules), ("FILE", &self.files)] {
+            if map.is_empty() {
+                continue;
+            }
+            let mut entries: Vec<(&String, &[usize; 3])> = map.iter().collect();
+            entries.sort_by(|a, b| {
+                let total = |c: &[usize; 3]| c.iter().sum::<usize>();
+                (b.1[0], b.1[1], total(b.1))
+                    .cmp(&(a.1[0], a.1[1], total(a.1)))
+                    .then(a.0.cmp(b.0))
+            });
+            let header = [title, "ERRORS", "WARNINGS", "NOTES"];
+            let rows: Vec<[String; 4]> = entries
+                .iter()
+                .map(|(name, c)| {
+                    [
+                        (*name).clone(),
+                        c[0].to_string(),
+                        c[1].to_string(),
+                        c[2].to_string(),
+                    ]
+                })
+                .collect();
+            let [w0, w1, w2, w3] = column_widths(header, &rows);
+            let mut line = |cells: [&str; 4]| {
+                out.push_str(&format!(
+                    "{:<w0$}  {:>w1$}  {:>w2$}  {:>w3$}\n",
+                    cells[0], cells[1], cells[2], cells[3]
+                ));
+            };
+            line(header);
+            for r in &rows {
+                line([&r[0], &r[1], &r[2], &r[3]]);
+            }
+            out.push('\n');
+        }
+        out
+    }
+}
+
 fn plural(n: usize, one: &str, many: &str) -> String {
     format!("{n} {}", if n == 1 { one } else { many })
 }
