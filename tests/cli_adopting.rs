@@ -411,7 +411,7 @@ fn a_value_in_the_wrong_unit_is_an_error_with_its_line() {
         .output()
         .unwrap();
     assert_eq!(output.status.code(), Some(2));
-    let err = text_of(&output.stderr);
+    let err = text(&output.stderr);
     assert!(
         err.contains("`parts.VALVE12.rated_voltage`: \"6 A\" is in A, and `rated_voltage` is in V"),
         "{err}"
@@ -432,10 +432,6 @@ fn a_value_in_the_wrong_unit_is_an_error_with_its_line() {
         .assert()
         .code(1)
         .stdout(predicate::str::contains("flyback-missing"));
-}
-
-fn text_of(bytes: &[u8]) -> String {
-    text(bytes)
 }
 
 // ---- layered configuration -----------------------------------------------------------------
