@@ -400,11 +400,11 @@ fn stdin_is_checked_under_the_name_given() {
 fn a_value_in_the_wrong_unit_is_an_error_with_its_line() {
     let dir = project();
     let config = dir.path().join("hw/kickback.toml");
-    let text = fs::read_to_string(&config).unwrap().replace(
+    let edited = fs::read_to_string(&config).unwrap().replace(
         "rated_voltage = 12\nresistance = 24",
         "rated_voltage = \"6 A\"\nresistance = 24",
     );
-    fs::write(&config, text).unwrap();
+    fs::write(&config, edited).unwrap();
     let output = kickback()
         .current_dir(dir.path())
         .args(["check", "hw"])
@@ -421,11 +421,11 @@ fn a_value_in_the_wrong_unit_is_an_error_with_its_line() {
     assert!(err.contains("|                 ^^^^^"), "{err}");
 
     // A unit that agrees is read.
-    let text = fs::read_to_string(&config)
+    let edited = fs::read_to_string(&config)
         .unwrap()
         .replace("rated_voltage = \"6 A\"", "rated_voltage = \"12 V\"")
         .replace("inductance = \"45m\"", "inductance = \"45 mH\"");
-    fs::write(&config, text).unwrap();
+    fs::write(&config, edited).unwrap();
     kickback()
         .current_dir(dir.path())
         .args(["check", "hw"])
