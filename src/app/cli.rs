@@ -80,6 +80,10 @@ pub enum Command {
         /// honouring .gitignore).
         #[arg(value_name = "PATHS", default_value = ".")]
         paths: Vec<PathBuf>,
+        /// Keep running: check again whenever a netlist, an included file or kickback.toml
+        /// under PATHS is saved (Ctrl-C stops).
+        #[arg(long)]
+        watch: bool,
     },
     /// Print what kickback works out about a netlist: supplies, timers, switches, loads.
     Report {
@@ -100,6 +104,13 @@ pub enum Command {
         /// Folder to write it in (default: the current folder).
         #[arg(long, value_name = "DIR")]
         path: Option<PathBuf>,
+    },
+    /// Serve an editor over the Language Server Protocol on stdin and stdout: findings as
+    /// diagnostics while you type, the numbers on hover, fixes as code actions.
+    Lsp {
+        /// Milliseconds a buffer must be quiet after a change before it is checked again.
+        #[arg(long, value_name = "MS", default_value_t = 30)]
+        debounce_ms: u64,
     },
     /// Print a shell completion script.
     Completions {

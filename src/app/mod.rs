@@ -9,6 +9,7 @@ pub mod cli;
 pub mod discover;
 pub mod init;
 pub mod terminal;
+mod watch;
 
 use crate::check::{check_file, CheckError, CheckOptions, FileReport};
 use crate::config::Config;
@@ -32,14 +33,15 @@ pub const EXIT_FAILURE: u8 = 2;
 pub fn main() -> u8 {
     install_quiet_panic_hook();
     let env = Environment::from_process();
-    let stdout = io::stdout();
     let stderr = io::stderr();
+    // Streams are locked per write, not for the whole run: `kickback lsp` writes to stdout
+    // from the protocol's own writer thread.
     let outcome = std::panic::catch_unwind(|| {
         run(
             std::env::args_os(),
             &env,
-            &mut stdout.lock(),
-            &mut stderr.lock(),
+            &mut io::stdout(),
+            &mut io::stderr(),
         )
     });
     outcome.unwrap_or_else(|payload| {
@@ -79,7 +81,12 @@ where
         console.notice(notice);
     }
     let code = match &cli.command {
-        Command::Check { paths } => check(paths, &cli.global, env, &mut console),
+        Command::Check {
+            paths,
+            watch: false,
+        } => check(paths, &cli.global, env, &mut console),
+        Command::Check { paths, watch: true } => watch::run(paths, &cli.global, env, &mut console),
+        Command::Lsp { debounce_ms } => lsp(*debounce_ms, &cli.global, &mut console),
         Command::Report { file } => report_command(file, &cli.global, &mut console),
         Command::Rules => rules_command(&cli.global, &mut console),
         Command::Explain { rule } => explain(rule, &mut console),
@@ -354,6 +361,20 @@ fn report_command(file: &Path, global: &GlobalArgs, console: &mut Console<'_>) -
         }
         Err(e) => {
             console.error(&format!("cannot report on {}: {e}", file.display()));
+            EXIT_FAILURE
+        }
+    }
+}
+
+fn lsp(debounce_ms: u64, global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
+    let options = crate::lsp::ServerOptions {
+        check: check_options(global),
+        debounce: std::time::Duration::from_millis(debounce_ms.min(10_000)),
+    };
+    match crate::lsp::serve_stdio(options) {
+        Ok(()) => EXIT_CLEAN,
+        Err(message) => {
+            console.error(&message);
             EXIT_FAILURE
         }
     }
