@@ -4,8 +4,7 @@
 
 use super::cli::GlobalArgs;
 use super::{Console, Environment, EXIT_FAILURE};
-use notify_debouncer_mini::notify::RecursiveMode;
-use notify_debouncer_mini::{new_debouncer, DebouncedEvent};
+use notify::{Event, EventKind, RecursiveMode, Watcher};
 use std::path::{Path, PathBuf};
 use std::sync::mpsc;
 use std::time::Duration;
@@ -20,8 +19,8 @@ pub(super) fn run(
     console: &mut Console<'_>,
 ) -> u8 {
     let (sender, receiver) = mpsc::channel();
-    let mut debouncer = match new_debouncer(QUIET, sender) {
-        Ok(d) => d,
+    let mut watcher = match notify::recommended_watcher(sender) {
+        Ok(w) => w,
         Err(e) => {
             console.error(&format!("cannot watch for changes: {e}"));
             return EXIT_FAILURE;
@@ -39,27 +38,29 @@ pub(super) fn run(
                 .unwrap_or(Path::new("."));
             (folder.to_path_buf(), RecursiveMode::NonRecursive)
         };
-        if let Err(e) = debouncer.watcher().watch(&target, mode) {
+        if let Err(e) = watcher.watch(&target, mode) {
             console.error(&format!("cannot watch {}: {e}", target.display()));
             return EXIT_FAILURE;
         }
     }
     super::check(paths, global, env, console);
     console.print("kickback: watching for changes (Ctrl-C stops)\n");
-    while let Ok(batch) = receiver.recv() {
-        let events = match batch {
-            Ok(events) => events,
-            Err(e) => {
-                console.error(&format!("watching stopped: {e}"));
-                return EXIT_FAILURE;
+    while let Ok(first) = receiver.recv() {
+        // A save is a burst of events: gather them until the files are quiet.
+        let mut events = vec![first];
+        while let Ok(more) = receiver.recv_timeout(QUIET) {
+            events.push(more);
+        }
+        let mut changed = Vec::new();
+        for event in events {
+            match event {
+                Ok(event) => changed.extend(changed_names(&event)),
+                Err(e) => {
+                    console.error(&format!("watching stopped: {e}"));
+                    return EXIT_FAILURE;
+                }
             }
-        };
-        let mut changed: Vec<String> = events
-            .iter()
-            .filter(|e| counts(e))
-            .filter_map(|e| e.path.file_name())
-            .map(|n| n.to_string_lossy().to_string())
-            .collect();
+        }
         changed.sort();
         changed.dedup();
         if changed.is_empty() {
@@ -75,16 +76,35 @@ pub(super) fn run(
     EXIT_FAILURE
 }
 
-/// Editor back-ups, swap files and hidden folders (`.git`) are not the user's netlists.
-fn counts(event: &DebouncedEvent) -> bool {
-    let hidden = event.path.components().any(|c| {
-        let part = c.as_os_str().to_string_lossy();
-        part.starts_with('.') && part != "." && part != ".."
-    });
-    let name = event
-        .path
+/// The names of the files an event changed: writes, new files, renames and removals (reading
+/// a file, as the check itself does, is no change).
+fn changed_names(event: &Event) -> Vec<String> {
+    if !matches!(
+        event.kind,
+        EventKind::Modify(_) | EventKind::Create(_) | EventKind::Remove(_)
+    ) {
+        return Vec::new();
+    }
+    event
+        .paths
+        .iter()
+        .filter(|p| counts(p))
+        .filter_map(|p| p.file_name())
+        .map(|n| n.to_string_lossy().to_string())
+        .collect()
+}
+
+/// Editor back-ups, swap files, hidden files and the version-control folder are not the
+/// user's netlists.
+fn counts(path: &Path) -> bool {
+    let in_git = path.components().any(|c| c.as_os_str() == ".git");
+    let name = path
         .file_name()
         .map(|n| n.to_string_lossy().to_string())
         .unwrap_or_default();
-    !hidden && !name.ends_with('~') && !name.ends_with(".swp") && !name.is_empty()
+    !in_git
+        && !name.is_empty()
+        && !name.starts_with('.')
+        && !name.ends_with('~')
+        && !name.ends_with(".swp")
 }

@@ -66,7 +66,10 @@ pub fn serve_stdio(options: ServerOptions) -> Result<(), String> {
     let (connection, io_threads) = Connection::stdio();
     serve(&connection, options)?;
     drop(connection);
-    io_threads.join().map_err(|e| e.to_string())
+    // After `exit` the editor may close its end before the last write is flushed: the
+    // session is over either way.
+    let _ = io_threads.join();
+    Ok(())
 }
 
 /// Serves on a connection: the handshake, then messages until `exit`.
