@@ -353,6 +353,9 @@ pub fn symbols(checked: &BufferCheck) -> Vec<DocumentSymbol> {
 
 /// The code actions for the findings on the lines of `lines` (0-based, inclusive): each fix
 /// the rule computed, and a waiver comment for the finding's rule.
+// `WorkspaceEdit` keys its changes by `Uri`, whose parsed form clippy takes for mutable; the
+// keys are never changed once inserted.
+#[allow(clippy::mutable_key_type)]
 pub fn code_actions(
     checked: &BufferCheck,
     lines: (u32, u32),
