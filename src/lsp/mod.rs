@@ -140,11 +140,9 @@ impl Server<'_> {
             match message {
                 None => self.check_due(),
                 Some(Message::Request(request)) => {
-                    if self
-                        .connection
-                        .handle_shutdown(&request)
-                        .map_err(|e| e.to_string())?
-                    {
+                    // An error here means the editor asked to shut down and then went away
+                    // without `exit`: the session is over all the same.
+                    if self.connection.handle_shutdown(&request).unwrap_or(true) {
                         return Ok(());
                     }
                     self.check_due_now();
