@@ -495,3 +495,50 @@ fn an_unsaved_buffer_reads_its_includes_from_disk() {
     assert_eq!(client.diagnostics(&uri, None), Vec::<Value>::new());
     client.stop();
 }
+
+#[test]
+fn a_subcircuit_line_shows_each_instance_and_its_name_leads_to_the_definition() {
+    let path = Path::new(env!("CARGO_MANIFEST_DIR")).join("testdata/lsp/nested.cir");
+    let uri = url_of(&path);
+    let text = std::fs::read_to_string(&path).unwrap();
+    let mut client = Client::start(0);
+    let diagnostics = client.open(&uri, &text);
+    // One finding per instance, both on the definition's line (as `kickback check` gives).
+    assert_eq!(
+        codes(&diagnostics),
+        ["resistor-overpower", "resistor-overpower"]
+    );
+    let rl = line_of(&text, "RL ");
+    assert!(diagnostics.iter().all(|d| d["range"]["start"] == at(rl, 0)));
+    let answer = client.request(
+        "textDocument/hover",
+        json!({"textDocument": {"uri": uri}, "position": at(line_of(&text, "M1 "), 0)}),
+    );
+    let hover = answer["result"]["contents"]["value"].as_str().unwrap();
+    // The report's rows for each instance (V_GS 10 V: the pulse's high level).
+    assert!(hover.contains("Switch X1.M1 (nmos, low side)"), "{hover}");
+    assert!(hover.contains("Switch X2.M1 (nmos, low side)"), "{hover}");
+    assert!(hover.contains("vgs_on         10 V … 10 V"), "{hover}");
+    let x2 = line_of(&text, "X2 ");
+    let character = text.lines().nth(x2).unwrap().find("CHAN").unwrap();
+    let answer = client.request(
+        "textDocument/definition",
+        json!({"textDocument": {"uri": uri}, "position": at(x2, character)}),
+    );
+    assert_eq!(
+        answer["result"]["range"]["start"],
+        at(line_of(&text, ".subckt CHAN"), 0)
+    );
+    let symbols = client.request(
+        "textDocument/documentSymbol",
+        json!({"textDocument": {"uri": uri}}),
+    );
+    let names: Vec<&str> = symbols["result"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .map(|s| s["name"].as_str().unwrap())
+        .collect();
+    assert_eq!(names, ["CHAN", "M1"], "a line placed twice is one symbol");
+    client.stop();
+}
