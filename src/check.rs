@@ -184,13 +184,94 @@ fn check_file_unguarded(path: &Path, options: &CheckOptions) -> FileReport {
     finish(report, &flat, findings, &config)
 }
 
+/// What an editor needs of one checked buffer: the findings, and the facts behind them
+/// (`None` when the buffer could not be loaded or its configuration not read).
+#[derive(Debug)]
+pub struct BufferCheck {
+    pub report: FileReport,
+    pub facts: Option<BufferFacts>,
+}
+
+/// The netlist, graph and analysis the findings of a [`BufferCheck`] came from.
+#[derive(Debug)]
+pub struct BufferFacts {
+    pub netlist: FlatNetlist,
+    pub circuit: Circuit,
+    pub analysis: Analysis,
+}
+
+/// Checks a netlist whose text is given (an editor's unsaved buffer) as if it were the file at
+/// `path`: its `kickback.toml` is looked for beside `path` and its includes are read from disk.
+/// Keeps the facts for hovers; guarded like [`check_file`].
+pub fn check_buffer(path: &Path, text: &str, options: &CheckOptions) -> BufferCheck {
+    panic::catch_unwind(AssertUnwindSafe(|| {
+        check_buffer_unguarded(path, text, options)
+    }))
+    .unwrap_or_else(|payload| {
+        let mut report = empty_report(path);
+        report.failure = Some(CheckError::Internal {
+            path: path.to_path_buf(),
+            message: panic_message(payload.as_ref()),
+        });
+        BufferCheck {
+            report,
+            facts: None,
+        }
+    })
+}
+
+fn check_buffer_unguarded(path: &Path, text: &str, options: &CheckOptions) -> BufferCheck {
+    let mut report = empty_report(path);
+    let config = match load_config(path, options) {
+        Ok(c) => c,
+        Err(e) => {
+            report.failure = Some(e.into());
+            return BufferCheck {
+                report,
+                facts: None,
+            };
+        }
+    };
+    let keep = |name: &str| parts::keeps_whole(name, &config);
+    let loaded = netlist::load_text(path, text, &mut report.sources, &options.limits, &keep);
+    let (flat, findings) = match loaded {
+        Ok(x) => x,
+        Err(e) => {
+            report.failure = Some(e.into());
+            return BufferCheck {
+                report,
+                facts: None,
+            };
+        }
+    };
+    let (report, circuit, analysis) = finish_with_facts(report, &flat, findings, &config);
+    BufferCheck {
+        report,
+        facts: Some(BufferFacts {
+            netlist: flat,
+            circuit,
+            analysis,
+        }),
+    }
+}
+
 /// Circuit, analysis, rules and suppressions on a loaded netlist.
 fn finish(
+    report: FileReport,
+    flat: &FlatNetlist,
+    findings: Vec<Finding>,
+    config: &Config,
+) -> FileReport {
+    finish_with_facts(report, flat, findings, config).0
+}
+
+/// As [`finish`], keeping the graph and the facts.
+fn finish_with_facts(
     mut report: FileReport,
     flat: &FlatNetlist,
     mut findings: Vec<Finding>,
     config: &Config,
-) -> FileReport {
+) -> (FileReport, Circuit, Analysis) {
     fault::inject(&report.path);
     let (circuit, circuit_findings) = Circuit::build(flat, config);
     findings.extend(circuit_findings);
@@ -210,7 +291,7 @@ fn finish(
     findings.dedup();
     report.findings = findings;
     report.suppressed = outcome.suppressed;
-    report
+    (report, circuit, facts)
 }
 
 /// Runs `work` for the file at `path`; a panic becomes [`CheckError::Internal`].

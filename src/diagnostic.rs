@@ -144,6 +144,21 @@ pub struct InstanceStep {
     pub span: Span,
 }
 
+/// One text edit of a fix: the text in `span` (empty: a place to insert at) becomes `text`.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Edit {
+    pub span: Span,
+    pub text: String,
+}
+
+/// A fix the rule computed, as edits to the netlist: applying them and checking again no
+/// longer gives the finding. `title` says what it does (`set RBV to 47 Ω`).
+#[derive(Clone, Debug, PartialEq)]
+pub struct Fix {
+    pub title: String,
+    pub edits: Vec<Edit>,
+}
+
 #[derive(Clone, Debug, PartialEq)]
 pub struct Finding {
     /// Stable kebab-case rule ID (`flyback-missing`, `syntax`...).
@@ -164,6 +179,9 @@ pub struct Finding {
     /// The severest level the verdict keeps over the whole plausible range of its assumed
     /// numbers (`None`: it keeps none, and becomes a note).
     pub holds_at: Option<Severity>,
+    /// The fixes that can be applied as they stand (an editor offers them); most fixes are
+    /// only words in `help`.
+    pub fixes: Vec<Fix>,
 }
 
 impl Finding {
@@ -199,7 +217,14 @@ impl Finding {
             help: None,
             values: Vec::new(),
             holds_at: None,
+            fixes: Vec::new(),
         }
+    }
+
+    /// Adds a fix that can be applied as edits (see [`Fix`]).
+    pub fn with_fix(mut self, fix: Option<Fix>) -> Self {
+        self.fixes.extend(fix);
+        self
     }
 
     pub fn with_element(mut self, local: impl Into<String>, path: Option<String>) -> Self {

@@ -11,6 +11,7 @@ pub mod check;
 pub mod circuit;
 pub mod config;
 pub mod diagnostic;
+pub mod lsp;
 pub mod netlist;
 pub mod outcome;
 pub mod report;

@@ -39,6 +39,8 @@ const STAGES: &[(&str, Option<&[&str]>)] = &[
             "outcome",
         ]),
     ),
+    // The editor's front: reads the checked buffer's findings and facts, like `report`.
+    ("lsp", None),
     ("app", None),
 ];
 

@@ -31,6 +31,7 @@ pub fn el(path: &str, nodes: &str) -> El {
         model_index: None,
         value: None,
         value_text: None,
+        value_span: None,
         params: Vec::new(),
         source: None,
         refs: Vec::new(),

@@ -76,6 +76,7 @@ fn floor_of_the_output_types() {
             model_index: None,
             value: Some(Num::Known(4.7e3)),
             value_text: Some("4.7k".to_string()),
+            value_span: None,
             params: Vec::new(),
             source: None,
             refs: Vec::new(),

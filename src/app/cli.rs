@@ -100,6 +100,10 @@ pub enum Command {
         /// Cards format: before the summary, count the findings by rule and by file.
         #[arg(long)]
         counts: bool,
+        /// Keep running: check again whenever a netlist, an included file or kickback.toml
+        /// under PATHS is saved (Ctrl-C stops).
+        #[arg(long)]
+        watch: bool,
     },
     /// Write a baseline file of today's errors and warnings, for `check --baseline`: a design
     /// adopted with known faults then fails only on new ones.
@@ -132,6 +136,13 @@ pub enum Command {
         /// Folder to write it in (default: the current folder).
         #[arg(long, value_name = "DIR")]
         path: Option<PathBuf>,
+    },
+    /// Serve an editor over the Language Server Protocol on stdin and stdout: findings as
+    /// diagnostics while you type, the numbers on hover, fixes as code actions.
+    Lsp {
+        /// Milliseconds a buffer must be quiet after a change before it is checked again.
+        #[arg(long, value_name = "MS", default_value_t = 30)]
+        debounce_ms: u64,
     },
     /// Print a shell completion script.
     Completions {

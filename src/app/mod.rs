@@ -10,6 +10,7 @@ pub mod cli;
 pub mod discover;
 pub mod init;
 pub mod terminal;
+mod watch;
 
 use crate::check::{check_file, CheckError, CheckOptions, FileReport};
 use crate::config::{Config, RuleLevel};
@@ -33,14 +34,15 @@ pub const EXIT_FAILURE: u8 = 2;
 pub fn main() -> u8 {
     install_quiet_panic_hook();
     let env = Environment::from_process();
-    let stdout = io::stdout();
     let stderr = io::stderr();
+    // Streams are locked per write, not for the whole run: `kickback lsp` writes to stdout
+    // from the protocol's own writer thread.
     let outcome = std::panic::catch_unwind(|| {
         run(
             std::env::args_os(),
             &env,
-            &mut stdout.lock(),
-            &mut stderr.lock(),
+            &mut io::stdout(),
+            &mut io::stderr(),
         )
     });
     outcome.unwrap_or_else(|payload| {
@@ -85,6 +87,7 @@ where
             baseline,
             name,
             counts,
+            watch,
         } => {
             let run = CheckRun {
                 baseline: baseline.as_deref(),
@@ -92,7 +95,11 @@ where
                 write_baseline: None,
                 counts: *counts,
             };
-            check(paths, &run, &cli.global, env, &mut console)
+            if *watch {
+                watch::run(paths, &run, &cli.global, env, &mut console)
+            } else {
+                check(paths, &run, &cli.global, env, &mut console)
+            }
         }
         Command::Baseline { paths, out } => {
             let run = CheckRun {
@@ -103,6 +110,7 @@ where
             };
             check(paths, &run, &cli.global, env, &mut console)
         }
+        Command::Lsp { debounce_ms } => lsp(*debounce_ms, &cli.global, &mut console),
         Command::Report { file } => report_command(file, &cli.global, &mut console),
         Command::Rules => rules_command(&cli.global, &mut console),
         Command::Explain { rule } => explain(rule, &mut console),
@@ -692,6 +700,20 @@ fn report_command(file: &Path, global: &GlobalArgs, console: &mut Console<'_>) -
         }
         Err(e) => {
             console.error(&format!("cannot report on {}: {e}", file.display()));
+            EXIT_FAILURE
+        }
+    }
+}
+
+fn lsp(debounce_ms: u64, global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
+    let options = crate::lsp::ServerOptions {
+        check: check_options(global),
+        debounce: std::time::Duration::from_millis(debounce_ms.min(10_000)),
+    };
+    match crate::lsp::serve_stdio(options) {
+        Ok(()) => EXIT_CLEAN,
+        Err(message) => {
+            console.error(&message);
             EXIT_FAILURE
         }
     }

@@ -164,6 +164,8 @@ pub struct FlatElement {
     pub value: Option<Num>,
     /// The primary value's text as written (`1M`, `{rt}`, `10uF`), for messages about unit slips.
     pub value_text: Option<String>,
+    /// Where the primary value is written on the element's line, for a fix that sets it.
+    pub value_span: Option<Span>,
     /// Instance parameters (`m=2`, `rser=0.1`, `rated_voltage=6`...), lower-case keys,
     /// evaluated. For kept subcircuits: the instance's parameters over the definition's defaults.
     pub params: Vec<(String, Num)>,
@@ -246,6 +248,8 @@ pub struct FlatNetlist {
     pub missing_includes: Vec<MissingInclude>,
     /// Names of subcircuits the deck defines (for model-missing).
     pub subckt_names: Vec<String>,
+    /// Each subcircuit definition's name and the span of its `.subckt` line, in deck order.
+    pub subckt_definitions: Vec<(String, Span)>,
     /// The file holds only definitions (`.subckt`, `.model`, `.param`, `.lib` sections): a
     /// library checked on its own. It has no title, no top-level circuit, and its subcircuits
     /// were checked as definitions (their lines for syntax) rather than flattened; rules about

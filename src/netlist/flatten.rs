@@ -458,6 +458,7 @@ impl<'d, 'a> Flattener<'d, 'a> {
             model_index,
             value,
             value_text: parsed.value.as_ref().map(|v| v.written.to_string()),
+            value_span: parsed.value.as_ref().map(|v| v.span),
             params,
             source,
             refs: parsed.refs.iter().map(|r| self.scoped(inst, r)).collect(),

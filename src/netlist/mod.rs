@@ -161,6 +161,44 @@ pub fn load(
     run(sources, id, Some(origin), limits, keep_whole)
 }
 
+/// As [`load`], with the top file's text given (an editor's unsaved buffer) rather than read:
+/// includes are resolved from `path`'s folder and read from disk, under the same limits.
+pub fn load_text(
+    path: &Path,
+    text: &str,
+    sources: &mut SourceMap,
+    limits: &Limits,
+    keep_whole: KeepWhole<'_>,
+) -> Result<(FlatNetlist, Vec<Finding>), LoadError> {
+    if text.len() as u64 > limits.max_file_bytes {
+        return Err(LoadError::TooLarge {
+            path: path.to_path_buf(),
+            size: text.len() as u64,
+            limit: limits.max_file_bytes,
+        });
+    }
+    // A buffer never saved has no file yet: its folder still decides what it may include.
+    let canonical = std::fs::canonicalize(path).unwrap_or_else(|_| {
+        let folder = path
+            .parent()
+            .filter(|p| !p.as_os_str().is_empty())
+            .unwrap_or(Path::new("."));
+        let folder = std::fs::canonicalize(folder).unwrap_or_else(|_| folder.to_path_buf());
+        folder.join(path.file_name().unwrap_or_default())
+    });
+    let root = canonical
+        .parent()
+        .map(Path::to_path_buf)
+        .unwrap_or_else(|| canonical.clone());
+    let id = sources.add(
+        path.to_path_buf(),
+        path.display().to_string(),
+        text.to_string(),
+    );
+    let origin = load::Origin { canonical, root };
+    run(sources, id, Some(origin), limits, keep_whole)
+}
+
 /// Parses netlist text without reading any file (includes are recorded as missing), with the
 /// caller's limits and part knowledge; a blown limit is an error as in [`load`].
 pub fn parse_text(
@@ -316,6 +354,13 @@ fn run(
             .skip(1)
             .map(|d| d.name.to_string())
             .filter(|n| !n.is_empty())
+            .collect(),
+        subckt_definitions: deck
+            .defs
+            .iter()
+            .skip(1)
+            .filter(|d| !d.name.is_empty())
+            .filter_map(|d| Some((d.name.to_string(), d.header?)))
             .collect(),
     };
     Ok((flat, findings))

@@ -6,7 +6,7 @@
 //! produced each extreme; a rated number is `{"value", "source"}`; unknown numbers are `null`.
 //! Every list is in netlist order.
 
-pub use super::facts_table::{render_human, render_human_with};
+pub use super::facts_table::{render_device, render_human, render_human_with};
 use crate::analysis::{Analysis, EffectiveMethod, Range, Side, Stage, SupplyFacts, TimerMode};
 use crate::circuit::{Circuit, DeviceId, Kind};
 use crate::netlist::FlatNetlist;

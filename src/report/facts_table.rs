@@ -3,8 +3,8 @@
 use super::facts::{name, sorted};
 use super::format_quantity;
 use crate::analysis::{
-    Analysis, EffectiveMethod, Freewheel, FreewheelKind, LoadFacts, Range, Side, SwitchFacts,
-    TimerFacts, TimerMode,
+    Analysis, CapacitorFacts, EffectiveMethod, Freewheel, FreewheelKind, LoadFacts, Range,
+    ResistorFacts, Side, SupplyFacts, SwitchFacts, TimerFacts, TimerMode,
 };
 use crate::circuit::{Circuit, DeviceId, Kind, Rated};
 use crate::netlist::FlatNetlist;
@@ -45,6 +45,48 @@ pub fn render_human_with(
         out.push_str("no supplies, timers, switches or loads found\n");
     }
     out
+}
+
+/// The facts of one device as `kickback report` prints them, for an editor's hover: its
+/// supply, timer, switch or load table, a resistor's dissipation, a capacitor's voltage.
+/// `None` when the analyses hold nothing about it.
+pub fn render_device(
+    analysis: &Analysis,
+    netlist: &FlatNetlist,
+    circuit: &Circuit,
+    device: DeviceId,
+) -> Option<String> {
+    let table = Table {
+        netlist,
+        circuit,
+        ascii: false,
+    };
+    let mut out = String::new();
+    for s in analysis.supplies.iter().filter(|s| s.device == device) {
+        out.push_str("Supply\n");
+        table.supply(&mut out, s);
+        out.push('\n');
+    }
+    for t in analysis.timers.iter().filter(|t| t.device == device) {
+        table.timer(&mut out, t);
+    }
+    for s in analysis.switches.iter().filter(|s| s.device == device) {
+        table.switch(&mut out, analysis, s);
+    }
+    for l in analysis.loads.iter().filter(|l| l.device == device) {
+        table.load(&mut out, l);
+    }
+    for r in analysis.resistors.iter().filter(|r| r.device == device) {
+        out.push_str("Resistor (dissipation)\n");
+        table.resistor(&mut out, r);
+        out.push('\n');
+    }
+    for c in analysis.capacitors.iter().filter(|c| c.device == device) {
+        out.push_str("Capacitor (voltage, + to − in node order)\n");
+        table.capacitor(&mut out, c);
+        out.push('\n');
+    }
+    (!out.is_empty()).then_some(out)
 }
 
 struct Table<'a> {
@@ -142,19 +184,23 @@ impl Table<'_> {
         }
         out.push_str("Supplies\n");
         for s in sorted(&analysis.supplies, |s| s.device) {
-            let value = if s.min == s.max {
-                self.q(s.nominal, "V")
-            } else {
-                format!(
-                    "{} ({} … {})",
-                    self.q(s.nominal, "V"),
-                    self.q(s.min, "V"),
-                    self.q(s.max, "V")
-                )
-            };
-            self.row(out, &self.name(s.device), &value, &s.source);
+            self.supply(out, s);
         }
         out.push('\n');
+    }
+
+    fn supply(&self, out: &mut String, s: &SupplyFacts) {
+        let value = if s.min == s.max {
+            self.q(s.nominal, "V")
+        } else {
+            format!(
+                "{} ({} … {})",
+                self.q(s.nominal, "V"),
+                self.q(s.min, "V"),
+                self.q(s.max, "V")
+            )
+        };
+        self.row(out, &self.name(s.device), &value, &s.source);
     }
 
     fn timer(&self, out: &mut String, t: &TimerFacts) {
@@ -455,6 +501,13 @@ impl Table<'_> {
         }
         out.push_str("Resistors and pots (dissipation)\n");
         for r in sorted(&analysis.resistors, |r| r.device) {
+            self.resistor(out, r);
+        }
+        out.push('\n');
+    }
+
+    fn resistor(&self, out: &mut String, r: &ResistorFacts) {
+        {
             let note = self.rating_note(r.device, "power_rating", "W");
             self.range(
                 out,
@@ -478,7 +531,6 @@ impl Table<'_> {
                 self.range(out, "  wiper", &Some(wiper.clone()), "A", &note);
             }
         }
-        out.push('\n');
     }
 
     /// One row per capacitor: the voltage across it over states.
@@ -488,16 +540,20 @@ impl Table<'_> {
         }
         out.push_str("Capacitors (voltage, + to − in node order)\n");
         for c in sorted(&analysis.capacitors, |c| c.device) {
-            let note = self.rating_note(c.device, "voltage_rating", "V");
-            self.range(
-                out,
-                &self.name(c.device),
-                &Some(c.voltage_v.clone()),
-                "V",
-                &note,
-            );
+            self.capacitor(out, c);
         }
         out.push('\n');
+    }
+
+    fn capacitor(&self, out: &mut String, c: &CapacitorFacts) {
+        let note = self.rating_note(c.device, "voltage_rating", "V");
+        self.range(
+            out,
+            &self.name(c.device),
+            &Some(c.voltage_v.clone()),
+            "V",
+            &note,
+        );
     }
 
     fn names(&self, devices: &[DeviceId]) -> String {

@@ -1,10 +1,11 @@
 //! `base-underdrive`: a BJT switch gets too little base current to saturate at its load
 //! current and runs in its active region. See `rules/base-underdrive.md`.
 
+use super::edits;
 use super::eseries::{ohms, round_down, E12};
 use super::switch_util::{
-    drive_level, finding_at, held_off, is_switch, kind, label, load_device, load_of, name, rated,
-    saturated_current, shorted_through, weakest_magnitude,
+    drive_level, element, finding_at, held_off, is_switch, kind, label, load_device, load_of, name,
+    rated, saturated_current, shorted_through, weakest_magnitude,
 };
 use super::units::format_si;
 use super::Rule;
@@ -172,7 +173,12 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
             &format!("draws {} when {q} is saturated", format_si(ic, "A")),
         );
     }
-    f = f.with_help(help(cx, sw, &q, resistor, need));
+    let (text, value) = help(cx, sw, &q, resistor, need);
+    f = f.with_help(text);
+    if let (Some(r), Some(v)) = (resistor, value) {
+        let title = format!("set {} to {} (E12)", name(cx, r), ohms(v));
+        f = f.with_fix(element(cx, r).and_then(|e| edits::set_value(e, v, title)));
+    }
     f = f
         .with_value("base_current", ib, "A", "computed")
         .with_value("collector_current", ic, "A", "computed")
@@ -192,7 +198,7 @@ fn help(
     q: &str,
     resistor: Option<DeviceId>,
     need: f64,
-) -> String {
+) -> (String, Option<f64>) {
     let driver = sw.driver.as_ref().map(|d| d.device);
     let level = driver.and_then(|d| drive_level(cx, d));
     let vbe = sw
@@ -202,11 +208,13 @@ fn help(
         .filter(|v| *v > 0.3 && *v < 1.5)
         .unwrap_or(VBE_ON_V);
     let limit = driver.and_then(|d| rated(cx, d, "out_current_max"));
+    let mut value = None;
     let mut text = match level.as_ref().filter(|l| l.high > vbe) {
         Some(l) => {
             let r = (l.high - vbe) / need;
             match round_down(r, &E12) {
                 Some(e12) => {
+                    value = Some(e12);
                     let what = resistor.map_or_else(
                         || format!("put a base resistor of {}", ohms(e12)),
                         |r| format!("set {} to {}", name(cx, r), ohms(e12)),
@@ -233,6 +241,7 @@ fn help(
              MOSFET instead, or a Darlington",
             format_si(max.value, "A")
         ));
+        value = None;
     }
-    text
+    (text, value)
 }

@@ -1,9 +1,10 @@
 //! `flyback-missing`: an inductive load is switched with no freewheeling path. See
 //! `rules/flyback-missing.md`.
 
+use super::edits;
 use super::switch_util::{
-    branch_ends, diode_hint, finding_at, is_pwm, is_switch, kind, label, load_device, load_of,
-    main_terminals, name, net_name, rail, saturated_current, NetIndex,
+    branch_ends, diode_choice, diode_hint, element, finding_at, is_pwm, is_switch, kind, label,
+    load_device, load_of, main_terminals, name, net_name, rail, saturated_current, NetIndex,
 };
 use super::units::format_si;
 use super::Rule;
@@ -177,6 +178,7 @@ fn finding(
         current,
         &across_switch,
     ));
+    f = f.with_fix(diode_fix(cx, sw, load, ends, rail.as_ref(), current));
     if let Some(l) = &inductance {
         f = f.with_value("inductance", l.value, "H", l.source.clone());
     }
@@ -190,6 +192,37 @@ fn finding(
         f = f.with_value("rail_voltage", r.v.max, "V", "computed");
     }
     Some(f)
+}
+
+/// The diode the help names, as a line added before the load's: across the load with the
+/// orientation the help states, of the part the help names. Only for a load at top level
+/// with one switch side and a part that fits.
+fn diode_fix(
+    cx: &RuleContext<'_>,
+    sw: &SwitchFacts,
+    load: DeviceId,
+    ends: Option<super::switch_util::BranchEnds>,
+    rail: Option<&super::switch_util::Rail>,
+    current: Option<&Range>,
+) -> Option<crate::diagnostic::Fix> {
+    let ends = ends?;
+    let rail_v = rail.map(|r| r.v.max).filter(|v| *v > 0.0)?;
+    let amps = current.map(|i| i.max).filter(|a| *a > 0.0)?;
+    let (part, _, _) = diode_choice(2.0 * rail_v, amps, is_pwm(sw))?;
+    let (anode, cathode) = match sw.side {
+        Side::Low => (ends.switched, ends.far),
+        Side::High => (ends.far, ends.switched),
+        Side::Bridge => return None,
+    };
+    let load_element = element(cx, load)?;
+    let diode = edits::unused_name(cx, &format!("DFW_{}", load_element.name));
+    let line = format!(
+        "{diode} {} {} {part}",
+        net_name(cx, anode),
+        net_name(cx, cathode)
+    );
+    let title = format!("add {diode} ({part}) across {}", load_element.name);
+    edits::add_line_before(load_element, line, title)
 }
 
 fn help(

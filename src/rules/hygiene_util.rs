@@ -598,6 +598,7 @@ pub mod testkit {
                 model_index: None,
                 value: None,
                 value_text: None,
+                value_span: None,
                 params: Vec::new(),
                 source: None,
                 refs: Vec::new(),

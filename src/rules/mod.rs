@@ -155,6 +155,7 @@ pub fn run(cx: &RuleContext<'_>) -> Vec<Finding> {
 }
 
 pub mod assumed;
+pub mod edits;
 pub mod eseries;
 pub mod front_end;
 pub mod hygiene_util;

@@ -33,6 +33,7 @@ impl Board {
             model_index: None,
             value: None,
             value_text: None,
+            value_span: None,
             params: Vec::new(),
             source: None,
             refs: Vec::new(),

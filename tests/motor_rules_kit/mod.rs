@@ -104,6 +104,7 @@ impl Kit {
             model_index: None,
             value: value.map(kickback::netlist::Num::Known),
             value_text: None,
+            value_span: None,
             params: Vec::new(),
             source: None,
             refs: Vec::new(),

@@ -27,6 +27,7 @@ fn element(name: &str, nodes: &[&str]) -> FlatElement {
         model_index: None,
         value: None,
         value_text: None,
+        value_span: None,
         params: Vec::new(),
         source: None,
         refs: Vec::new(),

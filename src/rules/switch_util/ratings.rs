@@ -38,6 +38,31 @@ pub fn diode_hint(v_rev: f64, amps: f64, fast: bool) -> String {
             format_si(v_rev, "V")
         )
     };
+    if fast {
+        match diode_choice(v_rev, amps, true) {
+            Some((n, v, a)) => format!(
+                "a Schottky {need}, e.g. a {n} ({}, {})",
+                format_si(v, "V"),
+                format_si(a, "A")
+            ),
+            None if v_rev <= 100.0 => format!("a Schottky {need}"),
+            None => format!("an ultrafast-recovery diode {need}"),
+        }
+    } else {
+        match diode_choice(v_rev, amps, false) {
+            Some((n, v, a)) => format!(
+                "a rectifier {need}, e.g. a {n} ({}, {})",
+                format_si(v, "V"),
+                format_si(a, "A")
+            ),
+            None => format!("a rectifier {need}"),
+        }
+    }
+}
+
+/// The registered part [`diode_hint`] names for a diode rated for `v_rev` reverse and `amps`:
+/// its number, reverse voltage and current rating (`None` when no listed part fits).
+pub fn diode_choice(v_rev: f64, amps: f64, fast: bool) -> Option<(&'static str, f64, f64)> {
     let schottky_1a = [("1N5817", 20.0), ("1N5818", 30.0), ("1N5819", 40.0)];
     let rectifier_1a = [
         ("1N4001", 50.0),
@@ -58,23 +83,8 @@ pub fn diode_hint(v_rev: f64, amps: f64, fast: bool) -> String {
             .map(|(n, v)| (*n, *v, amps_rated))
     };
     if fast {
-        match pick(&schottky_1a, 1.0) {
-            Some((n, v, a)) => format!(
-                "a Schottky {need}, e.g. a {n} ({}, {})",
-                format_si(v, "V"),
-                format_si(a, "A")
-            ),
-            None if v_rev <= 100.0 => format!("a Schottky {need}"),
-            None => format!("an ultrafast-recovery diode {need}"),
-        }
+        pick(&schottky_1a, 1.0)
     } else {
-        match pick(&rectifier_1a, 1.0).or_else(|| pick(&rectifier_3a, 3.0)) {
-            Some((n, v, a)) => format!(
-                "a rectifier {need}, e.g. a {n} ({}, {})",
-                format_si(v, "V"),
-                format_si(a, "A")
-            ),
-            None => format!("a rectifier {need}"),
-        }
+        pick(&rectifier_1a, 1.0).or_else(|| pick(&rectifier_3a, 3.0))
     }
 }
