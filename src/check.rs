@@ -152,13 +152,61 @@ fn check_file_unguarded(path: &Path, options: &CheckOptions) -> FileReport {
     finish(report, &flat, findings, &config)
 }
 
+/// Everything a review page shows of one netlist: the checked file (findings after
+/// suppressions), the graph, the facts and the waveforms sampled from them.
+#[derive(Debug)]
+pub struct Reviewed {
+    pub report: FileReport,
+    pub netlist: FlatNetlist,
+    pub circuit: Circuit,
+    pub analysis: Analysis,
+    pub waveforms: analysis::Waveforms,
+}
+
+/// Checks one netlist and keeps its graph and facts, with the waveforms for a review page
+/// (`kickback report --format html|markdown`). A netlist or configuration that cannot be read
+/// is an error; a panic becomes [`CheckError::Internal`], as in [`check_file`].
+pub fn review_file(path: &Path, options: &CheckOptions) -> Result<Reviewed, CheckError> {
+    panic::catch_unwind(AssertUnwindSafe(|| {
+        let config = load_config(path, options)?;
+        let mut report = empty_report(path);
+        let keep = |name: &str| parts::keeps_whole(name, &config);
+        let (flat, findings) = netlist::load(path, &mut report.sources, &options.limits, &keep)?;
+        let (report, circuit, facts) = finish_keeping(report, &flat, findings, &config);
+        let waveforms = analysis::waveform::sample(&flat, &circuit, &config, &facts);
+        Ok(Reviewed {
+            report,
+            netlist: flat,
+            circuit,
+            analysis: facts,
+            waveforms,
+        })
+    }))
+    .unwrap_or_else(|payload| {
+        Err(CheckError::Internal {
+            path: path.to_path_buf(),
+            message: panic_message(payload.as_ref()),
+        })
+    })
+}
+
 /// Circuit, analysis, rules and suppressions on a loaded netlist.
 fn finish(
+    report: FileReport,
+    flat: &FlatNetlist,
+    findings: Vec<Finding>,
+    config: &Config,
+) -> FileReport {
+    finish_keeping(report, flat, findings, config).0
+}
+
+/// As [`finish`], keeping the graph and the facts.
+fn finish_keeping(
     mut report: FileReport,
     flat: &FlatNetlist,
     mut findings: Vec<Finding>,
     config: &Config,
-) -> FileReport {
+) -> (FileReport, Circuit, Analysis) {
     fault::inject(&report.path);
     let (circuit, circuit_findings) = Circuit::build(flat, config);
     findings.extend(circuit_findings);
@@ -178,7 +226,7 @@ fn finish(
     findings.dedup();
     report.findings = findings;
     report.suppressed = outcome.suppressed;
-    report
+    (report, circuit, facts)
 }
 
 /// Runs `work` for the file at `path`; a panic becomes [`CheckError::Internal`].
