@@ -122,6 +122,9 @@ fn lane(intervals: &[(f64, f64)], span: f64, base: f64, scale: f64) -> Vec<(f64,
     out
 }
 
+/// A digital lane: its name, the intervals it is high, its dash pattern.
+type Lane<'a> = (&'a str, &'a [(f64, f64)], Option<(u32, u32)>);
+
 /// A timer's timing diagram: the capacitor voltage of every case between the thresholds,
 /// the computed times marked, and below it the output, discharge and trigger lanes.
 pub fn timer(w: &TimerWaveform, element: &str) -> (String, Vec<LegendEntry>) {
@@ -138,8 +141,8 @@ pub fn timer(w: &TimerWaveform, element: &str) -> (String, Vec<LegendEntry>) {
         .fold(w.upper_v, f64::max)
         .max(1e-3);
     let v_max = top * 1.3;
-    let lanes: Vec<(&str, &[(f64, f64)], Option<(u32, u32)>)> = {
-        let mut l: Vec<(&str, &[(f64, f64)], Option<(u32, u32)>)> = vec![
+    let lanes: Vec<Lane<'_>> = {
+        let mut l: Vec<Lane<'_>> = vec![
             ("output", &w.output_high, None),
             ("discharge", &w.discharge_on, Some((6, 3))),
         ];
@@ -300,7 +303,7 @@ pub fn switch(
     names: &dyn Fn(DeviceId) -> String,
 ) -> (String, Vec<LegendEntry>) {
     let mut legend = Vec::new();
-    if !(w.period_s.is_finite() && w.period_s > 0.0) || !finite(&w.gate.points) {
+    if !(w.period_s.is_finite() && w.period_s > 0.0 && finite(&w.gate.points)) {
         return (String::new(), legend);
     }
     let (scale, unit) = time_unit(w.period_s);

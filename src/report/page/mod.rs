@@ -19,6 +19,9 @@ use crate::netlist::FlatNetlist;
 use crate::outcome::FileReport;
 use askama::Template;
 
+/// The program's version, for the page's footer.
+pub const VERSION: &str = env!("CARGO_PKG_VERSION");
+
 /// What a review page shows of one netlist.
 pub struct Review<'a> {
     pub report: &'a FileReport,
@@ -68,6 +71,3 @@ mod tests {
         );
     }
 }
-
-/// The program's version, for the page's footer.
-pub const VERSION: &str = env!("CARGO_PKG_VERSION");
