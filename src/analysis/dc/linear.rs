@@ -8,10 +8,18 @@
 //! pivot, multipliers by the reciprocal of the pivot, unit lower triangle, column-oriented
 //! substitution), so solutions are the same to the last bit as before it was hand-written.
 
+use super::sparse::SparseSolver;
+
 /// After scaling every row and column to a largest entry of 1, a pivot below this marks its
 /// unknown as degenerate.
-const PIVOT_FLOOR: f64 = 1e-13;
+pub(crate) const PIVOT_FLOOR: f64 = 1e-13;
 
+/// Systems with more unknowns than this are stored and factored sparse ([`super::sparse`]).
+/// Below it the dense elimination is as fast and its results are the reference the tests hold
+/// to the last bit.
+pub(crate) const SPARSE_FROM: usize = 64;
+
+#[derive(Debug)]
 pub(crate) enum LinearFailure {
     /// Unknowns whose pivot vanished.
     Degenerate(Vec<usize>),
@@ -19,11 +27,13 @@ pub(crate) enum LinearFailure {
     NotFinite,
 }
 
-/// A square matrix stored row by row.
+/// A square matrix: stored row by row up to [`SPARSE_FROM`] unknowns, as a list of
+/// `(row, col, value)` entries (summed when factored) above it.
 #[derive(Clone, Debug, Default)]
 pub(crate) struct Matrix {
     n: usize,
     data: Vec<f64>,
+    entries: Vec<(u32, u32, f64)>,
 }
 
 impl Matrix {
@@ -31,7 +41,14 @@ impl Matrix {
     pub(crate) fn reset(&mut self, n: usize) {
         self.n = n;
         self.data.clear();
-        self.data.resize(n.saturating_mul(n), 0.0);
+        self.entries.clear();
+        if !Self::is_sparse(n) {
+            self.data.resize(n.saturating_mul(n), 0.0);
+        }
+    }
+
+    fn is_sparse(n: usize) -> bool {
+        n > SPARSE_FROM
     }
 
     /// An `n × n` matrix from its entries row by row (missing ones zero).
@@ -39,13 +56,40 @@ impl Matrix {
     pub(crate) fn from_rows(n: usize, rows: &[f64]) -> Self {
         let mut m = Self::default();
         m.reset(n);
+        if Self::is_sparse(n) {
+            for (i, &v) in rows.iter().enumerate().take(n * n) {
+                m.add(i / n, i % n, v);
+            }
+        }
         for (entry, &v) in m.data.iter_mut().zip(rows) {
             *entry = v;
         }
         m
     }
 
+    /// The summed entry at `(row, col)`.
+    #[cfg(test)]
+    pub(crate) fn entry(&self, row: usize, col: usize) -> f64 {
+        if Self::is_sparse(self.n) {
+            self.entries
+                .iter()
+                .filter(|e| e.0 as usize == row && e.1 as usize == col)
+                .map(|e| e.2)
+                .sum()
+        } else {
+            self.data.get(row * self.n + col).copied().unwrap_or(0.0)
+        }
+    }
+
     pub(crate) fn add(&mut self, row: usize, col: usize, value: f64) {
+        if Self::is_sparse(self.n) {
+            if row < self.n && col < self.n {
+                if let (Ok(r), Ok(c)) = (u32::try_from(row), u32::try_from(col)) {
+                    self.entries.push((r, c, value));
+                }
+            }
+            return;
+        }
         if row < self.n && col < self.n {
             if let Some(entry) = self.data.get_mut(row * self.n + col) {
                 *entry += value;
@@ -69,6 +113,7 @@ pub(crate) struct LinearSolver {
     rhs: Vec<f64>,
     /// Whether the scaled matrix is finite, which makes skipping zero multipliers exact.
     skip_zeros: bool,
+    sparse: SparseSolver,
 }
 
 impl LinearSolver {
@@ -85,6 +130,9 @@ impl LinearSolver {
         x: &mut Vec<f64>,
     ) -> Result<(), LinearFailure> {
         let n = a.n;
+        if Matrix::is_sparse(n) {
+            return self.sparse.solve(n, &a.entries, b, x);
+        }
         if b.len() != n || a.data.iter().chain(b).any(|v| !v.is_finite()) {
             return Err(LinearFailure::NotFinite);
         }

@@ -34,6 +34,7 @@ mod network;
 mod newton;
 mod options;
 mod result;
+mod sparse;
 mod thevenin;
 mod topology;
 
@@ -53,11 +54,12 @@ pub use thevenin::{thevenin, thevenin_cached, Thevenin};
 
 use std::sync::Arc;
 
-/// Most unknowns the engine solves with its dense matrix. The sub-networks of a motor drive
-/// between its rails have tens of unknowns; a thousand keeps one matrix at 8 MB (two live
-/// copies: the system and its factors) and one factorisation near 0.3 G multiply-adds, while
-/// a network past it (a generated ladder, a flattened array) is refused with
-/// [`DcError::TooLarge`] before anything of its size is allocated.
+/// Most unknowns the engine solves. The sub-networks of a motor drive between its rails have
+/// tens of unknowns and are factored dense; past 64 the matrix is kept and factored sparse, so
+/// a solve costs about its number of entries, not the cube of its size. A network past this
+/// bound (a generated ladder, a flattened array) is refused with [`DcError::TooLarge`] before
+/// anything of its size is allocated: an analysis makes hundreds of solves per part, and one
+/// sub-network this large already takes seconds.
 pub const DENSE_LIMIT: usize = 1000;
 
 use mna::Layout;
