@@ -88,8 +88,8 @@ pub const SUPPRESSION_INVALID: Rule = Rule {
 
 pub const SOLVE_FAILED: Rule = Rule {
     id: "solve-failed",
-    default_severity: Severity::Warning,
-    grades: &[Severity::Warning, Severity::Note],
+    default_severity: Severity::Note,
+    grades: &[Severity::Note],
     summary: "The DC engine found no operating point for a sub-network",
     page: include_str!("../../rules/solve-failed.md"),
     check: None,

@@ -192,24 +192,35 @@ pub fn failure_finding(
     let (label, error) = solves.failure.as_ref()?;
     let d = cx.circuit.devices.get(device)?;
     let element = cx.netlist.elements.get(d.element)?;
-    let mut severity = Severity::Warning;
+    // Every case is a note: the engine could not judge these nets, which says nothing against
+    // the circuit. The note says what was skipped and what would let it be judged.
+    let mut help = "the checks that need this sub-network's voltages and currents (gate drive, \
+                    dissipation, load stress) were skipped for it; if the circuit simulates, a \
+                    simpler model of the parts on these nets, or a resistance where a net has no \
+                    DC path, lets kickback judge it";
     let message = match error {
-        // The solve itself succeeded, but means nothing: a note that says what to add.
+        // The solve itself succeeded, but means nothing: say what to add.
         DcError::Implausible { cause } => {
-            severity = Severity::Note;
+            help = "add what the note names, or waive the rule for this element with a reason";
             format!(
                 "the sub-network around {} has no trustworthy DC state (`{label}`): {cause}",
                 element.path
             )
         }
-        DcError::TooLarge { unknowns, limit } => format!(
-            "the sub-network around {} has {unknowns} unknowns, more than the {limit} the DC engine solves densely; its voltages, currents and dissipation are not checked",
-            element.path
-        ),
+        DcError::TooLarge { unknowns, limit } => {
+            help = "split the netlist into the channels a review looks at, or check this part \
+                    with a smaller deck that holds only its own stage";
+            format!(
+                "the sub-network around {} has {unknowns} unknowns, more than the {limit} the DC engine solves; its voltages, currents and dissipation are not checked",
+                element.path
+            )
+        }
         _ => match unmodelled_beside(cx, solves.component) {
             // Not a fault of the circuit: a part the engine leaves open holds these nets.
             Some(part) => {
-                severity = Severity::Note;
+                help = "give the part a model the engine knows (a resistor for a closed \
+                        switch, a diode or transistor model), or waive the rule for this \
+                        element with a reason";
                 format!(
                     "the sub-network around {} has no DC state kickback can judge (`{label}`): \
                      it hangs on {part}, which the DC engine does not model, so its voltages, \
@@ -224,8 +235,9 @@ pub fn failure_finding(
         },
     };
     Some(
-        Finding::new("solve-failed", severity, element.span, message)
-            .with_element(element.name.clone(), element.instance_path()),
+        Finding::new("solve-failed", Severity::Note, element.span, message)
+            .with_element(element.name.clone(), element.instance_path())
+            .with_help(help),
     )
 }
 

@@ -462,12 +462,19 @@ fn solve_failed(cx: &Context<'_>, setup: &Setup, e: &DcError) -> Finding {
             cx.name(setup.device)
         ),
     };
-    let severity = if matches!(e, DcError::Implausible { .. }) {
-        Severity::Note
-    } else {
-        Severity::Warning
+    // A note: the engine could not judge the timer, which says nothing against the circuit.
+    let help = match e {
+        DcError::WorkBound { .. } => {
+            "the timing network needs more DC solves than one timer is allowed (many pots or \
+             steering diodes on one capacitor); check the stage on its own in a smaller deck"
+        }
+        _ => {
+            "the frequency and duty checks of this timer were skipped; a simpler model of the \
+             parts on its timing nets, or a resistance where a net has no DC path, lets \
+             kickback judge it"
+        }
     };
-    let mut f = Finding::new("solve-failed", severity, span, message);
+    let mut f = Finding::new("solve-failed", Severity::Note, span, message).with_help(help);
     if let Some(e) = element {
         f = f.with_element(e.name.clone(), e.instance_path());
     }
