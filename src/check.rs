@@ -255,6 +255,44 @@ fn check_buffer_unguarded(path: &Path, text: &str, options: &CheckOptions) -> Bu
     }
 }
 
+/// Everything a review page shows of one netlist: the checked file (findings after
+/// suppressions), the graph, the facts and the waveforms sampled from them.
+#[derive(Debug)]
+pub struct Reviewed {
+    pub report: FileReport,
+    pub netlist: FlatNetlist,
+    pub circuit: Circuit,
+    pub analysis: Analysis,
+    pub waveforms: analysis::Waveforms,
+}
+
+/// Checks one netlist and keeps its graph and facts, with the waveforms for a review page
+/// (`kickback report --format html|markdown`). A netlist or configuration that cannot be read
+/// is an error; a panic becomes [`CheckError::Internal`], as in [`check_file`].
+pub fn review_file(path: &Path, options: &CheckOptions) -> Result<Reviewed, CheckError> {
+    panic::catch_unwind(AssertUnwindSafe(|| {
+        let config = load_config(path, options)?;
+        let mut report = empty_report(path);
+        let keep = |name: &str| parts::keeps_whole(name, &config);
+        let (flat, findings) = netlist::load(path, &mut report.sources, &options.limits, &keep)?;
+        let (report, circuit, facts) = finish_with_facts(report, &flat, findings, &config);
+        let waveforms = analysis::waveform::sample(&flat, &circuit, &config, &facts);
+        Ok(Reviewed {
+            report,
+            netlist: flat,
+            circuit,
+            analysis: facts,
+            waveforms,
+        })
+    }))
+    .unwrap_or_else(|payload| {
+        Err(CheckError::Internal {
+            path: path.to_path_buf(),
+            message: panic_message(payload.as_ref()),
+        })
+    })
+}
+
 /// Circuit, analysis, rules and suppressions on a loaded netlist.
 fn finish(
     report: FileReport,

@@ -385,7 +385,7 @@ fn report_prints_the_facts_in_both_formats() {
         .assert()
         .code(2)
         .stderr(predicate::str::contains(
-            "--format cards (tables for a person) or --format json",
+            "report prints --format cards (tables for a person), json, html",
         ));
     kickback()
         .args(["report", "no-such-board.cir"])

@@ -558,6 +558,23 @@ pub struct LoadFacts {
     /// The switching input it hangs on directly, when no switch interrupts it (a motor on a
     /// PULSE source or a timer's output pin).
     pub driven_by: Option<DeviceId>,
+    /// The closed-form drive of the winding at the case the effective voltage is largest
+    /// (highest peak, largest duty, longest period): what its current over one period is
+    /// drawn from. `None` unless `effective_method` is the closed form.
+    pub drive: Option<WindingDrive>,
+}
+
+/// One PWM'd winding's closed-form drive (see `analysis::switching::winding`).
+#[derive(Clone, Debug, PartialEq)]
+pub struct WindingDrive {
+    /// In volts across the load's own resistance.
+    pub winding: crate::analysis::switching::winding::Winding,
+    pub duty: f64,
+    pub period_s: f64,
+    /// The load's own resistance: current = volts / this.
+    pub load_ohms: f64,
+    /// The state it stands for.
+    pub state: String,
 }
 
 /// How a load's effective voltage was found.
@@ -604,4 +621,79 @@ pub struct CapacitorFacts {
     pub device: DeviceId,
     /// `min` below zero means the capacitor is reverse-biased in that state.
     pub voltage_v: Range,
+}
+
+/// Waveforms for a person to look at (see `analysis::waveform`): sampled from the same closed
+/// forms and phase times the other facts come from, so a picture cannot disagree with a number.
+#[derive(Clone, Debug, Default, PartialEq)]
+pub struct Waveforms {
+    pub timers: Vec<TimerWaveform>,
+    pub switches: Vec<SwitchWaveform>,
+}
+
+/// One sampled curve: `(t, value)` points in SI base units, in time order.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Trace {
+    /// The state it stands for (`V12 at min, XRV1 wiper at 50 %`).
+    pub state: String,
+    pub points: Vec<(f64, f64)>,
+}
+
+/// A computed time drawn as a span on a timing diagram.
+#[derive(Clone, Debug, PartialEq)]
+pub struct TimeMark {
+    /// `high`, `low`, `pulse`, `trigger period`, `trigger low`.
+    pub what: &'static str,
+    pub start_s: f64,
+    pub end_s: f64,
+}
+
+/// A timer's timing diagram over two periods.
+#[derive(Clone, Debug, PartialEq)]
+pub struct TimerWaveform {
+    pub device: DeviceId,
+    pub mode: TimerMode,
+    /// Capacitor voltage; the first trace is the reference case (nominal supply, every pot at
+    /// mid travel), then the pots' ends at the nominal supply, then the supply's corners.
+    pub capacitor: Vec<Trace>,
+    /// The comparator thresholds of the reference case.
+    pub upper_v: f64,
+    pub lower_v: f64,
+    /// The time the diagram covers.
+    pub span_s: f64,
+    /// Intervals (start, end) of the reference case.
+    pub output_high: Vec<(f64, f64)>,
+    pub discharge_on: Vec<(f64, f64)>,
+    /// A one-shot's trigger below its threshold (empty for an astable or an unknown driver).
+    pub trigger_low: Vec<(f64, f64)>,
+    /// Trigger edges that arrive while the pulse is still running: the one-shot ignores them.
+    pub ignored_triggers: Vec<f64>,
+    pub marks: Vec<TimeMark>,
+    /// Cases with no pulse at all (the capacitor already sits at the threshold): named, not
+    /// drawn, as their flat line would lie on the threshold's.
+    pub no_pulse: Vec<String>,
+}
+
+/// One PWM period of a switch: gate drive and load current from turn-on.
+#[derive(Clone, Debug, PartialEq)]
+pub struct SwitchWaveform {
+    pub device: DeviceId,
+    pub period_s: f64,
+    pub duty: f64,
+    /// Gate–source (base–emitter) voltage toward conduction: on level at the worst corner,
+    /// edges from [`GateEdges`] (square edges when those are unknown).
+    pub gate: Trace,
+    pub edges_known: bool,
+    /// The threshold band (lowest, highest) and where it comes from; `None` for a BJT.
+    pub threshold_v: Option<(f64, f64)>,
+    pub threshold_source: String,
+    /// The load and its current in amps (closed form, [`LoadFacts::drive`]): at the duty
+    /// drawn, then at the highest duty when that is another.
+    pub load: Option<DeviceId>,
+    pub current: Vec<Trace>,
+    /// Current at turn-off (the peak the freewheel path takes over).
+    pub peak_a: Option<f64>,
+    /// When the freewheel path carries the current (start, end), and the path.
+    pub freewheel: Option<(f64, f64)>,
+    pub freewheel_device: Option<DeviceId>,
 }

@@ -14,6 +14,7 @@ pub mod states;
 pub mod stress;
 pub mod switching;
 pub mod timer;
+pub mod waveform;
 
 pub use facts::*;
 

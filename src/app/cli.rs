@@ -24,7 +24,7 @@ pub struct Cli {
 #[derive(Debug, Args)]
 pub struct GlobalArgs {
     /// Output format: `cards` for a person (one card per finding), `lines` for editors and
-    /// terminals (one line per finding), `json`, `sarif`.
+    /// terminals (one line per finding), `json`, `sarif`; `report` also writes `html` and `markdown`.
     #[arg(long, global = true, value_enum, default_value_t = Format::Cards)]
     pub format: Format,
     /// Use this configuration file instead of looking for kickback.toml beside each netlist.
@@ -159,6 +159,12 @@ pub enum Format {
     Lines,
     Json,
     Sarif,
+    /// `report` only: one self-contained page with a timing diagram per timer, one PWM period
+    /// per switch and the circuit around each finding.
+    Html,
+    /// `report` only: the findings and the key numbers per stage, for CI summaries and
+    /// pull-request comments.
+    Markdown,
     /// The earlier name of `cards`, read for one release.
     #[value(hide = true)]
     Human,

@@ -193,6 +193,12 @@ fn check(
             return EXIT_FAILURE;
         }
     };
+    if matches!(global.format, Format::Html | Format::Markdown) {
+        console.error(
+            "check prints --format cards, lines, json or sarif; html and markdown pages come from `kickback report FILE`",
+        );
+        return EXIT_FAILURE;
+    }
     if let Some(config) = &global.config {
         if let Err(message) = preflight_config(config) {
             console.error(&message);
@@ -400,6 +406,7 @@ fn check(
         Format::Lines | Format::Short => String::new(),
         Format::Json => report::json::render(&kept),
         Format::Sarif => report::sarif::render(&kept),
+        Format::Html | Format::Markdown => String::new(),
     };
     console.print(&text);
     code
@@ -637,8 +644,13 @@ fn rules_command(global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
 }
 
 fn report_command(file: &Path, global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
-    if !matches!(global.format, Format::Cards | Format::Json) {
-        console.error("report prints --format cards (tables for a person) or --format json");
+    if !matches!(
+        global.format,
+        Format::Cards | Format::Json | Format::Html | Format::Markdown
+    ) {
+        console.error(
+            "report prints --format cards (tables for a person), json, html (a page to look at) or markdown",
+        );
         return EXIT_FAILURE;
     }
     if file.is_dir() {
@@ -653,6 +665,9 @@ fn report_command(file: &Path, global: &GlobalArgs, console: &mut Console<'_>) -
     if !file.is_file() {
         console.error(&format!("cannot read {}: no such file", file.display()));
         return EXIT_FAILURE;
+    }
+    if matches!(global.format, Format::Html | Format::Markdown) {
+        return review_command(file, global, console);
     }
     match crate::check::report_file(file, &check_options(global)) {
         Ok(facts) => {
@@ -714,6 +729,31 @@ fn lsp(debounce_ms: u64, global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
         Ok(()) => EXIT_CLEAN,
         Err(message) => {
             console.error(&message);
+            EXIT_FAILURE
+        }
+    }
+}
+
+/// `kickback report FILE --format html|markdown`: the review page, with the rules' findings.
+fn review_command(file: &Path, global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
+    match crate::check::review_file(file, &check_options(global)) {
+        Ok(reviewed) => {
+            let review = report::page::Review {
+                report: &reviewed.report,
+                netlist: &reviewed.netlist,
+                circuit: &reviewed.circuit,
+                analysis: &reviewed.analysis,
+                waveforms: &reviewed.waveforms,
+            };
+            let text = match global.format {
+                Format::Markdown => report::page::markdown::render_markdown(&review),
+                _ => report::page::render_html(&review),
+            };
+            console.print(&text);
+            EXIT_CLEAN
+        }
+        Err(e) => {
+            console.error(&format!("cannot report on {}: {e}", file.display()));
             EXIT_FAILURE
         }
     }

@@ -10,6 +10,7 @@ pub mod facts;
 mod facts_table;
 pub mod json;
 pub mod lines;
+pub mod page;
 pub mod sarif;
 mod source_window;
 mod wide_lines;

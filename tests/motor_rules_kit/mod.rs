@@ -321,6 +321,7 @@ pub fn load(device: DeviceId, kind: Kind) -> LoadFacts {
         switch: None,
         freewheel: None,
         driven_by: None,
+        drive: None,
     }
 }
 

@@ -10,7 +10,7 @@
 use super::drive::range_over;
 use super::solves::ComponentSolves;
 use super::winding::{self, Winding};
-use crate::analysis::facts::{EffectiveMethod, LoadFacts, Range};
+use crate::analysis::facts::{EffectiveMethod, LoadFacts, Range, WindingDrive};
 use crate::analysis::stand_in;
 use crate::analysis::states::{Context, Solved};
 use crate::circuit::{DeviceId, Kind, PinRole, Rated};
@@ -59,6 +59,7 @@ struct Pwm {
     method: EffectiveMethod,
     ripple_a: Option<Range>,
     duty_limit: Option<f64>,
+    drive: Option<WindingDrive>,
 }
 
 pub fn load_facts(cx: &Context<'_>, device: DeviceId, setting: &LoadSetting<'_>) -> LoadFacts {
@@ -96,9 +97,16 @@ pub fn load_facts(cx: &Context<'_>, device: DeviceId, setting: &LoadSetting<'_>)
         (Some(l), Some(i)) => Some(0.5 * l * i.max * i.max),
         _ => None,
     };
-    let (avg_v, effective_v, effective_method, ripple_a, duty_limit) = match pwm {
-        Some(p) => (p.avg_v, p.effective_v, p.method, p.ripple_a, p.duty_limit),
-        None => (None, None, EffectiveMethod::Peak, None, None),
+    let (avg_v, effective_v, effective_method, ripple_a, duty_limit, drive) = match pwm {
+        Some(p) => (
+            p.avg_v,
+            p.effective_v,
+            p.method,
+            p.ripple_a,
+            p.duty_limit,
+            p.drive,
+        ),
+        None => (None, None, EffectiveMethod::Peak, None, None, None),
     };
     LoadFacts {
         device,
@@ -121,6 +129,7 @@ pub fn load_facts(cx: &Context<'_>, device: DeviceId, setting: &LoadSetting<'_>)
         switch: setting.switch,
         freewheel: setting.freewheel,
         driven_by: setting.driven_by,
+        drive,
     }
 }
 
@@ -140,6 +149,7 @@ fn pwm_numbers(
             method: EffectiveMethod::Peak,
             ripple_a: None,
             duty_limit: None,
+            drive: None,
         };
     };
     let (d_lo, d_hi) = (d.min.clamp(0.0, 1.0), d.max.clamp(0.0, 1.0));
@@ -178,7 +188,14 @@ fn pwm_numbers(
             }
         }
         let limit = rated.and_then(|rated| winding::duty_for_effective(&hi, t_long, rated));
-        Some((least, most, least_mean, most_mean, ripple, limit))
+        let drive = WindingDrive {
+            winding: hi,
+            duty: d_hi,
+            period_s: t_long,
+            load_ohms: r,
+            state: super::drive::with_duty(&v.max_state, d, true),
+        };
+        Some((least, most, least_mean, most_mean, ripple, limit, drive))
     });
     let states = |value_min: f64, value_max: f64| Range {
         min: value_min,
@@ -187,12 +204,13 @@ fn pwm_numbers(
         max_state: super::drive::with_duty(&v.max_state, d, true),
     };
     match closed {
-        Some((least, most, least_mean, most_mean, ripple, limit)) if pwm => Pwm {
+        Some((least, most, least_mean, most_mean, ripple, limit, drive)) if pwm => Pwm {
             avg_v: Some(states(least_mean.min(most_mean), least_mean.max(most_mean))),
             effective_v: Some(states(least.rms_v, most.rms_v)),
             method: EffectiveMethod::ClosedForm,
             ripple_a: ripple,
             duty_limit: limit,
+            drive: Some(drive),
         },
         _ => {
             let method = if pwm {
@@ -209,6 +227,7 @@ fn pwm_numbers(
                 method,
                 ripple_a: None,
                 duty_limit: limit,
+                drive: None,
             }
         }
     }

@@ -118,6 +118,69 @@ pub fn steady_state(w: &Winding, duty: f64, period_s: f64) -> Option<Periodic> {
     })
 }
 
+/// The current over one period of the steady state, as `(t, i·R)` points from turn-on
+/// (`t = 0`) to the end of the period, from the same turning points as [`steady_state`]:
+/// `samples` points on each phase, more where an exponential moves fast. Empty when
+/// [`steady_state`] has no answer.
+pub fn sample(w: &Winding, duty: f64, period_s: f64, samples: usize) -> Vec<(f64, f64)> {
+    let Some(p) = steady_state(w, duty, period_s) else {
+        return Vec::new();
+    };
+    let d = duty.clamp(0.0, 1.0);
+    let (t_on, t_off) = (d * period_s, (1.0 - d) * period_s);
+    let tau = w.tau_s;
+    let n = samples.clamp(2, 2000);
+    let start = if p.discontinuous { 0.0 } else { p.min_v };
+    let v_off = if w.freewheel { w.off_v.min(0.0) } else { 0.0 };
+    let mut out = Vec::with_capacity(2 * n + 4);
+    // Denser near each switching instant: the exponential moves fastest there.
+    let times = |length: f64| -> Vec<f64> {
+        (0..=n)
+            .map(|k| {
+                let x = k as f64 / n as f64;
+                length * x * x
+            })
+            .collect()
+    };
+    for t in times(t_on) {
+        out.push((t, w.on_v + (start - w.on_v) * (-t / tau).exp()));
+    }
+    if t_off <= 0.0 {
+        return out;
+    }
+    if !w.freewheel {
+        // The current collapses at turn-off.
+        out.push((t_on, 0.0));
+        out.push((period_s, 0.0));
+        return out;
+    }
+    let peak = p.max_v;
+    for t in times(t_off).into_iter().skip(1) {
+        let i = v_off + (peak - v_off) * (-t / tau).exp();
+        out.push((t_on + t, i.max(0.0)));
+    }
+    out
+}
+
+/// When the freewheel path stops carrying the current after turn-off, in seconds after
+/// turn-off: the whole off phase in continuous conduction, until the current reaches zero
+/// otherwise; `None` with no freewheel path or no steady state.
+pub fn freewheel_time(w: &Winding, duty: f64, period_s: f64) -> Option<f64> {
+    let p = steady_state(w, duty, period_s)?;
+    if !w.freewheel {
+        return None;
+    }
+    let t_off = (1.0 - duty.clamp(0.0, 1.0)) * period_s;
+    let v_off = w.off_v.min(0.0);
+    if !p.discontinuous || p.max_v <= 0.0 {
+        return Some(t_off);
+    }
+    if v_off >= 0.0 {
+        return Some(t_off);
+    }
+    Some((w.tau_s * ((p.max_v - v_off) / -v_off).ln()).clamp(0.0, t_off))
+}
+
 fn dc(v_on: f64, duty: f64) -> Periodic {
     let v = if duty > 0.0 { v_on } else { 0.0 };
     Periodic {
@@ -251,5 +314,27 @@ mod tests {
         let at = steady_state(&w, d, 50e-6).unwrap();
         assert!(close(at.rms_v, 6.0, 1e-6), "{at:?}");
         assert_eq!(duty_for_effective(&w, 50e-6, 20.0), Some(1.0));
+    }
+
+    #[test]
+    fn samples_run_through_the_turning_points() {
+        // The 24 V / 4.8 Ω / 4 mH case above: the samples start at i_min and peak at i_max.
+        let w = Winding {
+            on_v: 24.0,
+            off_v: -0.7,
+            tau_s: 4e-3 / 4.8,
+            freewheel: true,
+        };
+        let p = steady_state(&w, 0.4, 0.5e-3).unwrap();
+        let s = sample(&w, 0.4, 0.5e-3, 50);
+        assert!(close(s[0].1, p.min_v, 1e-9));
+        let top = s.iter().fold(f64::MIN, |m, x| m.max(x.1));
+        assert!(close(top, p.max_v, 1e-9));
+        let end = s.last().unwrap();
+        assert!(
+            close(end.0, 0.5e-3, 1e-15) && close(end.1, p.min_v, 1e-6),
+            "{end:?}"
+        );
+        assert_eq!(freewheel_time(&w, 0.4, 0.5e-3), Some(0.6 * 0.5e-3));
     }
 }

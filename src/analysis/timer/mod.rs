@@ -13,6 +13,7 @@ pub mod config;
 pub mod discharge;
 pub mod phase;
 pub mod sweep;
+pub mod trace;
 pub mod trigger;
 
 use super::budget;
