@@ -563,3 +563,26 @@ fn counts_by_rule_and_file_come_before_the_summary() {
         text(&output.stderr)
     );
 }
+
+// ---- what could not be judged is named in the summary -----------------------------------------
+
+#[test]
+fn the_summary_names_what_could_not_be_judged() {
+    // A sub-network that hangs on a switch the engine does not model: the finding is a note,
+    // and the summary line says that part of the deck was not judged, so a run that judged
+    // nothing never reads as a clean pass.
+    let out = kickback()
+        .arg("check")
+        .arg(repo(
+            "testdata/rules/solve-failed/fires-note-unmodelled-switch.cir",
+        ))
+        .output()
+        .expect("runs");
+    assert_eq!(out.status.code(), Some(0), "{}", text(&out.stderr));
+    let stdout = text(&out.stdout);
+    let last = stdout.lines().last().unwrap_or_default();
+    assert!(
+        last.contains("kickback could not judge 1 place (solve-failed 1)"),
+        "{stdout}"
+    );
+}

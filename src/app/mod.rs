@@ -512,6 +512,10 @@ fn add_counts(totals: &mut report::Summary, batch: &report::Summary) {
     totals.suppressed = totals.suppressed.saturating_add(batch.suppressed);
     totals.known = totals.known.saturating_add(batch.known);
     totals.files = totals.files.saturating_add(batch.files);
+    for (rule, n) in &batch.not_judged {
+        let total = totals.not_judged.entry(rule.clone()).or_default();
+        *total = total.saturating_add(*n);
+    }
     totals.failed.extend(batch.failed.iter().cloned());
 }
 

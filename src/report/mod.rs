@@ -103,6 +103,9 @@ pub struct Summary {
     pub failed: Vec<String>,
     /// Findings left out because the baseline lists them (`check --baseline`).
     pub known: usize,
+    /// Findings of the rules that say kickback could not judge something
+    /// ([`crate::rules::NOT_JUDGED`]), by rule.
+    pub not_judged: std::collections::BTreeMap<String, usize>,
 }
 
 impl Summary {
@@ -120,6 +123,10 @@ impl Summary {
                     Severity::Note => &mut summary.notes,
                 };
                 *count = count.saturating_add(1);
+                if crate::rules::NOT_JUDGED.contains(&finding.rule.as_str()) {
+                    let n = summary.not_judged.entry(finding.rule.clone()).or_default();
+                    *n = n.saturating_add(1);
+                }
             }
         }
         summary.failed = failures(reports)
@@ -165,6 +172,19 @@ impl Summary {
         }
         if !asides.is_empty() {
             line.push_str(&format!(" ({})", asides.join(", ")));
+        }
+        let skipped: usize = self.not_judged.values().sum();
+        if skipped > 0 {
+            let by_rule: Vec<String> = self
+                .not_judged
+                .iter()
+                .map(|(rule, n)| format!("{rule} {n}"))
+                .collect();
+            line.push_str(&format!(
+                "; kickback could not judge {} ({}): their findings say what it needs",
+                plural(skipped, "place", "places"),
+                by_rule.join(", ")
+            ));
         }
         if !self.failed.is_empty() {
             line.push_str(&format!(
@@ -290,6 +310,7 @@ mod tests {
             files: 2,
             failed: vec![],
             known: 0,
+            not_judged: Default::default(),
         };
         assert_eq!(
             summary.line(),
@@ -318,6 +339,23 @@ mod tests {
         assert_eq!(
             missing.line(),
             "no netlist was checked; 1 file could not be checked: gone.cir"
+        );
+        // Findings that say something could not be judged are named, so a run with nothing
+        // judged never reads as a clean pass.
+        let unjudged = Summary {
+            notes: 3,
+            files: 1,
+            not_judged: [
+                ("solve-failed".to_string(), 2),
+                ("stage-unknown".to_string(), 1),
+            ]
+            .into_iter()
+            .collect(),
+            ..Summary::default()
+        };
+        assert_eq!(
+            unjudged.line(),
+            "3 notes in 1 file; kickback could not judge 3 places (solve-failed 2, stage-unknown 1): their findings say what it needs"
         );
     }
 }
