@@ -148,17 +148,14 @@ pub fn load(
             limit: limits.max_file_bytes,
         })?;
     let canonical = std::fs::canonicalize(path).map_err(unreadable)?;
-    let root = canonical
-        .parent()
-        .map(Path::to_path_buf)
-        .unwrap_or_else(|| canonical.clone());
-    let id = sources.add(
-        path.to_path_buf(),
-        path.display().to_string(),
+    run_top(
+        sources,
+        path,
+        canonical,
         text::decode(bytes),
-    );
-    let origin = load::Origin { canonical, root };
-    run(sources, id, Some(origin), limits, keep_whole)
+        limits,
+        keep_whole,
+    )
 }
 
 /// As [`load`], with the top file's text given (an editor's unsaved buffer) rather than read:
@@ -186,15 +183,30 @@ pub fn load_text(
         let folder = std::fs::canonicalize(folder).unwrap_or_else(|_| folder.to_path_buf());
         folder.join(path.file_name().unwrap_or_default())
     });
+    run_top(
+        sources,
+        path,
+        canonical,
+        text.to_string(),
+        limits,
+        keep_whole,
+    )
+}
+
+/// Registers the top file's text and loads from it; includes resolve from its folder.
+fn run_top(
+    sources: &mut SourceMap,
+    path: &Path,
+    canonical: std::path::PathBuf,
+    text: String,
+    limits: &Limits,
+    keep_whole: KeepWhole<'_>,
+) -> Result<(FlatNetlist, Vec<Finding>), LoadError> {
     let root = canonical
         .parent()
         .map(Path::to_path_buf)
         .unwrap_or_else(|| canonical.clone());
-    let id = sources.add(
-        path.to_path_buf(),
-        path.display().to_string(),
-        text.to_string(),
-    );
+    let id = sources.add(path.to_path_buf(), path.display().to_string(), text);
     let origin = load::Origin { canonical, root };
     run(sources, id, Some(origin), limits, keep_whole)
 }
