@@ -161,9 +161,52 @@ fn is_winding_copper(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> bo
     })
 }
 
+/// True when the resistor is a converter's output load: across a capacitor on a net that an
+/// inductor, or a diode from a winding, feeds (a buck's L–C filter, a boost's or flyback's
+/// rectifier into its reservoir). A simulation deck writes the load it drives that way; the
+/// DC states take the filter's inductor as a wire and the rectifier as always on, so they
+/// see the pulses, not the filtered output the resistor really dissipates in.
+fn is_filtered_output_load(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> bool {
+    let Some(device) = cx.circuit.devices.get(id) else {
+        return false;
+    };
+    let [first, second] = device.pins.as_slice() else {
+        return false;
+    };
+    let other_end = |part: DeviceId, net| {
+        let p = cx.circuit.devices.get(part)?;
+        match p.pins.as_slice() {
+            [a, b] if a.net == net => Some(b.net),
+            [a, b] if b.net == net => Some(a.net),
+            _ => None,
+        }
+    };
+    let inductive = |part: DeviceId| kind(cx, part).is_some_and(Kind::is_inductive);
+    [(first.net, second.net), (second.net, first.net)]
+        .into_iter()
+        .any(|(out, back)| {
+            let parts = index.on(out);
+            let held = parts
+                .iter()
+                .any(|&(o, _)| kind(cx, o) == Some(Kind::VoltageSource));
+            let reservoir = parts.iter().any(|&(o, _)| {
+                kind(cx, o) == Some(Kind::Capacitor) && other_end(o, out) == Some(back)
+            });
+            let fed = parts.iter().any(|&(o, _)| {
+                let Some(far) = other_end(o, out).filter(|&f| f != out && f != back) else {
+                    return false;
+                };
+                inductive(o)
+                    || (kind(cx, o).is_some_and(Kind::is_diode_like)
+                        && index.on(far).iter().any(|&(w, _)| w != o && inductive(w)))
+            });
+            !held && reservoir && fed
+        })
+}
+
 fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Option<Finding> {
     let id = facts.device;
-    if is_winding_copper(cx, index, id) {
+    if is_winding_copper(cx, index, id) || is_filtered_output_load(cx, index, id) {
         return None;
     }
     let p = facts.power_w.max;
