@@ -53,7 +53,7 @@ pub fn stamp(
     node_of: &mut dyn FnMut(NetId, &mut Network) -> Node,
 ) -> DeviceElements {
     let mut out = DeviceElements::default();
-    let Some(device) = cx.circuit.devices.get(id) else {
+    let Some(device) = cx.circuit.devices().get(id) else {
         return out;
     };
     let data = &device.data;

@@ -129,6 +129,7 @@ impl Device {
     }
 }
 
+pub mod builder;
 mod data;
 pub mod defaults;
 pub mod graph;
@@ -140,6 +141,7 @@ mod query;
 mod unknown;
 mod wires;
 
+pub use builder::CircuitBuilder;
 pub use defaults::LOGIC_LEVEL_VGS_TH_MAX;
 pub use graph::{Circuit, GraphNode};
 pub use query::SeriesChain;

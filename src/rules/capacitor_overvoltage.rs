@@ -32,7 +32,7 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &CapacitorFacts) -> Op
     let id = facts.device;
     let rating = cx
         .circuit
-        .devices
+        .devices()
         .get(id)?
         .data
         .get("voltage_rating")?
@@ -70,7 +70,7 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &CapacitorFacts) -> Op
         )
     };
     let mut f = finding_at(RULE, severity, cx, id, message)?;
-    if let Some(d) = cx.circuit.devices.get(id) {
+    if let Some(d) = cx.circuit.devices().get(id) {
         for pin in &d.pins {
             if let Some(s) = index.supply_on(cx, pin.net) {
                 f = label(

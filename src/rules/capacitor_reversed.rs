@@ -31,7 +31,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 
 fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &CapacitorFacts) -> Option<Finding> {
     let id = facts.device;
-    let d = cx.circuit.devices.get(id)?;
+    let d = cx.circuit.devices().get(id)?;
     let polarized = d.data.get("polarized").filter(|p| p.value != 0.0)?.clone();
     let v = facts.voltage_v.min;
     if v >= -TOLERATED_V {

@@ -36,17 +36,17 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 /// with no chain the one on the discharge pin's own net.
 fn supply_of(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<DeviceId> {
     let nets: Vec<usize> = if t.discharge_chain.is_empty() {
-        let dis = cx.circuit.devices.get(t.device)?.pin(PinRole::Dis)?;
+        let dis = cx.circuit.devices().get(t.device)?.pin(PinRole::Dis)?;
         vec![dis]
     } else {
         t.discharge_chain
             .iter()
-            .filter_map(|&d| cx.circuit.devices.get(d))
+            .filter_map(|&d| cx.circuit.devices().get(d))
             .flat_map(|d| d.pins.iter().map(|p| p.net))
             .collect()
     };
-    let grounded = |n: usize| cx.circuit.nets.get(n).is_some_and(|n| n.is_ground);
-    cx.circuit.devices.iter().enumerate().find_map(|(id, d)| {
+    let grounded = |n: usize| cx.circuit.nets().get(n).is_some_and(|n| n.is_ground);
+    cx.circuit.devices().iter().enumerate().find_map(|(id, d)| {
         if d.kind != Kind::VoltageSource {
             return None;
         }

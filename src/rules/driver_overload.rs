@@ -25,7 +25,7 @@ const VBE_ON_V: f64 = 0.8;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let mut draws = all_draws(cx);
-    for (id, d) in cx.circuit.devices.iter().enumerate() {
+    for (id, d) in cx.circuit.devices().iter().enumerate() {
         if d.kind.is_timer() || d.kind == Kind::LogicOutput {
             out.extend(finding(cx, id, draws.remove(&id).unwrap_or_default()));
         }
@@ -54,7 +54,7 @@ impl Draw {
 /// switches).
 fn all_draws(cx: &RuleContext<'_>) -> BTreeMap<DeviceId, Vec<Draw>> {
     let mut by_out_net: BTreeMap<NetId, Vec<DeviceId>> = BTreeMap::new();
-    for (id, d) in cx.circuit.devices.iter().enumerate() {
+    for (id, d) in cx.circuit.devices().iter().enumerate() {
         if d.kind.is_timer() || d.kind == Kind::LogicOutput {
             if let Some(net) = d.pin(PinRole::Out) {
                 by_out_net.entry(net).or_default().push(id);
@@ -71,7 +71,7 @@ fn all_draws(cx: &RuleContext<'_>) -> BTreeMap<DeviceId, Vec<Draw>> {
             continue;
         };
         let mut drivers: Vec<DeviceId> = load.driven_by.into_iter().collect();
-        if let Some(d) = cx.circuit.devices.get(load.device) {
+        if let Some(d) = cx.circuit.devices().get(load.device) {
             for pin in &d.pins {
                 drivers.extend(by_out_net.get(&pin.net).into_iter().flatten().copied());
             }

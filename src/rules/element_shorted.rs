@@ -22,7 +22,7 @@ pub const RULE: Rule = Rule {
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let mut once = Once::default();
-    for device in &cx.circuit.devices {
+    for device in cx.circuit.devices() {
         if matches!(device.kind, Kind::VoltageSource | Kind::Coupling) || device.pins.len() < 2 {
             continue;
         }

@@ -289,7 +289,7 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
             ));
             if let Some(rds) = cx
                 .circuit
-                .devices
+                .devices()
                 .get(sw.device)
                 .and_then(|d| d.data.get("rds_on"))
             {

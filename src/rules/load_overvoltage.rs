@@ -187,7 +187,7 @@ fn supply_of(
     own_switch: Option<&SwitchFacts>,
     load: &LoadFacts,
 ) -> Option<usize> {
-    let d = cx.circuit.devices.get(load.device)?;
+    let d = cx.circuit.devices().get(load.device)?;
     [PinRole::Pos, PinRole::Neg]
         .into_iter()
         .filter_map(|r| d.pin(r))

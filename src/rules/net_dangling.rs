@@ -53,7 +53,7 @@ struct Dangling<'a> {
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
     let mut dangling = Vec::new();
-    for net in 0..cx.circuit.nets.len() {
+    for net in 0..cx.circuit.nets().len() {
         let Some((device_id, pin)) = single_connection(cx, &index, net) else {
             continue;
         };
@@ -68,7 +68,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         if cx.netlist.is_sensed(net_name(cx, net)) {
             continue;
         }
-        let Some(device) = cx.circuit.devices.get(device_id) else {
+        let Some(device) = cx.circuit.devices().get(device_id) else {
             continue;
         };
         let Some(element) = cx.netlist.elements.get(device.element) else {
@@ -104,7 +104,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let per_line = per_line(&dangling);
     let mut grouped_lines: HashSet<Span> = HashSet::new();
     for d in &dangling {
-        let Some(device) = cx.circuit.devices.get(d.device) else {
+        let Some(device) = cx.circuit.devices().get(d.device) else {
             continue;
         };
         let Some(element) = cx.netlist.elements.get(device.element) else {
@@ -185,7 +185,7 @@ fn single_connection(
         [(device, pin)] => {
             let on_this_net = cx
                 .circuit
-                .devices
+                .devices()
                 .get(device)
                 .and_then(|d| d.pins.get(pin))
                 .is_some_and(|p| p.net == net);
@@ -294,8 +294,10 @@ fn closest(
     let limit = if length <= 4 { 1 } else { 2 };
     let mut best: Option<(usize, std::cmp::Reverse<usize>, String, NetId)> = None;
     let first = device.saturating_sub(WINDOW);
-    let last = device.saturating_add(WINDOW).min(cx.circuit.devices.len());
-    for near in cx.circuit.devices.get(first..last).unwrap_or(&[]) {
+    let last = device
+        .saturating_add(WINDOW)
+        .min(cx.circuit.devices().len());
+    for near in cx.circuit.devices().get(first..last).unwrap_or(&[]) {
         let Some(element) = cx.netlist.elements.get(near.element) else {
             continue;
         };

@@ -27,7 +27,7 @@ pub const RULE: Rule = Rule {
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
-    for (id, device) in cx.circuit.devices.iter().enumerate() {
+    for (id, device) in cx.circuit.devices().iter().enumerate() {
         let Some(element) = cx.netlist.elements.get(device.element) else {
             continue;
         };

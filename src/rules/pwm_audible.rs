@@ -71,7 +71,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
                     .copied()
                     .filter(|&d| {
                         cx.circuit
-                            .devices
+                            .devices()
                             .get(d)
                             .is_some_and(|x| x.kind.is_inductive())
                     })
@@ -115,14 +115,14 @@ fn from_topology(
 ) {
     if !cx
         .circuit
-        .devices
+        .devices()
         .iter()
         .any(|d| d.kind.is_switch_transistor())
     {
         return;
     }
     let tracer = Tracer::new(cx);
-    for (id, device) in cx.circuit.devices.iter().enumerate() {
+    for (id, device) in cx.circuit.devices().iter().enumerate() {
         if !device.kind.is_switch_transistor() {
             continue;
         }
@@ -143,7 +143,7 @@ fn from_topology(
             .flat_map(|&n| index.on(n).iter().map(|&(d, _)| d))
             .filter(|&d| {
                 cx.circuit
-                    .devices
+                    .devices()
                     .get(d)
                     .is_some_and(|x| x.kind.is_inductive())
             })
@@ -169,8 +169,13 @@ fn from_topology(
             })
         });
         let timer = trace.drivers.iter().find_map(|&(d, role)| {
-            (role == PinRole::Out && cx.circuit.devices.get(d).is_some_and(|x| x.kind.is_timer()))
-                .then_some(d)
+            (role == PinRole::Out
+                && cx
+                    .circuit
+                    .devices()
+                    .get(d)
+                    .is_some_and(|x| x.kind.is_timer()))
+            .then_some(d)
         });
         if let Some(driver) = pulse.or(timer) {
             let g = groups.entry(driver).or_default();
@@ -248,7 +253,7 @@ fn report(
     let load_names: Vec<String> = loads.iter().map(|&l| shown(cx, l)).collect();
     let noun = loads
         .first()
-        .and_then(|&l| cx.circuit.devices.get(l))
+        .and_then(|&l| cx.circuit.devices().get(l))
         .map_or("load", |d| load_noun(d.kind));
     let (low, high) = (format_si(drive.min_hz, "Hz"), format_si(drive.max_hz, "Hz"));
     let at = if low != high {

@@ -110,7 +110,7 @@ fn involved(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> Vec<(Device
             }
         }
     }
-    let Some(d) = cx.circuit.devices.get(id) else {
+    let Some(d) = cx.circuit.devices().get(id) else {
         return found;
     };
     for pin in &d.pins {
@@ -124,7 +124,7 @@ fn involved(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> Vec<(Device
             continue;
         }
         for &(other, _) in on_net {
-            let pot = cx.circuit.devices.get(other).map(|o| o.kind) == Some(Kind::Potentiometer);
+            let pot = cx.circuit.devices().get(other).map(|o| o.kind) == Some(Kind::Potentiometer);
             if other != id && pot && !found.iter().any(|(f, _)| *f == other) {
                 found.push((other, "at its worst position".to_string()));
             }
@@ -140,7 +140,7 @@ fn involved(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> Vec<(Device
 /// resistance of its own). Its dissipation is the load's own copper loss, not a discrete
 /// resistor's.
 fn is_winding_copper(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> bool {
-    let (Some(device), Some(own)) = (cx.circuit.devices.get(id), element(cx, id)) else {
+    let (Some(device), Some(own)) = (cx.circuit.devices().get(id), element(cx, id)) else {
         return false;
     };
     let nested = !own.instances.is_empty();

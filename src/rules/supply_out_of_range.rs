@@ -36,7 +36,7 @@ struct Limits {
 }
 
 fn limits(cx: &RuleContext<'_>, id: DeviceId) -> Option<Limits> {
-    let d = cx.circuit.devices.get(id)?;
+    let d = cx.circuit.devices().get(id)?;
     let fallback = defaults(d.kind);
     let get = |key: &str, pick: fn((f64, f64, f64)) -> f64| {
         d.data.get(key).cloned().or_else(|| {
@@ -56,7 +56,7 @@ fn limits(cx: &RuleContext<'_>, id: DeviceId) -> Option<Limits> {
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
-    for (id, d) in cx.circuit.devices.iter().enumerate() {
+    for (id, d) in cx.circuit.devices().iter().enumerate() {
         let Some(vcc) = d.pin(PinRole::Vcc) else {
             continue;
         };
@@ -113,7 +113,11 @@ fn high(
         _ => return None,
     };
     let part = name(cx, id);
-    let kind = cx.circuit.devices.get(id).map_or(Kind::Unknown, |d| d.kind);
+    let kind = cx
+        .circuit
+        .devices()
+        .get(id)
+        .map_or(Kind::Unknown, |d| d.kind);
     let consequence = if severity == Severity::Error {
         "it can fail at once"
     } else {
@@ -161,7 +165,11 @@ fn low(
         return None;
     }
     let part = name(cx, id);
-    let kind = cx.circuit.devices.get(id).map_or(Kind::Unknown, |d| d.kind);
+    let kind = cx
+        .circuit
+        .devices()
+        .get(id)
+        .map_or(Kind::Unknown, |d| d.kind);
     let message = format!(
         "{part} ({kind}) gets only {} ({}): below its {} minimum supply, where its thresholds and \
          output level are no longer specified",

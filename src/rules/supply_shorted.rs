@@ -28,14 +28,14 @@ pub const RULE: Rule = Rule {
 const MAX_PATH_LABELS: usize = 6;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
-    let nets = cx.circuit.nets.len();
+    let nets = cx.circuit.nets().len();
     if nets == 0 {
         return;
     }
     let mut joined = UnionFind::<usize>::new(nets);
     let mut links: HashMap<NetId, Vec<(DeviceId, NetId)>> = HashMap::new();
     let mut sources = Vec::new();
-    for (id, device) in cx.circuit.devices.iter().enumerate() {
+    for (id, device) in cx.circuit.devices().iter().enumerate() {
         let Some(element) = cx.netlist.elements.get(device.element) else {
             continue;
         };

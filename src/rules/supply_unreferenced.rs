@@ -47,11 +47,11 @@ struct Section {
 }
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
-    let count = cx.circuit.nets.len();
+    let count = cx.circuit.nets().len();
     if count == 0 {
         return;
     }
-    let Some(ground) = cx.circuit.nets.iter().position(|n| n.is_ground) else {
+    let Some(ground) = cx.circuit.nets().iter().position(|n| n.is_ground) else {
         no_reference(cx, out);
         return;
     };
@@ -59,7 +59,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let mut referenced = vec![false; count];
     for (i, _) in cx
         .circuit
-        .nets
+        .nets()
         .iter()
         .enumerate()
         .filter(|(_, n)| n.is_ground)
@@ -115,7 +115,7 @@ fn floating_sections(
     referenced: &[bool],
 ) -> BTreeMap<usize, Section> {
     let mut sections: BTreeMap<usize, Section> = BTreeMap::new();
-    for net in 0..cx.circuit.nets.len() {
+    for net in 0..cx.circuit.nets().len() {
         let root = sets.find(net);
         if referenced.get(root).copied().unwrap_or(true) {
             continue;
@@ -129,7 +129,7 @@ fn floating_sections(
     if sections.is_empty() {
         return sections;
     }
-    for (id, device) in cx.circuit.devices.iter().enumerate() {
+    for (id, device) in cx.circuit.devices().iter().enumerate() {
         let letter = cx
             .netlist
             .elements
@@ -278,7 +278,7 @@ fn mismatched_references(
         reference,
     } in unreferenced_drives(cx, apart)
     {
-        let Some(device) = cx.circuit.devices.get(id) else {
+        let Some(device) = cx.circuit.devices().get(id) else {
             continue;
         };
         explained.insert(sets.find(source));
@@ -339,32 +339,32 @@ mod tests {
         // The fan moves onto its own 24 V pack whose negative is `gnd2`.
         d.v("VB2", "v24", "gnd2", 24.0);
         let m1 = d
-            .circuit
-            .devices
+            .parts
+            .devices()
             .iter()
             .position(|x| x.kind == Kind::Nmos)
             .unwrap();
         let gnd2 = d.net("gnd2");
         let v24 = d.net("v24");
-        for pin in &mut d.circuit.devices[m1].pins {
+        for pin in &mut d.device_mut(m1).pins {
             if matches!(pin.role, PinRole::Source | PinRole::Bulk) {
                 pin.net = gnd2;
             }
         }
         let fan = d
-            .circuit
-            .devices
+            .parts
+            .devices()
             .iter()
             .position(|x| x.kind == Kind::DcMotor)
             .unwrap();
-        d.circuit.devices[fan].pins[0].net = v24;
+        d.device_mut(fan).pins[0].net = v24;
         let diode = d
-            .circuit
-            .devices
+            .parts
+            .devices()
             .iter()
             .position(|x| x.kind == Kind::Schottky)
             .unwrap();
-        d.circuit.devices[diode].pins[1].net = v24;
+        d.device_mut(diode).pins[1].net = v24;
         let found = d.run(check);
         assert_eq!(found.len(), 1, "{found:?}");
         assert!(found[0].message.contains("`gnd2`") && found[0].message.contains("XU1"));

@@ -58,7 +58,7 @@ fn stuck(cx: &RuleContext<'_>, t: &TimerFacts, s: &StuckPhase) -> Option<Finding
         s.bias_a.is_none()
             && cx
                 .circuit
-                .devices
+                .devices()
                 .get(d)
                 .is_some_and(|x| x.kind.is_diode_like())
     });
@@ -183,7 +183,7 @@ fn stuck(cx: &RuleContext<'_>, t: &TimerFacts, s: &StuckPhase) -> Option<Finding
     if let Some(i) = s.bias_a {
         let source = cx
             .circuit
-            .devices
+            .devices()
             .get(t.device)
             .and_then(|d| {
                 d.data.get(if charging {

@@ -8,11 +8,13 @@ use crate::circuit::{DeviceId, Kind, Rated};
 use crate::netlist::FlatElement;
 
 pub fn element<'a>(cx: &RuleContext<'a>, id: DeviceId) -> Option<&'a FlatElement> {
-    cx.netlist.elements.get(cx.circuit.devices.get(id)?.element)
+    cx.netlist
+        .elements
+        .get(cx.circuit.devices().get(id)?.element)
 }
 
 pub fn kind(cx: &RuleContext<'_>, id: DeviceId) -> Option<Kind> {
-    cx.circuit.devices.get(id).map(|d| d.kind)
+    cx.circuit.devices().get(id).map(|d| d.kind)
 }
 
 /// The element's path as the user reads it (`XDRV.U1`, or `U1` at top level).
@@ -25,7 +27,7 @@ pub use super::switch_util::{finding_at, label};
 
 /// A timer rating with its provenance, or the kind's documented default.
 pub fn rated_or(cx: &RuleContext<'_>, id: DeviceId, key: &str, bipolar: f64, cmos: f64) -> Rated {
-    let device = cx.circuit.devices.get(id);
+    let device = cx.circuit.devices().get(id);
     if let Some(r) = device.and_then(|d| d.data.get(key)) {
         return r.clone();
     }
@@ -66,7 +68,7 @@ pub fn percent(fraction: f64) -> String {
 
 /// A device's resistance as the netlist gives it (resistor value or pot track).
 pub fn ohms_of(cx: &RuleContext<'_>, id: DeviceId) -> Option<f64> {
-    let device = cx.circuit.devices.get(id)?;
+    let device = cx.circuit.devices().get(id)?;
     device.data.value("resistance").or_else(|| {
         let e = element(cx, id)?;
         e.value
@@ -77,7 +79,7 @@ pub fn ohms_of(cx: &RuleContext<'_>, id: DeviceId) -> Option<f64> {
 
 /// A capacitor's value as the netlist gives it.
 pub fn farads_of(cx: &RuleContext<'_>, id: DeviceId) -> Option<f64> {
-    let device = cx.circuit.devices.get(id)?;
+    let device = cx.circuit.devices().get(id)?;
     device
         .data
         .value("capacitance")

@@ -71,8 +71,8 @@ impl Signal {
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
-    let mut signals: Vec<Signal> = vec![Signal::default(); cx.circuit.nets.len()];
-    for (id, device) in cx.circuit.devices.iter().enumerate() {
+    let mut signals: Vec<Signal> = vec![Signal::default(); cx.circuit.nets().len()];
+    for (id, device) in cx.circuit.devices().iter().enumerate() {
         for pin in &device.pins {
             match (device.kind, pin.role) {
                 (k, PinRole::Gate | PinRole::Base) if k.is_switch_transistor() => {
@@ -102,7 +102,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         signals: &signals,
     };
     let mut once = Once::default();
-    for (id, device) in cx.circuit.devices.iter().enumerate() {
+    for (id, device) in cx.circuit.devices().iter().enumerate() {
         let Some(element) = cx.netlist.elements.get(device.element) else {
             continue;
         };
@@ -162,7 +162,7 @@ impl Ctx<'_, '_> {
             || self.index.on(net).iter().any(|&(d, _)| {
                 self.cx
                     .circuit
-                    .devices
+                    .devices()
                     .get(d)
                     .is_some_and(|x| x.kind == Kind::VoltageSource)
             })
@@ -182,7 +182,7 @@ impl Ctx<'_, '_> {
             || self.index.on(net).iter().any(|&(d, pin)| {
                 self.cx
                     .circuit
-                    .devices
+                    .devices()
                     .get(d)
                     .and_then(|x| x.pins.get(pin))
                     .is_some_and(|p| matches!(p.role, PinRole::Source | PinRole::Emitter))
@@ -199,7 +199,7 @@ impl Ctx<'_, '_> {
 
     /// What a resistor does to a 555's timing under a changed value: "runs at 14.4 kHz".
     fn timing_effect(&self, timer: DeviceId, part: DeviceId, value: f64) -> Option<(String, f64)> {
-        let device = self.cx.circuit.devices.get(timer)?;
+        let device = self.cx.circuit.devices().get(timer)?;
         let pick = |id: DeviceId| {
             if id == part {
                 Some(value)
@@ -360,7 +360,7 @@ impl Ctx<'_, '_> {
                 let own_source = self
                     .cx
                     .circuit
-                    .devices
+                    .devices()
                     .get(switch)
                     .and_then(|s| s.pin(PinRole::Source).or(s.pin(PinRole::Emitter)));
                 if far_fixed || far == own_source {

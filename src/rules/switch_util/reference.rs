@@ -31,12 +31,12 @@ pub fn joins(kind: Kind, letter: char, role: PinRole) -> bool {
 /// on a gate or base net (a pull-down from the gate to a switch's source is not a shared ground).
 /// `apart` is `None` when the circuit has no transistor switch.
 pub fn sections(cx: &RuleContext<'_>) -> (UnionFind<usize>, Option<UnionFind<usize>>) {
-    let nets = cx.circuit.nets.len();
+    let nets = cx.circuit.nets().len();
     let mut gate_net = vec![false; nets];
     let mut any_switch = false;
     for device in cx
         .circuit
-        .devices
+        .devices()
         .iter()
         .filter(|d| d.kind.is_switch_transistor())
     {
@@ -53,7 +53,7 @@ pub fn sections(cx: &RuleContext<'_>) -> (UnionFind<usize>, Option<UnionFind<usi
     }
     let mut sets = UnionFind::<usize>::new(nets);
     let mut held_back = Vec::new();
-    for device in &cx.circuit.devices {
+    for device in cx.circuit.devices() {
         let passive = matches!(
             device.kind,
             Kind::Resistor | Kind::Potentiometer | Kind::Inductor
@@ -106,14 +106,14 @@ pub fn supplied_sections(cx: &RuleContext<'_>, sets: &UnionFind<usize>) -> usize
     let mut first = None;
     let grounds = cx
         .circuit
-        .nets
+        .nets()
         .iter()
         .enumerate()
         .filter(|(_, n)| n.is_ground)
         .map(|(i, _)| i);
     let sources = cx
         .circuit
-        .devices
+        .devices()
         .iter()
         .filter(|d| d.kind == Kind::VoltageSource)
         .flat_map(|d| d.pins.iter().map(|p| p.net));
@@ -130,12 +130,12 @@ pub fn supplied_sections(cx: &RuleContext<'_>, sets: &UnionFind<usize>) -> usize
 
 /// The net a driver's output is referenced to.
 pub fn driver_reference(cx: &RuleContext<'_>, id: DeviceId, driven: NetId) -> Option<NetId> {
-    let device = cx.circuit.devices.get(id)?;
+    let device = cx.circuit.devices().get(id)?;
     match device.kind {
         k if k.is_timer() => device.pin(PinRole::Gnd),
         Kind::LogicOutput => device
             .pin(PinRole::Gnd)
-            .or_else(|| cx.circuit.nets.iter().position(|n| n.is_ground)),
+            .or_else(|| cx.circuit.nets().iter().position(|n| n.is_ground)),
         Kind::VoltageSource => device.pins.iter().map(|p| p.net).find(|&n| n != driven),
         Kind::ControlledSource => device.pin(PinRole::Neg),
         Kind::Nmos | Kind::Pmos => device.pin(PinRole::Source),
@@ -160,7 +160,7 @@ pub fn gate_driver(
         let driver = facts.driver.as_ref()?.device;
         let net = cx
             .circuit
-            .devices
+            .devices()
             .get(driver)?
             .pins
             .first()
@@ -177,7 +177,7 @@ pub fn gate_driver(
                 && !matches!(role, PinRole::Vcc | PinRole::Gnd)
                 && cx
                     .circuit
-                    .devices
+                    .devices()
                     .get(*d)
                     .is_some_and(|x| x.kind != Kind::Unknown)
         });
@@ -203,7 +203,7 @@ pub struct Unreferenced {
 pub fn unreferenced_drives(cx: &RuleContext<'_>, apart: &UnionFind<usize>) -> Vec<Unreferenced> {
     let tracer = Tracer::new(cx);
     let mut found = Vec::new();
-    for (id, device) in cx.circuit.devices.iter().enumerate() {
+    for (id, device) in cx.circuit.devices().iter().enumerate() {
         if !device.kind.is_switch_transistor() {
             continue;
         }
