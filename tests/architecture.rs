@@ -211,6 +211,46 @@ fn no_rule_imports_another_rule() {
     assert!(problems.is_empty(), "{}", problems.join("\n"));
 }
 
+/// A rule's findings take their severity from its identity: outside the `RULE` declaration a
+/// rule module names a severity only to compare with one, or through `RULE.grade(...)` (which
+/// keeps it among the grades the rule declares); an ungraded finding says `RULE.severity()`.
+#[test]
+fn a_rule_chooses_severity_through_its_identity() {
+    let mut problems = Vec::new();
+    for file in rule_modules().values() {
+        let text = std::fs::read_to_string(file).unwrap_or_default();
+        let mut in_declaration = false;
+        for (line, code) in code_lines(&text) {
+            if code.starts_with("pub const RULE: Rule =") {
+                in_declaration = true;
+            }
+            if in_declaration {
+                in_declaration = code != "};";
+                continue;
+            }
+            let mut rest = code;
+            while let Some(at) = rest.find("Severity::") {
+                let before = rest[..at].trim_end();
+                let after = &rest[at..];
+                let compared = before.ends_with("==") || before.ends_with("!=");
+                let graded = before.ends_with("RULE.grade(");
+                let pattern = after
+                    .split_once(char::is_whitespace)
+                    .is_some_and(|(_, tail)| tail.trim_start().starts_with("=>"));
+                if !(compared || graded || pattern) {
+                    problems.push(format!(
+                        "{}:{line}: a severity chosen outside the rule's identity; use \
+                         `RULE.severity()` or `RULE.grade(..)`",
+                        file.display()
+                    ));
+                }
+                rest = &after["Severity::".len()..];
+            }
+        }
+    }
+    assert!(problems.is_empty(), "{}", problems.join("\n"));
+}
+
 #[test]
 fn every_rule_module_is_registered_once() {
     let registry = std::fs::read_to_string(src().join("rules/mod.rs")).unwrap();

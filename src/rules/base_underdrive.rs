@@ -119,12 +119,12 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
     let hfe_min = rated(cx, sw.device, "hfe_min").map(|h| h.value);
     let forced = ic / ib.max(f64::MIN_POSITIVE);
     let severity = if active {
-        Severity::Error
+        RULE.grade(Severity::Error)
     } else {
         match hfe_min {
             Some(h) if forced <= h / 2.0 => return None,
-            Some(_) => Severity::Warning,
-            None => Severity::Note,
+            Some(_) => RULE.grade(Severity::Warning),
+            None => RULE.grade(Severity::Note),
         }
     };
     if active {

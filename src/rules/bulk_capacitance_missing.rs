@@ -222,7 +222,7 @@ fn finding(
             Some(dv),
         )
     };
-    let mut f = finding_at(RULE, Severity::Warning, cx, supply, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, supply, message)?;
     for s in switches {
         f = label(
             f,

@@ -47,9 +47,9 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &CapacitorFacts) -> Op
         (r.min.abs(), &r.min_state)
     };
     let severity = if v > rating.value {
-        Severity::Error
+        RULE.grade(Severity::Error)
     } else if v > rating.value / DERATING {
-        Severity::Warning
+        RULE.grade(Severity::Warning)
     } else {
         return None;
     };

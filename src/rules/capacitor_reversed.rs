@@ -52,7 +52,7 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &CapacitorFacts) -> Op
         net_name(cx, neg),
         facts.voltage_v.min_state
     );
-    let mut f = finding_at(RULE, Severity::Error, cx, id, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, id, message)?;
     for net in [pos, neg] {
         if let Some(s) = index.supply_on(cx, net) {
             f = label(

@@ -64,7 +64,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         out.push(
             finding_at(
                 RULE,
-                Severity::Warning,
+                RULE.severity(),
                 element,
                 format!(
                     "{} ({}) has no capacitor across its supply pins VCC (net `{v}`) and GND \

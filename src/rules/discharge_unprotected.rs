@@ -66,9 +66,9 @@ fn overcurrent(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
         _ => false,
     };
     let severity = if dead_short || current.max > max.value {
-        Severity::Error
+        RULE.grade(Severity::Error)
     } else if current.max > rated.value {
-        Severity::Warning
+        RULE.grade(Severity::Warning)
     } else {
         return None;
     };
@@ -236,7 +236,7 @@ fn dump(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
         at_state(t.discharge_dump_state.as_deref().unwrap_or("")),
         format_si(peak, "A"),
     );
-    let mut f = finding_at(RULE, Severity::Note, cx, diode, message)?;
+    let mut f = finding_at(RULE, RULE.grade(Severity::Note), cx, diode, message)?;
     f = label(
         f,
         cx,

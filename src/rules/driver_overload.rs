@@ -161,7 +161,7 @@ fn finding(cx: &RuleContext<'_>, id: DeviceId, draws: Vec<Draw>) -> Option<Findi
         Some(Draw::Base { switch, .. }) => *switch,
         None => id,
     };
-    let mut f = finding_at(RULE, Severity::Error, cx, primary, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, primary, message)?;
     f = label(
         f,
         cx,

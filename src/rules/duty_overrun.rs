@@ -60,7 +60,7 @@ fn overrun(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
     };
 
     let target = timing_part(cx, t).unwrap_or(t.device);
-    let mut f = finding_at(RULE, Severity::Warning, cx, target, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, target, message)?;
     f = label(f, cx, t.device, &format!("{timer}: the one-shot"));
     f = label(
         f,

@@ -43,7 +43,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             }
             finding_at(
                 RULE,
-                Severity::Warning,
+                RULE.severity(),
                 element,
                 format!(
                     "{} has all {} terminals on net `{name}`: it carries no current and does \
@@ -63,7 +63,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             };
             let mut f = Finding::new(
                 RULE,
-                Severity::Warning,
+                RULE.severity(),
                 step.span,
                 format!(
                     "instance {} connects both ends of {} to net `{name}`: inside this instance \

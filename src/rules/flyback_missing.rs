@@ -141,7 +141,7 @@ fn finding(
         ));
     }
 
-    let mut f = finding_at(RULE, Severity::Error, cx, load, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, load, message)?;
     f = label(
         f,
         cx,

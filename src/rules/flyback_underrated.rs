@@ -101,7 +101,7 @@ impl Diode<'_, '_> {
         let d = self.name();
         let (severity, why) = if vrrm.value < v {
             (
-                Severity::Error,
+                RULE.grade(Severity::Error),
                 format!(
                     "below the rail itself: it breaks down every time {} turns on",
                     name(self.cx, self.sw.device)
@@ -109,7 +109,7 @@ impl Diode<'_, '_> {
             )
         } else {
             (
-                Severity::Warning,
+                RULE.grade(Severity::Warning),
                 "below twice the rail (common practice: the rail rings and spikes at each switching edge)".to_string(),
             )
         };
@@ -180,7 +180,7 @@ impl Diode<'_, '_> {
             duty_text(duty),
             format_si(rating.value, "A"),
         );
-        let f = self.finding(Severity::Warning, message)?;
+        let f = self.finding(RULE.grade(Severity::Warning), message)?;
         Some(
             f.with_help(format!("replace {d} with {}", self.hint(avg.max(i_on))))
                 .with_value("if_avg", rating.value, "A", rating.source)
@@ -211,7 +211,7 @@ impl Diode<'_, '_> {
             format_si(rating.2.value, "A"),
             rating.1,
         );
-        let f = self.finding(Severity::Warning, message)?;
+        let f = self.finding(RULE.grade(Severity::Warning), message)?;
         Some(
             f.with_help(format!("replace {d} with {}", self.hint(i_on)))
                 .with_value(rating.0, rating.2.value, "A", rating.2.source)
@@ -240,7 +240,7 @@ impl Diode<'_, '_> {
         );
         let amps = self.on_current().map_or(0.0, |i| i.0);
         let rail_v = rail(self.cx, self.sw).map_or(0.0, |r| r.v.max);
-        let f = self.finding(Severity::Warning, message)?;
+        let f = self.finding(RULE.grade(Severity::Warning), message)?;
         Some(
             f.with_help(format!(
                 "replace {d} with {}: a Schottky has no reverse recovery; or use a fast-recovery \

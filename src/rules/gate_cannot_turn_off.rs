@@ -67,9 +67,9 @@ fn finding(
         if reported_as_shoot_through(cx, index, sw) {
             return None;
         }
-        Severity::Error
+        RULE.grade(Severity::Error)
     } else if v > 0.5 * th.value {
-        Severity::Warning
+        RULE.grade(Severity::Warning)
     } else {
         return None;
     };

@@ -158,7 +158,7 @@ fn report(
     };
     let mut finding = finding_at(
         RULE,
-        Severity::Warning,
+        RULE.severity(),
         element,
         format!(
             "the {gate_word} of {} (net `{g}`) {why}, and no resistor ties it to its \

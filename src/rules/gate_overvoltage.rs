@@ -69,7 +69,7 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
         format_si(vgs, "V"),
         format_si(max.value, "V")
     );
-    let mut f = finding_at(RULE, Severity::Error, cx, sw.device, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, sw.device, message)?;
     if let Some(d) = &sw.driver {
         f = label(
             f,

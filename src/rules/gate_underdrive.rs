@@ -138,7 +138,7 @@ fn follower(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding> 
         )),
         (None, None) => message.push_str(", in its linear region instead of switching"),
     }
-    let mut f = finding_at(RULE, Severity::Error, cx, sw.device, message)?;
+    let mut f = finding_at(RULE, RULE.grade(Severity::Error), cx, sw.device, message)?;
     if let Some(d) = &sw.driver {
         f = label(
             f,
@@ -250,7 +250,7 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
     let (severity, message) = if vgs < th_min.value {
         let load = load_device(cx, sw).map_or_else(|| "its load".to_string(), |l| name(cx, l));
         (
-            Severity::Error,
+            RULE.grade(Severity::Error),
             format!(
                 "{s}'s gate gets only {}{from} ({state}): below its lowest threshold of {}, so \
                  {s} never turns on and {load} never runs; it needs {} ({reason_short})",
@@ -275,7 +275,7 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
                 format_si(p.max, "W")
             ));
         }
-        (Severity::Error, m)
+        (RULE.grade(Severity::Error), m)
     } else if vgs < RATED_SHARE * rated.value {
         let mut m = format!(
             "{s}'s gate gets {}{from} ({state}), below the {} its on-resistance is rated at",
@@ -296,7 +296,7 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
                 m.push_str(&format!(" instead of {}", format_si(rds.value, "Ω")));
             }
         }
-        (Severity::Note, m)
+        (RULE.grade(Severity::Note), m)
     } else {
         return None;
     };

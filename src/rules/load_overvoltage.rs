@@ -53,9 +53,9 @@ fn finding(
     let own_switch = load.switch.and_then(|s| switches.get(s));
     let starved = load.full_on_v.is_some();
     let severity = if eff > EFFECTIVE_ERROR * r || pk > PEAK_ERROR * r {
-        Severity::Error
+        RULE.grade(Severity::Error)
     } else if eff > EFFECTIVE_WARNING * r || pk > PEAK_WARNING * r {
-        Severity::Warning
+        RULE.grade(Severity::Warning)
     } else {
         return None;
     };

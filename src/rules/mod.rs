@@ -70,6 +70,24 @@ pub struct Rule {
     pub check: Option<fn(&RuleContext<'_>, &mut Vec<Finding>)>,
 }
 
+impl Rule {
+    /// The severity of a finding of an ungraded rule: the one its identity declares.
+    pub const fn severity(&self) -> Severity {
+        self.default_severity
+    }
+
+    /// The severity of a graded finding: `wanted` when the rule's identity lists it among the
+    /// grades it gives, else the rule's default. A finding never carries a severity the rule
+    /// does not declare, so `kickback rules` always tells the whole range.
+    pub fn grade(&self, wanted: Severity) -> Severity {
+        if wanted == self.default_severity || self.grades.contains(&wanted) {
+            wanted
+        } else {
+            self.default_severity
+        }
+    }
+}
+
 impl From<Rule> for String {
     fn from(rule: Rule) -> String {
         rule.id.to_string()

@@ -98,7 +98,7 @@ fn missing(cx: &RuleContext<'_>, element: &FlatElement, name: &str, uses: usize)
         message.push_str(&format!(" ({uses} elements use it)"));
     }
     message.push_str(": a simulator stops here, and kickback cannot tell what the part is");
-    let mut finding = finding_at(RULE, Severity::Error, element, message);
+    let mut finding = finding_at(RULE, RULE.grade(Severity::Error), element, message);
     if let Some(model) = elsewhere {
         finding = finding.with_label(model.span, format!("`{}` is defined here", model.name));
     }
@@ -189,9 +189,9 @@ fn blame_missing_includes(
     };
     let project_file = missing.iter().any(|m| !is_absolute(&m.path));
     let severity = if names.is_empty() || !project_file {
-        Severity::Note
+        RULE.grade(Severity::Note)
     } else {
-        Severity::Warning
+        RULE.grade(Severity::Warning)
     };
     let place = if paths.len() == 1 {
         "put the file where the path points (relative to this netlist) or correct the path"

@@ -53,7 +53,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         let free = free_name(&name, scope, names);
         let mut finding = Finding::new(
             RULE,
-            Severity::Error,
+            RULE.severity(),
             here,
             format!(
                 "`{name}` is defined twice (SPICE names are case-insensitive): a simulator \

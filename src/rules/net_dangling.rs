@@ -132,7 +132,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         };
         let mut finding = finding_at(
             RULE,
-            Severity::Warning,
+            RULE.severity(),
             element,
             format!(
                 "net `{name}`{elsewhere} has a single connection ({} node {}): nothing else is \
@@ -228,7 +228,7 @@ fn grouped(element: &crate::netlist::FlatElement, line: &LineDangling) -> Findin
     let rest = line.nets.saturating_sub(named.len());
     finding_at(
         RULE,
-        Severity::Warning,
+        RULE.severity(),
         element,
         format!(
             "{} nets on {}'s line have a single connection: {} and {rest} more; nothing else is \

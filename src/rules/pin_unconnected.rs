@@ -86,7 +86,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             )
         };
         out.push(
-            finding_at(RULE, Severity::Warning, element, message)
+            finding_at(RULE, RULE.severity(), element, message)
                 .with_value(
                     "open_pins",
                     open.len() as f64,

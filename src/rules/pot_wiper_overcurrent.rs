@@ -89,7 +89,7 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Opt
         format_si(amps, "A"),
         format_si(limit.value, "A")
     );
-    let mut f = finding_at(RULE, Severity::Warning, cx, id, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, id, message)?;
     let (timer, rail) = context(cx, index, id);
     if let Some(t) = timer {
         f = label(f, cx, t, "its timing network runs through the wiper");

@@ -267,7 +267,7 @@ fn report(
     };
     let mut finding = finding_at(
         RULE,
-        Severity::Note,
+        RULE.severity(),
         element,
         format!(
             "{} {} switched at {at} (from {}), inside the audible band of 20 Hz–20 kHz: the \

@@ -73,7 +73,7 @@ fn chopped(cx: &RuleContext<'_>, switches: &SwitchIndex<'_>, load: &LoadFacts) -
             duty_text(duty)
         ));
     }
-    let mut finding = finding_at(RULE, Severity::Warning, cx, load.device, message)?;
+    let mut finding = finding_at(RULE, RULE.severity(), cx, load.device, message)?;
     let switch = load.switch.and_then(|s| switches.get(s));
     let driver = switch
         .and_then(|s| s.driver.as_ref())
@@ -131,7 +131,7 @@ fn slow_gate(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
             format_si(p, "W")
         ));
     }
-    let mut finding = finding_at(RULE, Severity::Warning, cx, sw.device, message)?;
+    let mut finding = finding_at(RULE, RULE.severity(), cx, sw.device, message)?;
     if let Some(d) = &sw.driver {
         finding = label(finding, cx, d.device, &format!("drives {s}'s gate"));
         for &r in &d.network {

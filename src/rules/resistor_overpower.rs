@@ -81,7 +81,7 @@ fn linear_stage_note(
         },
         facts.stage_reason
     );
-    let mut f = finding_at(RULE, Severity::Note, cx, first, message)?;
+    let mut f = finding_at(RULE, RULE.grade(Severity::Note), cx, first, message)?;
     for &(other, _) in &resistors[1..] {
         f = label(f, cx, other, "also in this stage's bias");
     }
@@ -178,9 +178,9 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Opt
         return None;
     }
     let severity = if p > rating.value {
-        Severity::Error
+        RULE.grade(Severity::Error)
     } else if p > DERATING * rating.value {
-        Severity::Warning
+        RULE.grade(Severity::Warning)
     } else {
         return None;
     };
@@ -249,9 +249,9 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Opt
     // Where the rating is only assumed, the verdict stands only if it would with the largest
     // rating an unstated part plausibly has.
     let holds_at = if p > UNSTATED_RATING_MAX_W {
-        Some(Severity::Error)
+        Some(RULE.grade(Severity::Error))
     } else if p > DERATING * UNSTATED_RATING_MAX_W {
-        Some(Severity::Warning)
+        Some(RULE.grade(Severity::Warning))
     } else {
         None
     };

@@ -123,7 +123,7 @@ impl Leg<'_, '_> {
             format_si(th.value, "V"),
             self.rail_text()
         );
-        let f = finding_at(RULE, Severity::Error, cx, stuck.device, message)?;
+        let f = finding_at(RULE, RULE.grade(Severity::Error), cx, stuck.device, message)?;
         let f = self.with_context(f, stuck, other);
         Some(
             f.with_help(format!(
@@ -184,7 +184,13 @@ impl Leg<'_, '_> {
             format_si(ta.value, "V"),
             format_si(tb.value, "V"),
         );
-        let f = finding_at(RULE, Severity::Warning, cx, first.device, message)?;
+        let f = finding_at(
+            RULE,
+            RULE.grade(Severity::Warning),
+            cx,
+            first.device,
+            message,
+        )?;
         let f = self.with_context(f, first, second);
         Some(
             f.with_help(
@@ -217,7 +223,7 @@ impl Leg<'_, '_> {
         let (s, o) = (name(cx, self.a.device), name(cx, self.b.device));
         let (severity, message, value) = if (wa.period - wb.period).abs() > 1e-9 * wa.period {
             (
-                Severity::Error,
+                RULE.grade(Severity::Error),
                 format!(
                     "{s} and {o} are driven by PULSE sources of different periods ({} and {}): \
                      their on-times drift into each other and both conduct, shorting {} to ground",
@@ -239,7 +245,7 @@ impl Leg<'_, '_> {
             // stretch where both switches are fully on.
             if overlap > edge.max(1e-9 * wa.period) {
                 (
-                    Severity::Error,
+                    RULE.grade(Severity::Error),
                     format!(
                         "{s} and {o} are both on for {} of every {} period: their PULSE drives \
                          overlap and the leg shorts {} to ground",
@@ -251,7 +257,7 @@ impl Leg<'_, '_> {
                 )
             } else if overlap > 0.0 || dead < edge.max(1e-12) {
                 (
-                    Severity::Warning,
+                    RULE.grade(Severity::Warning),
                     format!(
                         "{s} turns on as {o} turns off with no dead time between their PULSE \
                          drives ({} gap, {} edges): both conduct during the edge",

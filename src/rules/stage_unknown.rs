@@ -47,7 +47,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
              the switch checks (freewheel path, {base} drive, dissipation) were not run on it",
             sw.stage_reason
         );
-        let Some(mut f) = finding_at(RULE, Severity::Note, cx, sw.device, message) else {
+        let Some(mut f) = finding_at(RULE, RULE.severity(), cx, sw.device, message) else {
             continue;
         };
         if let Some(l) = load {

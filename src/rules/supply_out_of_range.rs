@@ -108,8 +108,8 @@ fn high(
 ) -> Option<Finding> {
     let v = range.max;
     let (severity, limit, what) = match (&limits.abs_max, &limits.max) {
-        (Some(a), _) if v > a.value => (Severity::Error, a, "absolute maximum"),
-        (_, Some(m)) if v > m.value => (Severity::Warning, m, "operating maximum"),
+        (Some(a), _) if v > a.value => (RULE.grade(Severity::Error), a, "absolute maximum"),
+        (_, Some(m)) if v > m.value => (RULE.grade(Severity::Warning), m, "operating maximum"),
         _ => return None,
     };
     let part = name(cx, id);
@@ -177,7 +177,7 @@ fn low(
         range.min_state,
         format_si(min.value, "V")
     );
-    let f = finding_at(RULE, Severity::Warning, cx, id, message)?;
+    let f = finding_at(RULE, RULE.grade(Severity::Warning), cx, id, message)?;
     let help = if kind == Kind::Timer555 && v >= 2.0 {
         format!(
             "use a CMOS 555 (2–15 V), or a supply that stays above {} at the battery's end of life",

@@ -140,7 +140,7 @@ fn across_short(
             net_name(cx, neg)
         )
     };
-    let mut finding = finding_at(RULE, Severity::Error, element, message);
+    let mut finding = finding_at(RULE, RULE.severity(), element, message);
     let dc = spec
         .and_then(|s| s.dc)
         .or(element.value.and_then(|v| v.known()));
@@ -239,7 +239,7 @@ fn fighting(
     }
     let mut finding = finding_at(
         RULE,
-        Severity::Error,
+        RULE.severity(),
         b,
         format!(
             "{} ({}) is in parallel with {} ({}){}: two voltage sources with different values \

@@ -94,7 +94,7 @@ fn no_reference(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     out.push(
         finding_at(
             RULE,
-            Severity::Error,
+            RULE.severity(),
             element,
             format!(
                 "no net of the deck is the reference (`{names}`): every voltage is undefined and \
@@ -213,7 +213,7 @@ fn floating(cx: &RuleContext<'_>, section: &Section, ground: &str) -> Option<Fin
         let ret = device.pin(PinRole::Neg).map_or("?", |n| net_name(cx, n));
         finding_at(
             RULE,
-            Severity::Error,
+            RULE.severity(),
             element,
             format!(
                 "{}{volts} and the nets it feeds ({nets}) have no DC path to the reference \
@@ -230,7 +230,7 @@ fn floating(cx: &RuleContext<'_>, section: &Section, ground: &str) -> Option<Fin
     } else {
         finding_at(
             RULE,
-            Severity::Error,
+            RULE.severity(),
             element,
             format!(
                 "{nets} {} no DC path to the reference `{ground}`; {through}: the DC voltage \
@@ -298,7 +298,7 @@ fn mismatched_references(
         out.push(
             finding_at(
                 RULE,
-                Severity::Error,
+                RULE.severity(),
                 element,
                 format!(
                     "{}'s {terminal} is on `{s_name}`, but its {drive} driver {} is referenced \

@@ -109,7 +109,7 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
         loss.max_state,
         format_si(limit.value, "W")
     );
-    let mut f = finding_at(RULE, Severity::Warning, cx, sw.device, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, sw.device, message)?;
     if let Some(l) = load_device(cx, sw) {
         f = label(f, cx, l, "the load whose current it carries");
     }

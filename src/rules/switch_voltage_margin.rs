@@ -126,9 +126,9 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
     let s = name(cx, sw.device);
     let label_v = if k.is_bjt() { "V_CE" } else { "V_DS" };
     let severity = if rating.value < st.volts {
-        Severity::Error
+        RULE.grade(Severity::Error)
     } else {
-        Severity::Warning
+        RULE.grade(Severity::Warning)
     };
     let message = if st.across_switch && severity == Severity::Error {
         format!(

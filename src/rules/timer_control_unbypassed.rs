@@ -70,7 +70,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         out.push(
             finding_at(
                 RULE,
-                Severity::Note,
+                RULE.severity(),
                 element,
                 format!(
                     "CTRL of {} (net `{c}`) has no capacitor to ground: it is the tap of the \

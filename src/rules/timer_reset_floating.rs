@@ -43,7 +43,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         let finding = if alone {
             finding_at(
                 RULE,
-                Severity::Warning,
+                RULE.severity(),
                 element,
                 format!(
                     "RESET of {} (net `{r}`) connects to nothing: a floating RESET picks up noise \
@@ -64,7 +64,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
                 .collect();
             let mut f = finding_at(
                 RULE,
-                Severity::Warning,
+                RULE.severity(),
                 element,
                 format!(
                     "RESET of {} (net `{r}`) is tied to nothing that holds it{}: it floats, picks \

@@ -106,7 +106,7 @@ fn stuck(cx: &RuleContext<'_>, t: &TimerFacts, s: &StuckPhase) -> Option<Finding
         },
     };
 
-    let mut f = finding_at(RULE, Severity::Error, cx, target, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, target, message)?;
     f = label(f, cx, t.device, &format!("{timer}: its {phase} never ends"));
     for &d in s.devices.iter().filter(|&&d| d != target).take(4) {
         f = label(f, cx, d, "in the capacitor's path in that phase");

@@ -131,7 +131,7 @@ fn overlap(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
         }
     }
 
-    let mut f = finding_at(RULE, Severity::Error, cx, target, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, target, message)?;
     f = label(
         f,
         cx,

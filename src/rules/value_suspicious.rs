@@ -282,7 +282,7 @@ impl Ctx<'_, '_> {
         let (written, intended) = (format_si(r, "Ω"), format_si(mega, "Ω"));
         let mut finding = finding_at(
             RULE,
-            Severity::Warning,
+            RULE.severity(),
             element,
             format!(
                 "{} = `{text}` reads as {written}: in SPICE `M` is milli, mega is `MEG`. {}",
@@ -420,7 +420,7 @@ impl Ctx<'_, '_> {
         };
         finding_at(
             RULE,
-            Severity::Warning,
+            RULE.severity(),
             element,
             format!(
                 "{} = {} is under 1 Ω in the timing network of {name}{effect}; below about 1 kΩ \
@@ -446,7 +446,7 @@ impl Ctx<'_, '_> {
         Some(
             finding_at(
                 RULE,
-                Severity::Warning,
+                RULE.severity(),
                 element,
                 format!(
                     "{} has a track resistance of {}: pots are 100 Ω to 1 MΩ (common practice), \
@@ -515,7 +515,7 @@ impl Ctx<'_, '_> {
         Some(
             finding_at(
                 RULE,
-                Severity::Warning,
+                RULE.severity(),
                 element,
                 format!("{} = `{text}` {reading}{effect}", element.path),
             )
