@@ -138,6 +138,7 @@ mod names;
 pub mod parts;
 pub mod pins;
 mod query;
+pub mod sections;
 mod unknown;
 mod wires;
 

@@ -2,16 +2,15 @@
 //! whose gate driver and source sit in different DC sections (two supplies whose negatives were
 //! never joined). See `rules/supply-unreferenced.md`.
 //!
-//! Sections are the nets joined by DC-conducting pins (see [`joins`]). A section that is only a
+//! Sections are the nets joined by DC-conducting pins (see [`joins_reference`]). A section that is only a
 //! gate or a 555 RESET behind capacitors is left to `gate-floating` and `timer-reset-floating`;
 //! a lone net with one pin to `net-dangling` and `pin-unconnected`.
 
 use super::hygiene_util::{device_element, finding_at, net_name, shown};
-use super::switch_util::reference::{
-    joins, sections, supplied_sections, unreferenced_drives, Unreferenced,
-};
+use super::switch_util::reference::{unreferenced_drives, Unreferenced};
 use super::Rule;
 use super::RuleContext;
+use crate::circuit::sections::joins_reference;
 use crate::circuit::{DeviceId, Kind, NetId, PinRole};
 use crate::diagnostic::{Finding, Severity};
 use crate::rules::units::format_si;
@@ -55,7 +54,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         no_reference(cx, out);
         return;
     };
-    let (sets, apart) = sections(cx);
+    let (sets, apart) = cx.circuit.dc_sections(cx.netlist);
     let mut referenced = vec![false; count];
     for (i, _) in cx
         .circuit
@@ -146,7 +145,7 @@ fn floating_sections(
                 s.pins += 1;
             }
             s.unknown_part |= cx.circuit.unknown_part(id).is_some();
-            let conducts = joins(device.kind, letter, pin.role);
+            let conducts = joins_reference(device.kind, letter, pin.role);
             if conducts {
                 s.conducting_pins += 1;
                 s.first_conducting.get_or_insert(id);
@@ -267,7 +266,7 @@ fn mismatched_references(
     explained: &mut HashSet<usize>,
     out: &mut Vec<Finding>,
 ) {
-    if supplied_sections(cx, apart) <= 1 {
+    if cx.circuit.supplied_sections(apart) <= 1 {
         // Every supply and the reference share one section: every driver does too.
         return;
     }
