@@ -3,7 +3,7 @@
 
 use super::units::{format_si, sig3};
 use super::RuleContext;
-use crate::analysis::{Range, TimerFacts};
+use crate::analysis::{part_values, Range, TimerFacts};
 use crate::circuit::{DeviceId, Kind, Rated};
 use crate::netlist::FlatElement;
 
@@ -66,24 +66,14 @@ pub fn percent(fraction: f64) -> String {
     format!("{} %", sig3(fraction * 100.0))
 }
 
-/// A device's resistance as the netlist gives it (resistor value or pot track).
+/// A device's resistance as the analysis reads it (resistor value or pot track).
 pub fn ohms_of(cx: &RuleContext<'_>, id: DeviceId) -> Option<f64> {
-    let device = cx.circuit.devices().get(id)?;
-    device.data.value("resistance").or_else(|| {
-        let e = element(cx, id)?;
-        e.value
-            .and_then(|v| v.known())
-            .or_else(|| e.param("r").and_then(|v| v.known()))
-    })
+    part_values::resistance(cx.netlist, cx.circuit.devices().get(id)?)
 }
 
-/// A capacitor's value as the netlist gives it.
+/// A capacitor's value as the analysis reads it.
 pub fn farads_of(cx: &RuleContext<'_>, id: DeviceId) -> Option<f64> {
-    let device = cx.circuit.devices().get(id)?;
-    device
-        .data
-        .value("capacitance")
-        .or_else(|| element(cx, id)?.value.and_then(|v| v.known()))
+    part_values::capacitance(cx.netlist, cx.circuit.devices().get(id)?)
 }
 
 pub fn is_pot(cx: &RuleContext<'_>, id: DeviceId) -> bool {

@@ -68,16 +68,7 @@ fn conducts(kind: Kind) -> bool {
 
 /// A capacitor's value: its part data, else the element's value.
 pub fn capacitance(cx: &Context<'_>, device: &Device) -> Option<f64> {
-    device
-        .data
-        .value("capacitance")
-        .or_else(|| {
-            let e = cx.netlist.elements.get(device.element)?;
-            e.value
-                .and_then(|v| v.known())
-                .or_else(|| e.param("c").and_then(|v| v.known()))
-        })
-        .filter(|c| c.is_finite() && *c > 0.0)
+    crate::analysis::part_values::capacitance(cx.netlist, device)
 }
 
 fn is_fixed(cx: &Context<'_>, net: NetId) -> bool {
