@@ -201,7 +201,40 @@ fn no_rule_imports_another_rule() {
                 if paths.iter().any(|p| code.contains(p.as_str())) {
                     problems.push(format!(
                         "{}:{line}: rule `{name}` uses rule `{other}`; move what they share \
-                         into the analysis (a fact) or into `rules/support`",
+                         into the analysis (a fact) or into `rules/support/`",
+                        file.display()
+                    ));
+                }
+            }
+        }
+    }
+    assert!(problems.is_empty(), "{}", problems.join("\n"));
+}
+
+/// The rules' shared helpers (`src/rules/support/`) never depend on a rule: what a helper needs
+/// from a rule is either a fact (then it belongs in the analysis) or belongs in the helper.
+#[test]
+fn rule_support_never_depends_on_a_rule() {
+    let modules = rule_modules();
+    let mut files = Vec::new();
+    rust_files(&src().join("rules/support"), &mut files);
+    files.sort();
+    assert!(!files.is_empty(), "src/rules/support not found");
+    let mut problems = Vec::new();
+    for file in &files {
+        let text = std::fs::read_to_string(file).unwrap_or_default();
+        for (line, code) in code_lines(&text) {
+            for name in modules.keys() {
+                let used = ["rules::", "super::super::", "support::super::"]
+                    .iter()
+                    .any(|prefix| {
+                        ["::", ",", "}", ";"]
+                            .iter()
+                            .any(|end| code.contains(format!("{prefix}{name}{end}").as_str()))
+                    });
+                if used {
+                    problems.push(format!(
+                        "{}:{line}: rules/support uses rule `{name}`",
                         file.display()
                     ));
                 }

@@ -2,7 +2,7 @@
 //! no bulk capacitor, or the energy a bridge returns at turn-off would pump it by more than
 //! 10 %. See `rules/bulk-capacitance-missing.md`.
 
-use super::switch_util::{
+use super::support::switch::{
     cap_e6, finding_at, is_ground, is_pwm, is_switch, label, load_device, load_of, name,
     next_rating, rail, supply_facts, NetIndex, CAP_VOLTAGES,
 };
@@ -152,7 +152,7 @@ fn finding(
     let mut caps = rail_capacitors(cx, index, net);
     caps.extend(series_stacks(cx, index, net));
     let total = caps.iter().fold(0.0, |sum, (_, c)| sum + c);
-    let rail_name = super::switch_util::net_name(cx, net);
+    let rail_name = super::support::switch::net_name(cx, net);
     // Energy a full bridge hands back to the rail at turn-off: the largest ½·L·I² behind it.
     let returned = switches
         .iter()

@@ -2,7 +2,7 @@
 //! 1/1.5 of it. A capacitor with no `voltage_rating` is not guessed at. See
 //! `rules/capacitor-overvoltage.md`.
 
-use super::switch_util::{finding_at, label, name, next_rating, NetIndex, CAP_VOLTAGES};
+use super::support::switch::{finding_at, label, name, next_rating, NetIndex, CAP_VOLTAGES};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;

@@ -1,7 +1,7 @@
 //! `capacitor-reversed`: a polarized capacitor whose positive terminal (its first node) sits
 //! below its negative one in some state. See `rules/capacitor-reversed.md`.
 
-use super::switch_util::{finding_at, label, name, net_name, NetIndex};
+use super::support::switch::{finding_at, label, name, net_name, NetIndex};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;

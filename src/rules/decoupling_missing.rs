@@ -4,7 +4,7 @@
 //!
 //! A netlist carries no placement, so one capacitor across the pair counts for every IC on it.
 
-use super::hygiene_util::{between, finding_at, net_name, wire_pins, NetIndex};
+use super::support::hygiene::{between, finding_at, net_name, wire_pins, NetIndex};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Kind, NetId, PinRole};
@@ -101,7 +101,7 @@ fn capacitor_across(cx: &RuleContext<'_>, index: &NetIndex<'_>, vcc: NetId, gnd:
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn cap_across_supply_counts_in_either_order() {

@@ -2,7 +2,7 @@
 //! `rules/discharge-unprotected.md`.
 
 use super::eseries::{self, ohms};
-use super::timer_util::{
+use super::support::timer::{
     at_state, element, finding_at, is_pot, is_resistor, label, name, ohms_of, rated_or,
 };
 use super::units::format_si;

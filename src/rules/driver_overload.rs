@@ -2,7 +2,7 @@
 //! than its rating, e.g. a motor hung straight on the pin. See `rules/driver-overload.md`.
 
 use super::eseries::{ohms, round_up, E12};
-use super::switch_util::{drive_level, finding_at, kind, label, name, rated_or, timer_facts};
+use super::support::switch::{drive_level, finding_at, kind, label, name, rated_or, timer_facts};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;

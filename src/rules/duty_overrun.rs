@@ -1,7 +1,7 @@
 //! `duty-overrun`: a one-shot's pulse reaches its trigger period. See `rules/duty-overrun.md`.
 
 use super::eseries::{self, ohms};
-use super::timer_util::{
+use super::support::timer::{
     at_state, farads_of, finding_at, label, name, percent, timing_part, ONE_SHOT_MAX_SHARE,
 };
 use super::units::format_si;

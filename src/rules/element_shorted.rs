@@ -3,7 +3,7 @@
 //!
 //! Voltage sources are left to `supply-shorted`, where a shorted source is an error.
 
-use super::hygiene_util::{finding_at, net_name, Once};
+use super::support::hygiene::{finding_at, net_name, Once};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::Kind;
@@ -120,7 +120,7 @@ fn local_nets(cx: &RuleContext<'_>, element: &FlatElement) -> bool {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn resistor_on_one_net_fires_but_not_a_source() {

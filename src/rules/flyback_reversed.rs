@@ -1,7 +1,7 @@
 //! `flyback-reversed`: a freewheel diode fitted backwards conducts from the rail in the on state
 //! and shorts the supply through the switch. See `rules/flyback-reversed.md`.
 
-use super::switch_util::{
+use super::support::switch::{
     branch_ends, finding_at, is_switch, label, load_device, name, net_name, rail,
 };
 use super::units::format_si;

@@ -1,7 +1,7 @@
 //! `flyback-underrated`: a freewheel diode whose voltage, current or recovery rating does not
 //! fit its load. See `rules/flyback-underrated.md`.
 
-use super::switch_util::{
+use super::support::switch::{
     diode_hint, duty_text, finding_at, is_pwm, is_switch, kind, label, load_device, load_of, name,
     rail, rated,
 };

@@ -8,7 +8,7 @@
 //! is a logic output (high-impedance during reset and while unpowered), or when the gate is
 //! reached only through capacitors, diodes, switches or connectors, or by nothing at all.
 
-use super::hygiene_util::{finding_at, net_name, shown, Trace, Tracer};
+use super::support::hygiene::{finding_at, net_name, shown, Trace, Tracer};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Device, DeviceId, Kind, PinRole};
@@ -209,7 +209,7 @@ fn blocked_reason(cx: &RuleContext<'_>, ids: &[DeviceId]) -> &'static str {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     fn mcu_drive(pull: bool) -> Deck {
         let mut d = Deck::new();

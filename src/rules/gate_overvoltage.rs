@@ -2,7 +2,7 @@
 //! `rules/gate-overvoltage.md`.
 
 use super::eseries::{ohms, round_down, round_up, E12};
-use super::switch_util::{finding_at, is_switch, kind, label, name, polarity, rated_or};
+use super::support::switch::{finding_at, is_switch, kind, label, name, polarity, rated_or};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;

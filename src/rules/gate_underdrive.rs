@@ -6,7 +6,7 @@
 //! therefore needs `V_GS > V_th + √(2·I/k)` just to stay out of saturation; one more volt keeps
 //! its on-resistance low.
 
-use super::switch_util::{
+use super::support::switch::{
     drive_level, finding_at, held_off, in_conduction_sense, is_switch, kind, label, load_device,
     load_of, name, rated_or, saturated_current, shorted_through,
 };
@@ -36,7 +36,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     if cx.analysis.switches.is_empty() {
         return;
     }
-    let unreferenced = super::switch_util::reference::switches_without_reference(cx);
+    let unreferenced = super::support::switch::reference::switches_without_reference(cx);
     for sw in &cx.analysis.switches {
         let Some(k) = kind(cx, sw.device).filter(|k| k.is_mos()) else {
             continue;

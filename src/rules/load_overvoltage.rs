@@ -1,7 +1,7 @@
 //! `load-overvoltage`: a load's effective or peak voltage exceeds its rating. See
 //! `rules/load-overvoltage.md`.
 
-use super::switch_util::{
+use super::support::switch::{
     duty_text, finding_at, label, name, supply_facts, timer_facts, NetIndex, SwitchIndex,
 };
 use super::units::{format_si, percent};

@@ -4,7 +4,7 @@
 //! When an include could not be read, the names left undefined are blamed on it: one warning
 //! per missing file, listing what it would have defined, instead of an error per element.
 
-use super::hygiene_util::{finding_at, Once};
+use super::support::hygiene::{finding_at, Once};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::UnknownPart;

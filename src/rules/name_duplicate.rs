@@ -4,7 +4,7 @@
 //! The finding points at the later line; the earlier one is labelled. When the two come from
 //! different instance lines (two `X` lines with one name), those lines are the ones shown.
 
-use super::hygiene_util::Once;
+use super::support::hygiene::Once;
 use super::Rule;
 use super::RuleContext;
 use crate::diagnostic::{Finding, Severity};
@@ -142,7 +142,7 @@ fn free_name(name: &str, scope: &str, taken: &HashSet<String>) -> String {
 mod tests {
     use super::*;
     use crate::diagnostic::InstanceStep;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
     use crate::source::FileId;
 
     #[test]

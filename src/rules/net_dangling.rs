@@ -5,10 +5,10 @@
 //! connection is a part's pin (a timer, a transistor, a kept subcircuit), which
 //! `pin-unconnected` reports with what that pin does.
 
-use super::hygiene_util::{
+use super::support::hygiene::{
     finding_at, is_no_connect_name, is_part, net_name, wire_is_ground_or_global, wire_pins,
 };
-use super::hygiene_util::{NetIndex, Once};
+use super::support::hygiene::{NetIndex, Once};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::NetId;
@@ -337,7 +337,7 @@ fn closest(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn typo_net_suggests_the_real_one() {

@@ -2,7 +2,7 @@
 //! worst position of its travel. See `rules/pot-wiper-overcurrent.md`.
 
 use super::eseries::{ohms, round_up, E12};
-use super::switch_util::{dc_resistance, finding_at, label, name, timer_facts, NetIndex};
+use super::support::switch::{dc_resistance, finding_at, label, name, timer_facts, NetIndex};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;

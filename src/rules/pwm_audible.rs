@@ -6,7 +6,7 @@
 //! driving timer's RA, RB and C. One finding per frequency-setting driver, at the line whose
 //! value sets the frequency (the PULSE source, the astable's timing capacitor).
 
-use super::hygiene_util::{
+use super::support::hygiene::{
     astable, astable_frequency, capacitance, device_element, finding_at, resistance, shown,
     NetIndex, Tracer,
 };
@@ -418,7 +418,7 @@ fn spice(value: f64) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn fan_at_24_khz_is_quiet_at_2_khz_fires_on_the_capacitor() {

@@ -8,7 +8,7 @@
 //!   capacitance or charge, take more than 5 % of the period: it spends that time half on,
 //!   and the switching loss `½·V·I·(t_r + t_f)·f` follows.
 
-use super::switch_util::{duty_text, finding_at, is_pwm, label, name, SwitchIndex};
+use super::support::switch::{duty_text, finding_at, is_pwm, label, name, SwitchIndex};
 use super::units::{format_si, percent};
 use super::Rule;
 use super::RuleContext;

@@ -2,7 +2,7 @@
 //! state (pot wipers searched over their travel). See `rules/resistor-overpower.md`.
 
 use super::eseries::{ohms, round_up, E12};
-use super::switch_util::{
+use super::support::switch::{
     dc_resistance, element, finding_at, is_ground, kind, label, name, next_rating, rated_or,
     NetIndex, RESISTOR_WATTS,
 };

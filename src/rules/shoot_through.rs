@@ -5,8 +5,8 @@
 //! switch on (error); two separate PULSE drives whose on-times overlap (error); and a shared
 //! drive that passes through the band where both conduct on every edge (warning).
 
-use super::switch_util::{conducts_with_partner, shared, threshold_min};
-use super::switch_util::{
+use super::support::switch::{conducts_with_partner, shared, threshold_min};
+use super::support::switch::{
     element, finding_at, held_off, in_conduction_sense, is_switch, kind, label, name, rail,
     SwitchIndex,
 };
@@ -141,7 +141,7 @@ impl Leg<'_, '_> {
         let cx = self.cx;
         let ka = kind(cx, self.a.device)?;
         let kb = kind(cx, self.b.device)?;
-        if super::switch_util::polarity(ka) != super::switch_util::polarity(kb) {
+        if super::support::switch::polarity(ka) != super::support::switch::polarity(kb) {
             return None;
         }
         let on = in_conduction_sense(self.b.vgs_on_v.as_ref()?, kb);
@@ -308,7 +308,7 @@ fn on_window(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Window> {
             if !passive {
                 return None;
             }
-            Some(super::switch_util::polarity(kind(cx, sw.device)?) > 0.0)
+            Some(super::support::switch::polarity(kind(cx, sw.device)?) > 0.0)
         }
     };
     let Waveform::Pulse {

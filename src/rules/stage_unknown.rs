@@ -6,7 +6,7 @@
 //! whose controller is not in the netlist, or a linear coil driver: rather than guess, one note
 //! says what kickback needs to judge it.
 
-use super::switch_util::{device, finding_at, kind, label, load_device, name, NetIndex};
+use super::support::switch::{device, finding_at, kind, label, load_device, name, NetIndex};
 use super::Rule;
 use super::RuleContext;
 use crate::analysis::Stage;

@@ -1,7 +1,9 @@
 //! `supply-out-of-range`: a part's supply is outside its operating or absolute range at some
 //! supply corner (battery end of life included). See `rules/supply-out-of-range.md`.
 
-use super::switch_util::{finding_at, is_ground, label, name, supply_range, timer_facts, NetIndex};
+use super::support::switch::{
+    finding_at, is_ground, label, name, supply_range, timer_facts, NetIndex,
+};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
@@ -92,7 +94,7 @@ fn finish(
             s,
             &format!(
                 "sets {part}'s supply: {}",
-                super::switch_util::range_text(range.min, range.max, "V")
+                super::support::switch::range_text(range.min, range.max, "V")
             ),
         ),
         None => f,

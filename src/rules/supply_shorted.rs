@@ -6,7 +6,7 @@
 //! nets into one node first, so sources "in parallel" through such links count as parallel.
 //! Equal sources in parallel are not reported: no current flows between them.
 
-use super::hygiene_util::{device_element, finding_at, net_name, shown};
+use super::support::hygiene::{device_element, finding_at, net_name, shown};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Device, DeviceId, Kind, NetId};
@@ -285,7 +285,7 @@ fn fighting(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn source_across_ideal_inductor() {

@@ -6,8 +6,8 @@
 //! gate or a 555 RESET behind capacitors is left to `gate-floating` and `timer-reset-floating`;
 //! a lone net with one pin to `net-dangling` and `pin-unconnected`.
 
-use super::hygiene_util::{device_element, finding_at, net_name, shown};
-use super::switch_util::reference::{unreferenced_drives, Unreferenced};
+use super::support::hygiene::{device_element, finding_at, net_name, shown};
+use super::support::switch::reference::{unreferenced_drives, Unreferenced};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::sections::joins_reference;
@@ -325,7 +325,7 @@ fn mismatched_references(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn clean_fan_is_quiet() {

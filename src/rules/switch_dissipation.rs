@@ -4,7 +4,7 @@
 //! The loss is the analysis's: `I²·Rds(on)·D` with Rds(on) at the actual V_GS and × 1.5 for a
 //! hot die (common practice), or `V_CE·I_C·D` for a BJT, at the worst state and duty.
 
-use super::switch_util::{
+use super::support::switch::{
     duty_text, finding_at, in_conduction_sense, is_switch, kind, label, load_device, name,
     rated_or, shorted_through,
 };

@@ -2,7 +2,7 @@
 //! it sees at turn-off (the rail plus whatever clamps the winding). See
 //! `rules/switch-voltage-margin.md`.
 
-use super::switch_util::{
+use super::support::switch::{
     finding_at, is_switch, kind, label, name, next_rating, rail, rated, VDS_CLASSES,
 };
 use super::units::format_si;

@@ -5,7 +5,7 @@
 //! timers' CTRL pins (a divider resistor, a source, a zener, a transistor) counts as a
 //! deliberate drive.
 
-use super::hygiene_util::{finding_at, is_ground, net_name, NetIndex};
+use super::support::hygiene::{finding_at, is_ground, net_name, NetIndex};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Kind, PinRole};
@@ -96,7 +96,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn bypassed_or_divided_is_quiet_open_fires() {

@@ -5,7 +5,7 @@
 //! output (another timer, a transistor, a logic output: a controller that drives RESET on
 //! purpose is not a wiring mistake).
 
-use super::hygiene_util::{finding_at, net_name, shown, Tracer};
+use super::support::hygiene::{finding_at, net_name, shown, Tracer};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Kind, PinRole};
@@ -105,7 +105,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn reset_on_vcc_is_quiet() {

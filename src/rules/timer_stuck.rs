@@ -1,7 +1,7 @@
 //! `timer-stuck`: a timer phase can never reach its threshold. See `rules/timer-stuck.md`.
 
 use super::eseries::{self, ohms};
-use super::timer_util::{at_state, finding_at, is_pot, is_resistor, label, name, ohms_of};
+use super::support::timer::{at_state, finding_at, is_pot, is_resistor, label, name, ohms_of};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;

@@ -2,7 +2,7 @@
 //! `rules/trigger-overlap.md`.
 
 use super::eseries::{self, ohms};
-use super::timer_util::{
+use super::support::timer::{
     at_state, farads_of, finding_at, is_diode, is_pot, is_resistor, label, name, ohms_of,
     timing_part, ONE_SHOT_MAX_SHARE,
 };

@@ -9,7 +9,7 @@
 //! The message gives both readings and what each does: the 555's frequency or pulse width by the
 //! datasheet equations where the part is an astable's RA/RB/C or a monostable's R/C.
 
-use super::hygiene_util::{
+use super::support::hygiene::{
     astable, astable_frequency, capacitance, device_element, finding_at, monostable,
     monostable_width, net_name, resistance, NetIndex, Once,
 };
@@ -158,7 +158,7 @@ struct Ctx<'c, 'a> {
 impl Ctx<'_, '_> {
     /// The reference, or a net a voltage source sets.
     fn is_fixed(&self, net: NetId) -> bool {
-        crate::rules::hygiene_util::is_ground(self.cx, net)
+        crate::rules::support::hygiene::is_ground(self.cx, net)
             || self.index.on(net).iter().any(|&(d, _)| {
                 self.cx
                     .circuit
@@ -332,7 +332,7 @@ impl Ctx<'_, '_> {
         intended: &str,
     ) -> String {
         if let Some((timer, _)) = self.timer_on(device) {
-            let name = super::hygiene_util::shown(self.cx, timer);
+            let name = super::support::hygiene::shown(self.cx, timer);
             if let (Some((a, _)), Some((b, _))) = (
                 self.timing_effect(timer, id, r),
                 self.timing_effect(timer, id, mega),
@@ -356,7 +356,7 @@ impl Ctx<'_, '_> {
             let far_fixed = far.is_some_and(|n| self.is_fixed(n));
             let far_name = far.map_or("?", |n| net_name(self.cx, n));
             if let Some(switch) = signal.gate() {
-                let name = super::hygiene_util::shown(self.cx, switch);
+                let name = super::support::hygiene::shown(self.cx, switch);
                 let own_source = self
                     .cx
                     .circuit
@@ -377,11 +377,11 @@ impl Ctx<'_, '_> {
                 );
             }
             if let Some((timer, role)) = signal.timer() {
-                let name = super::hygiene_util::shown(self.cx, timer);
+                let name = super::support::hygiene::shown(self.cx, timer);
                 let pin_name = role.as_str().to_ascii_uppercase();
                 let held = match (
                     role,
-                    far.is_some_and(|n| crate::rules::hygiene_util::is_ground(self.cx, n)),
+                    far.is_some_and(|n| crate::rules::support::hygiene::is_ground(self.cx, n)),
                 ) {
                     (PinRole::Reset, true) => ": the timer is held in reset and never runs",
                     (PinRole::Trig, true) => ": the trigger is held low and the output stays high",
@@ -405,7 +405,7 @@ impl Ctx<'_, '_> {
         text: &str,
         timer: DeviceId,
     ) -> Finding {
-        let name = super::hygiene_util::shown(self.cx, timer);
+        let name = super::support::hygiene::shown(self.cx, timer);
         let effect = self
             .timing_effect(timer, id, r)
             .map_or(String::new(), |(a, _)| format!(": as written {name} {a}"));
@@ -498,7 +498,7 @@ impl Ctx<'_, '_> {
         let effect = self
             .timer_on(device)
             .and_then(|(t, _)| {
-                let name = super::hygiene_util::shown(self.cx, t);
+                let name = super::support::hygiene::shown(self.cx, t);
                 let (a, _) = self.timing_effect(t, id, c)?;
                 let (b, _) = self.timing_effect(t, id, micro)?;
                 Some(format!(
@@ -556,7 +556,7 @@ fn resistor_named_as_capacitor(element: &FlatElement, text: &str) -> Option<Stri
 mod tests {
     use super::*;
     use crate::netlist::Num;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn suffixes() {

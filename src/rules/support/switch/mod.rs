@@ -16,13 +16,13 @@ pub use drive::*;
 pub use leg::*;
 pub use ratings::*;
 
-use super::eseries;
-use super::units::{format_si, sig3};
-use super::RuleContext;
 use crate::analysis::{LoadFacts, Range, Stage, SupplyFacts, SwitchFacts, TimerFacts};
 use crate::circuit::{Circuit, Device, DeviceId, Kind, NetId, PinRole, Rated};
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::FlatElement;
+use crate::rules::eseries;
+use crate::rules::units::{format_si, sig3};
+use crate::rules::RuleContext;
 use std::collections::HashMap;
 
 /// The flattened element behind a device.

@@ -1,11 +1,11 @@
 //! Shared pieces of the timer rules: the finding skeleton for a device, labels, names, ratings
 //! with their provenance, and the wording of states and ranges.
 
-use super::units::{format_si, sig3};
-use super::RuleContext;
 use crate::analysis::{part_values, Range, TimerFacts};
 use crate::circuit::{DeviceId, Kind, Rated};
 use crate::netlist::FlatElement;
+use crate::rules::units::{format_si, sig3};
+use crate::rules::RuleContext;
 
 pub fn element<'a>(cx: &RuleContext<'a>, id: DeviceId) -> Option<&'a FlatElement> {
     cx.netlist
@@ -23,7 +23,7 @@ pub fn name(cx: &RuleContext<'_>, id: DeviceId) -> String {
 }
 
 /// Findings and labels on device lines are built the same way for every rule family.
-pub use super::switch_util::{finding_at, label};
+pub use super::switch::{finding_at, label};
 
 /// A timer rating with its provenance, or the kind's documented default.
 pub fn rated_or(cx: &RuleContext<'_>, id: DeviceId, key: &str, bipolar: f64, cmos: f64) -> Rated {

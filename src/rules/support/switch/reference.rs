@@ -4,7 +4,7 @@
 //! (`Circuit::dc_sections`).
 
 use crate::circuit::{Device, DeviceId, Kind, NetId, PinRole};
-use crate::rules::hygiene_util::Tracer;
+use crate::rules::support::hygiene::Tracer;
 use crate::rules::RuleContext;
 use petgraph::unionfind::UnionFind;
 

@@ -4,10 +4,10 @@
 //!
 //! Every rule builds what it needs once per call; each structure is linear in the number of pins.
 
-use super::RuleContext;
 use crate::circuit::{Circuit, Device, DeviceId, Kind, NetId, PinRole};
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::FlatElement;
+use crate::rules::RuleContext;
 use crate::source::Span;
 use std::collections::HashSet;
 
@@ -89,7 +89,7 @@ pub fn wire_is_ground_or_global(cx: &RuleContext<'_>, net: NetId) -> bool {
 
 /// A finding on an element's line, with its instance path and the instance lines that placed it.
 pub fn finding_at(
-    rule: super::Rule,
+    rule: crate::rules::Rule,
     severity: Severity,
     element: &FlatElement,
     message: impl Into<String>,
