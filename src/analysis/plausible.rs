@@ -192,7 +192,7 @@ fn ideal_inductor_currents(
 /// Resistance of the resistors wired in series with an inductor through nets that join only
 /// the two of them: the winding resistance a deck writes as a resistor of its own.
 fn series_ohms(cx: &Context<'_>, inductor: DeviceId) -> f64 {
-    let Some(d) = cx.circuit.devices.get(inductor) else {
+    let Some(d) = cx.circuit.devices().get(inductor) else {
         return 0.0;
     };
     let mut seen = vec![inductor];
@@ -206,7 +206,7 @@ fn series_ohms(cx: &Context<'_>, inductor: DeviceId) -> f64 {
                 continue;
             }
             seen.push(part);
-            let Some(p) = cx.circuit.devices.get(part) else {
+            let Some(p) = cx.circuit.devices().get(part) else {
                 continue;
             };
             if p.kind == Kind::Resistor {
