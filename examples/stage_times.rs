@@ -138,7 +138,7 @@ fn main() {
     println!(
         "{} elements, {} nets, {} findings; rendered {bytes:?} bytes; total {:.1} ms",
         flat.elements.len(),
-        circuit.nets.len(),
+        circuit.nets().len(),
         reports[0].findings.len(),
         total.elapsed().as_secs_f64() * 1e3
     );

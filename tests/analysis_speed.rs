@@ -115,7 +115,7 @@ fn thousand_channels() {
         "{channels} channels, {} devices, CPU time: build {built:?}, context {context:?}, \
          timers {timing:?}, switching {switching_time:?} ({} switches, {} loads), \
          stress {stress_time:?} ({} resistors, {} capacitors)",
-        circuit.devices.len(),
+        circuit.devices().len(),
         switches.len(),
         loads.len(),
         resistors.len(),

@@ -201,10 +201,83 @@ fn no_rule_imports_another_rule() {
                 if paths.iter().any(|p| code.contains(p.as_str())) {
                     problems.push(format!(
                         "{}:{line}: rule `{name}` uses rule `{other}`; move what they share \
-                         into the analysis (a fact) or into `rules/support`",
+                         into the analysis (a fact) or into `rules/support/`",
                         file.display()
                     ));
                 }
+            }
+        }
+    }
+    assert!(problems.is_empty(), "{}", problems.join("\n"));
+}
+
+/// The rules' shared helpers (`src/rules/support/`) never depend on a rule: what a helper needs
+/// from a rule is either a fact (then it belongs in the analysis) or belongs in the helper.
+#[test]
+fn rule_support_never_depends_on_a_rule() {
+    let modules = rule_modules();
+    let mut files = Vec::new();
+    rust_files(&src().join("rules/support"), &mut files);
+    files.sort();
+    assert!(!files.is_empty(), "src/rules/support not found");
+    let mut problems = Vec::new();
+    for file in &files {
+        let text = std::fs::read_to_string(file).unwrap_or_default();
+        for (line, code) in code_lines(&text) {
+            for name in modules.keys() {
+                let used = ["rules::", "super::super::", "support::super::"]
+                    .iter()
+                    .any(|prefix| {
+                        ["::", ",", "}", ";"]
+                            .iter()
+                            .any(|end| code.contains(format!("{prefix}{name}{end}").as_str()))
+                    });
+                if used {
+                    problems.push(format!(
+                        "{}:{line}: rules/support uses rule `{name}`",
+                        file.display()
+                    ));
+                }
+            }
+        }
+    }
+    assert!(problems.is_empty(), "{}", problems.join("\n"));
+}
+
+/// A rule's findings take their severity from its identity: outside the `RULE` declaration a
+/// rule module names a severity only to compare with one, or through `RULE.grade(...)` (which
+/// keeps it among the grades the rule declares); an ungraded finding says `RULE.severity()`.
+#[test]
+fn a_rule_chooses_severity_through_its_identity() {
+    let mut problems = Vec::new();
+    for file in rule_modules().values() {
+        let text = std::fs::read_to_string(file).unwrap_or_default();
+        let mut in_declaration = false;
+        for (line, code) in code_lines(&text) {
+            if code.starts_with("pub const RULE: Rule =") {
+                in_declaration = true;
+            }
+            if in_declaration {
+                in_declaration = code != "};";
+                continue;
+            }
+            let mut rest = code;
+            while let Some(at) = rest.find("Severity::") {
+                let before = rest[..at].trim_end();
+                let after = &rest[at..];
+                let compared = before.ends_with("==") || before.ends_with("!=");
+                let graded = before.ends_with("RULE.grade(");
+                let pattern = after
+                    .split_once(char::is_whitespace)
+                    .is_some_and(|(_, tail)| tail.trim_start().starts_with("=>"));
+                if !(compared || graded || pattern) {
+                    problems.push(format!(
+                        "{}:{line}: a severity chosen outside the rule's identity; use \
+                         `RULE.severity()` or `RULE.grade(..)`",
+                        file.display()
+                    ));
+                }
+                rest = &after["Severity::".len()..];
             }
         }
     }

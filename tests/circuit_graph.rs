@@ -46,9 +46,9 @@ fn ground_aliases_merge_into_one_net() {
     };
     let (circuit, _, _) = deck().build(&Config::default());
     let ground = circuit.ground().expect("a ground net");
-    assert_eq!(circuit.nets.iter().filter(|n| n.is_ground).count(), 1);
-    assert!(circuit.nets[ground].is_ground);
-    assert_eq!(circuit.nets[ground].name, "0", "named as first written");
+    assert_eq!(circuit.nets().iter().filter(|n| n.is_ground).count(), 1);
+    assert!(circuit.nets()[ground].is_ground);
+    assert_eq!(circuit.nets()[ground].name, "0", "named as first written");
     assert_eq!(circuit.net_named("Gnd"), Some(ground));
     assert_ne!(
         circuit.net_named("agnd"),
@@ -67,7 +67,7 @@ fn ground_aliases_merge_into_one_net() {
         "node 0 is always ground"
     );
     assert_eq!(circuit.net_degree(ground), 4);
-    assert_eq!(circuit.nets.len(), 2);
+    assert_eq!(circuit.nets().len(), 2);
 }
 
 #[test]
@@ -76,8 +76,8 @@ fn net_names_are_case_insensitive() {
         .with(el("R1", "VBAT Out").value(1.0))
         .with(el("R2", "vbat out").value(1.0))
         .build(&Config::default());
-    assert_eq!(circuit.nets.len(), 2);
-    assert_eq!(circuit.nets[0].name, "VBAT");
+    assert_eq!(circuit.nets().len(), 2);
+    assert_eq!(circuit.nets()[0].name, "VBAT");
     assert_eq!(circuit.net_named("vBaT"), Some(0));
     assert_eq!(circuit.ground(), None);
     assert!(!circuit.has_dc_path_to_ground(0));
@@ -103,7 +103,7 @@ fn devices_on_a_net_and_degree() {
     assert_eq!(circuit.net_degree(drain), 3);
     // The pin index points at the role on the device.
     for &(device, pin) in circuit.devices_on(drain) {
-        let role = circuit.devices[device].pins[pin].role;
+        let role = circuit.devices()[device].pins[pin].role;
         assert!(
             matches!(role, PinRole::Neg | PinRole::Drain | PinRole::Anode),
             "{role}"
@@ -271,23 +271,23 @@ fn devices_by_kind_and_by_name() {
     let mosfets: Vec<&str> = circuit
         .devices_of(Kind::Nmos)
         .iter()
-        .map(|&d| netlist.elements[circuit.devices[d].element].path.as_str())
+        .map(|&d| netlist.elements[circuit.devices()[d].element].path.as_str())
         .collect();
     assert_eq!(mosfets, ["M1", "M2"]);
     assert!(circuit.devices_of(Kind::Timer555).is_empty());
     assert_eq!(circuit.device_named("r2"), Some(id(&circuit, "R2")));
     assert_eq!(circuit.device_named("nope"), None);
-    for (i, device) in circuit.devices.iter().enumerate() {
+    for (i, device) in circuit.devices().iter().enumerate() {
         assert_eq!(
             device.element, i,
             "Device::element indexes the flat elements"
         );
     }
     // The bipartite graph: one node per net and device, one edge per pin.
-    let pins: usize = circuit.devices.iter().map(|d| d.pins.len()).sum();
+    let pins: usize = circuit.devices().iter().map(|d| d.pins.len()).sum();
     assert_eq!(
         circuit.graph().node_count(),
-        circuit.nets.len() + circuit.devices.len()
+        circuit.nets().len() + circuit.devices().len()
     );
     assert_eq!(circuit.graph().edge_count(), pins);
 }
@@ -326,4 +326,34 @@ fn out_of_range_ids_answer_nothing() {
     assert_eq!(circuit.path_between(far, 0, &[], |_| true), None);
     assert!(circuit.connected_component(far).is_empty());
     assert!(!circuit.has_dc_path_to_ground(far));
+}
+
+/// A circuit assembled by hand through `CircuitBuilder` answers every query as the circuit
+/// built from the same netlist does: the indexes exist whichever way a circuit is made.
+#[test]
+fn a_built_by_hand_circuit_has_the_same_indexes() {
+    use kickback::circuit::CircuitBuilder;
+    let config = Config::default();
+    let (built, _, netlist) = drive().build(&config);
+    let mut parts = CircuitBuilder::new();
+    for n in built.nets() {
+        parts.add_net(n.clone());
+    }
+    for d in built.devices() {
+        parts.add_device(d.clone());
+    }
+    let by_hand = parts.build(&netlist, &config);
+    assert_eq!(by_hand.ground(), built.ground());
+    for (n, named) in built.nets().iter().enumerate() {
+        assert_eq!(by_hand.net_named(&named.name), Some(n), "{}", named.name);
+        assert_eq!(by_hand.devices_on(n), built.devices_on(n));
+        assert_eq!(by_hand.component_of(n), built.component_of(n));
+        assert_eq!(by_hand.dc_component_of(n), built.dc_component_of(n));
+        assert_eq!(by_hand.wire_of(n), built.wire_of(n));
+    }
+    assert_eq!(by_hand.net_named("gnd"), built.ground());
+    for e in &netlist.elements {
+        assert_eq!(by_hand.device_named(&e.path), built.device_named(&e.path));
+    }
+    assert_eq!(by_hand.devices_of(Kind::Nmos), built.devices_of(Kind::Nmos));
 }

@@ -82,7 +82,11 @@ fn kinds_follow_letters_and_models() {
     for (path, kind) in want {
         assert_eq!(device(&circuit, path).kind, kind, "{path}");
     }
-    assert_eq!(circuit.devices.len(), want.len(), "one device per element");
+    assert_eq!(
+        circuit.devices().len(),
+        want.len(),
+        "one device per element"
+    );
     assert!(device(&circuit, "K1").pins.is_empty());
     // A zener's BV is its zener voltage, not a reverse rating.
     let d3 = device(&circuit, "D3");

@@ -70,7 +70,7 @@ fn stirrer_effective_voltage_by_hand() {
         .find(|l| {
             facts
                 .circuit
-                .devices
+                .devices()
                 .get(l.device)
                 .and_then(|d| facts.netlist.elements.get(d.element))
                 .is_some_and(|e| e.path == "XSTIR")

@@ -151,14 +151,14 @@ fn switch_margin_over_rail_and_diode() {
         .push(freewheel(d, FreewheelKind::AcrossLoad, false));
     let m = sw.device;
     // 30 V against 24.5 V: within the rating but under 1.25 × (30.6 V wanted).
-    kit.circuit.devices[m]
+    kit.device_mut(m)
         .data
         .set_if_absent("vds_max", 30.0, "from config [parts.NCH]");
     let found = kit.show(switch_voltage_margin::check);
     assert_eq!(found.len(), 1);
     assert_eq!(found[0].severity, Severity::Warning);
     assert!(found[0].help.as_deref().unwrap().contains("40 V part"));
-    kit.circuit.devices[m]
+    kit.device_mut(m)
         .data
         .values
         .get_mut("vds_max")
@@ -168,7 +168,7 @@ fn switch_margin_over_rail_and_diode() {
         kit.run(switch_voltage_margin::check)[0].severity,
         Severity::Error
     );
-    kit.circuit.devices[m]
+    kit.device_mut(m)
         .data
         .values
         .get_mut("vds_max")
@@ -185,7 +185,7 @@ fn a_tvs_clamping_above_the_switch_rating_is_an_error() {
     sw.inductive = true;
     sw.freewheel.push(freewheel(t, FreewheelKind::Clamp, false));
     let m = sw.device;
-    kit.circuit.devices[m]
+    kit.device_mut(m)
         .data
         .set_if_absent("vds_max", 40.0, "from config [parts.NCH]");
     let found = kit.show(switch_voltage_margin::check);
@@ -212,7 +212,7 @@ fn a_motor_hung_on_a_555_output_overloads_it() {
     kit.analysis.loads.push(l);
     kit.analysis.timers[0].output_current_a = Some(point(1.03, "XU1 high"));
     let u = kit.analysis.timers[0].device;
-    kit.circuit.devices[u].data.set_if_absent(
+    kit.device_mut(u).data.set_if_absent(
         "out_current_max",
         0.2,
         "built-in default for timer-555 (from memory)",
@@ -349,7 +349,7 @@ fn a_cool_resistor_is_quiet() {
 fn conduction_loss_above_a_watt_is_a_warning() {
     let mut kit = small_motor(12.0);
     let m = kit.analysis.switches[0].device;
-    kit.circuit.devices[m]
+    kit.device_mut(m)
         .data
         .set_if_absent("pd_max", 1.0, "built-in default for nmos");
     let sw = &mut kit.analysis.switches[0];
@@ -422,7 +422,12 @@ fn an_electrolytic_with_plus_on_ground_and_minus_on_24_v_is_reversed() {
 #[test]
 fn an_unrated_capacitor_is_not_guessed_at() {
     let mut kit = cap_on_24("C1 v24 0 470u", "v24", "0", 24.0, 16.0);
-    kit.circuit.devices.last_mut().unwrap().data.values.clear();
+    kit.parts
+        .device_mut(kit.parts.devices().len() - 1)
+        .unwrap()
+        .data
+        .values
+        .clear();
     assert!(kit.run(capacitor_overvoltage::check).is_empty());
     assert!(kit.run(capacitor_reversed::check).is_empty());
 }

@@ -199,7 +199,7 @@ fn pump_on_timer(vcc: f64, amps: f64) -> Kit {
     sw.current_a = Some(point(amps, "XU1 high"));
     // The gain as the analysis publishes it: from rds_on at vgs_rated, no model card.
     sw.gain = Some(kickback::analysis::stand_in::mos_gain_fact(
-        &kit.circuit.devices[m].data,
+        &kit.device(m).data,
     ));
     kit.analysis.switches.push(sw);
     kit
@@ -432,7 +432,7 @@ fn separate_drives_with_dead_time_are_quiet() {
 fn separate_drives_that_overlap_are_an_error() {
     let mut kit = leg(false);
     let vl = kit.analysis.switches[1].driver.as_ref().unwrap().device;
-    let e = kit.circuit.devices[vl].element;
+    let e = kit.device(vl).element;
     kit.netlist.elements[e].source = Some(pulse(0.0, 12.0, 10e-6, 20e-6, 50e-6));
     let found = kit.show(shoot_through::check);
     assert_eq!(found.len(), 1);
@@ -445,7 +445,7 @@ fn separate_drives_that_overlap_are_an_error() {
 fn vrrm_below_the_rail_is_an_error_and_below_twice_a_warning() {
     let mut kit = valve_on_npn(Some(("DV vc v12 DSW", Kind::Schottky, false)));
     let dv = kit.analysis.switches[0].freewheel[0].device;
-    kit.circuit.devices[dv].data.values.insert(
+    kit.device_mut(dv).data.values.insert(
         "vrrm".into(),
         Rated {
             value: 20.0,
@@ -456,7 +456,7 @@ fn vrrm_below_the_rail_is_an_error_and_below_twice_a_warning() {
     assert_eq!(found.len(), 1);
     // 20 V ≥ 12 V rail but below 24 V: warning.
     assert_eq!(found[0].severity, Severity::Warning);
-    kit.circuit.devices[dv].data.values.insert(
+    kit.device_mut(dv).data.values.insert(
         "vrrm".into(),
         Rated {
             value: 10.0,
@@ -493,6 +493,6 @@ fn a_standard_recovery_diode_on_fast_pwm_is_a_warning_and_a_schottky_is_not() {
         "{:?}",
         found[0].help
     );
-    kit.circuit.devices[d].kind = Kind::Schottky;
+    kit.device_mut(d).kind = Kind::Schottky;
     assert!(kit.run(flyback_underrated::check).is_empty());
 }

@@ -6,6 +6,8 @@
 pub mod budget;
 pub mod dc;
 pub mod facts;
+pub mod freewheel_current;
+pub mod part_values;
 pub mod partition;
 pub mod plausible;
 mod solved;

@@ -55,13 +55,13 @@ fn joins_its_nets(kind: Kind) -> bool {
 }
 
 pub fn partition(circuit: &Circuit, netlist: &FlatNetlist) -> Partition {
-    let nets = circuit.nets.len();
+    let nets = circuit.nets().len();
     let mut fixed: Vec<Option<Fixed>> = circuit
-        .nets
+        .nets()
         .iter()
         .map(|n| n.is_ground.then_some(Fixed::Ground))
         .collect();
-    for (id, device) in circuit.devices.iter().enumerate() {
+    for (id, device) in circuit.devices().iter().enumerate() {
         if device.kind != Kind::VoltageSource {
             continue;
         }
@@ -92,7 +92,7 @@ pub fn partition(circuit: &Circuit, netlist: &FlatNetlist) -> Partition {
     }
 
     let mut uf = UnionFind::new(nets);
-    for device in &circuit.devices {
+    for device in circuit.devices() {
         if !joins_its_nets(device.kind) {
             continue;
         }
@@ -125,8 +125,8 @@ pub fn partition(circuit: &Circuit, netlist: &FlatNetlist) -> Partition {
         net_component[net] = Some(c);
     }
 
-    let mut device_components = vec![Vec::new(); circuit.devices.len()];
-    for (id, device) in circuit.devices.iter().enumerate() {
+    let mut device_components = vec![Vec::new(); circuit.devices().len()];
+    for (id, device) in circuit.devices().iter().enumerate() {
         let mut touched: Vec<usize> = device
             .pins
             .iter()

@@ -130,7 +130,7 @@ pub fn stamp(
     network: &mut super::dc::Network,
     node_of: &mut dyn FnMut(crate::circuit::NetId, &mut super::dc::Network) -> super::dc::Node,
 ) -> Option<stand_in::DeviceElements> {
-    let d = cx.circuit.devices.get(device)?;
+    let d = cx.circuit.devices().get(device)?;
     use crate::circuit::PinRole;
     if let Some(&limit) = variant.ramps.get(&device) {
         let a = node_of(d.pin(PinRole::Pos)?, network);
@@ -156,7 +156,7 @@ pub fn stamp(
 
 /// True for a BJT whose forward gain is only a built-in default.
 pub fn gain_assumed(cx: &Context<'_>, device: DeviceId) -> bool {
-    let Some(d) = cx.circuit.devices.get(device) else {
+    let Some(d) = cx.circuit.devices().get(device) else {
         return false;
     };
     d.kind.is_bjt()
@@ -178,7 +178,7 @@ fn ideal_inductor_currents(
         .iter()
         .copied()
         .filter(|&d| {
-            cx.circuit.devices.get(d).is_some_and(|x| {
+            cx.circuit.devices().get(d).is_some_and(|x| {
                 x.kind == Kind::Inductor && stand_in::winding_resistance(cx, x).is_none()
             })
         })
@@ -192,7 +192,7 @@ fn ideal_inductor_currents(
 /// Resistance of the resistors wired in series with an inductor through nets that join only
 /// the two of them: the winding resistance a deck writes as a resistor of its own.
 fn series_ohms(cx: &Context<'_>, inductor: DeviceId) -> f64 {
-    let Some(d) = cx.circuit.devices.get(inductor) else {
+    let Some(d) = cx.circuit.devices().get(inductor) else {
         return 0.0;
     };
     let mut seen = vec![inductor];
@@ -206,7 +206,7 @@ fn series_ohms(cx: &Context<'_>, inductor: DeviceId) -> f64 {
                 continue;
             }
             seen.push(part);
-            let Some(p) = cx.circuit.devices.get(part) else {
+            let Some(p) = cx.circuit.devices().get(part) else {
                 continue;
             };
             if p.kind == Kind::Resistor {
@@ -220,7 +220,7 @@ fn series_ohms(cx: &Context<'_>, inductor: DeviceId) -> f64 {
 }
 
 fn inductance(cx: &Context<'_>, device: DeviceId) -> Option<f64> {
-    let d = cx.circuit.devices.get(device)?;
+    let d = cx.circuit.devices().get(device)?;
     d.data
         .value("inductance")
         .or_else(|| cx.netlist.elements.get(d.element)?.value?.known())
@@ -233,7 +233,7 @@ fn on_time(cx: &Context<'_>, component: &Component, state: &State) -> Option<(f6
     cx.inputs(component)
         .into_iter()
         .filter_map(|input| {
-            let d = cx.circuit.devices.get(input)?;
+            let d = cx.circuit.devices().get(input)?;
             let spec = cx.netlist.elements.get(d.element)?.source.as_ref()?;
             let Waveform::Pulse {
                 rise,
@@ -263,7 +263,7 @@ fn on_time(cx: &Context<'_>, component: &Component, state: &State) -> Option<(f6
 fn stiffest_rail(cx: &Context<'_>, component: &Component, state: &State) -> Option<String> {
     let mut best: Option<(f64, DeviceId)> = None;
     for &device in &component.devices {
-        for pin in &cx.circuit.devices[device].pins {
+        for pin in &cx.circuit.devices()[device].pins {
             let Some(Some(Fixed::Source { device: src, .. })) = cx.partition.fixed.get(pin.net)
             else {
                 continue;
@@ -333,7 +333,7 @@ fn check_hull(
         let own: Vec<_> = component
             .devices
             .iter()
-            .filter(|&&d| cx.circuit.devices[d].kind == Kind::CurrentSource)
+            .filter(|&&d| cx.circuit.devices()[d].kind == Kind::CurrentSource)
             .filter_map(|d| built.devices.get(d)?.main)
             .collect();
         let quiet = built.network.without_current_sources(&own);
@@ -344,7 +344,7 @@ fn check_hull(
             }
         }
     }
-    let node = &cx.circuit.nets[net].name;
+    let node = &cx.circuit.nets()[net].name;
     let sources = format!("{} … {}", si(hull.lo, "V"), si(hull.hi, "V"));
     let cause = match largest_gain_source(cx, component) {
         Some((name, gain)) => format!(
@@ -371,10 +371,10 @@ fn largest_gain_source(cx: &Context<'_>, component: &Component) -> Option<(Strin
     component
         .devices
         .iter()
-        .filter(|&&d| cx.circuit.devices[d].kind == Kind::ControlledSource)
+        .filter(|&&d| cx.circuit.devices()[d].kind == Kind::ControlledSource)
         .filter_map(|&d| {
             // Only sources with a constant gain enter a DC solve.
-            let e = cx.netlist.elements.get(cx.circuit.devices[d].element)?;
+            let e = cx.netlist.elements.get(cx.circuit.devices()[d].element)?;
             let gain = e.value?.known().filter(|g| g.is_finite())?;
             Some((cx.name(d).to_string(), gain))
         })
@@ -430,7 +430,7 @@ fn check_gain(
     let what = match (moved, current_moved) {
         (Some((net, a, b)), _) => format!(
             "net {} sits at {} with β = {BETA_LOW} and at {} with β = {BETA_HIGH}",
-            cx.circuit.nets[net].name,
+            cx.circuit.nets()[net].name,
             si(a, "V"),
             si(b, "V")
         ),

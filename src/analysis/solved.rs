@@ -92,7 +92,7 @@ impl Solved {
         a: PinRole,
         b: PinRole,
     ) -> Option<f64> {
-        let d = circuit.devices.get(device)?;
+        let d = circuit.devices().get(device)?;
         Some(self.voltage(d.pin(a)?)? - self.voltage(d.pin(b)?)?)
     }
 }

@@ -53,7 +53,7 @@ pub fn stamp(
     node_of: &mut dyn FnMut(NetId, &mut Network) -> Node,
 ) -> DeviceElements {
     let mut out = DeviceElements::default();
-    let Some(device) = cx.circuit.devices.get(id) else {
+    let Some(device) = cx.circuit.devices().get(id) else {
         return out;
     };
     let data = &device.data;
@@ -322,12 +322,7 @@ pub fn timer_supply(cx: &Context<'_>, device: &Device, state: &State) -> Option<
 
 /// A resistor's or pot's resistance: its part data, else the element's value.
 pub fn resistance(cx: &Context<'_>, device: &Device) -> Option<f64> {
-    device.data.value("resistance").or_else(|| {
-        let e = cx.netlist.elements.get(device.element)?;
-        e.value
-            .and_then(|v| v.known())
-            .or_else(|| e.param("r").and_then(|v| v.known()))
-    })
+    super::part_values::resistance(cx.netlist, device)
 }
 
 /// A winding's DC resistance: `resistance`, else rated voltage over rated (or stall) current,

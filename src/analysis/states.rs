@@ -132,7 +132,7 @@ impl<'a> Context<'a> {
             cache: SolveCache::new(),
             timer_solves: super::budget::TIMER_SOLVES,
             net_names: circuit
-                .nets
+                .nets()
                 .iter()
                 .map(|n| Arc::from(n.name.as_str()))
                 .collect(),
@@ -142,7 +142,7 @@ impl<'a> Context<'a> {
     /// The device's flattened name (`XCH1.M1`).
     pub fn name(&self, device: DeviceId) -> &str {
         self.circuit
-            .devices
+            .devices()
             .get(device)
             .and_then(|d| self.netlist.elements.get(d.element))
             .map(|e| e.path.as_str())
@@ -177,7 +177,7 @@ impl<'a> Context<'a> {
         let element = self
             .netlist
             .elements
-            .get(self.circuit.devices.get(device)?.element)?;
+            .get(self.circuit.devices().get(device)?.element)?;
         let spec = element.source.as_ref()?;
         match spec.levels() {
             // "High" is the higher of the two levels, whatever the order the PULSE lists them
@@ -194,7 +194,7 @@ impl<'a> Context<'a> {
     pub fn inputs(&self, component: &Component) -> Vec<DeviceId> {
         let mut inputs = Vec::new();
         for &device in &component.devices {
-            let d = &self.circuit.devices[device];
+            let d = &self.circuit.devices()[device];
             if matches!(
                 d.kind,
                 Kind::Timer555 | Kind::Timer555Cmos | Kind::LogicOutput
@@ -222,7 +222,7 @@ impl<'a> Context<'a> {
 
     pub fn is_pulse_source(&self, device: DeviceId) -> bool {
         self.circuit
-            .devices
+            .devices()
             .get(device)
             .and_then(|d| self.netlist.elements.get(d.element))
             .and_then(|e| e.source.as_ref())
@@ -235,7 +235,7 @@ impl<'a> Context<'a> {
             .devices
             .iter()
             .copied()
-            .filter(|&d| self.circuit.devices[d].kind == Kind::Potentiometer)
+            .filter(|&d| self.circuit.devices()[d].kind == Kind::Potentiometer)
             .collect()
     }
 
@@ -412,7 +412,7 @@ fn is_switching(wave: &Waveform) -> bool {
 /// Independent DC sources are supplies; their corners come from `[supply.NAME]` when given.
 fn supply_corners(netlist: &FlatNetlist, circuit: &Circuit, config: &Config) -> Vec<SupplyCorners> {
     let mut out = Vec::new();
-    for (id, device) in circuit.devices.iter().enumerate() {
+    for (id, device) in circuit.devices().iter().enumerate() {
         if device.kind != Kind::VoltageSource {
             continue;
         }

@@ -55,7 +55,7 @@ pub fn analyze(
         .collect();
     let timer_map: super::switching::Timers<'_> = timers.iter().map(|t| (t.device, t)).collect();
     let mut by_component: BTreeMap<usize, Vec<DeviceId>> = BTreeMap::new();
-    for (id, d) in cx.circuit.devices.iter().enumerate() {
+    for (id, d) in cx.circuit.devices().iter().enumerate() {
         if !matches!(
             d.kind,
             Kind::Resistor | Kind::Potentiometer | Kind::Capacitor
@@ -81,7 +81,7 @@ pub fn analyze(
             // analysis, which solves them too.
             let reported_elsewhere = component.devices.iter().any(|&d| {
                 cx.circuit
-                    .devices
+                    .devices()
                     .get(d)
                     .is_some_and(|x| x.kind.is_switch_transistor() || x.kind.is_load())
             });
@@ -95,7 +95,7 @@ pub fn analyze(
             let parts: Vec<DeviceId> = members
                 .iter()
                 .copied()
-                .filter(|&d| cx.circuit.devices[d].kind != Kind::Capacitor)
+                .filter(|&d| cx.circuit.devices()[d].kind != Kind::Capacitor)
                 .collect();
             // A part whose model is defined nowhere was solved as a generic stand-in: the
             // currents it lets through say nothing about the real board, so no dissipation
@@ -130,7 +130,7 @@ pub fn analyze(
 
     let mut capacitors: Vec<CapacitorFacts> = cx
         .circuit
-        .devices
+        .devices()
         .iter()
         .enumerate()
         .filter(|(_, d)| d.kind == Kind::Capacitor)
@@ -157,7 +157,7 @@ fn carried_by_unplaced_stages(
         .iter()
         .filter(|d| unplaced.contains_key(d))
     {
-        let device = &cx.circuit.devices[t];
+        let device = &cx.circuit.devices()[t];
         let mut nets: Vec<NetId> = [
             PinRole::Drain,
             PinRole::Source,
@@ -175,7 +175,7 @@ fn carried_by_unplaced_stages(
             }
             seen.push(net);
             for &(other, _) in cx.circuit.devices_on(net) {
-                let d = &cx.circuit.devices[other];
+                let d = &cx.circuit.devices()[other];
                 if !matches!(d.kind, Kind::Resistor | Kind::Potentiometer) {
                     continue;
                 }
@@ -367,7 +367,7 @@ fn resistor_facts(
         let Some((power, worst)) = sampled(s, &|x| measure(device, Objective::Power, x)) else {
             continue;
         };
-        let data = &cx.circuit.devices[device].data;
+        let data = &cx.circuit.devices()[device].data;
         let rating = data
             .value("power_rating")
             .filter(|r| *r > 0.0)
@@ -375,7 +375,7 @@ fn resistor_facts(
         if let Some(w) = worst {
             searches.push((facts.len(), Objective::Power, w, power.max / rating));
         }
-        let is_pot = cx.circuit.devices[device].kind == Kind::Potentiometer;
+        let is_pot = cx.circuit.devices()[device].kind == Kind::Potentiometer;
         let wiper = if is_pot {
             sampled(s, &|x| measure(device, Objective::WiperCurrent, x))
         } else {
@@ -612,7 +612,7 @@ fn capacitor_facts(
     solved: &BTreeMap<usize, ComponentSolves>,
     device: DeviceId,
 ) -> Option<CapacitorFacts> {
-    let d = cx.circuit.devices.get(device)?;
+    let d = cx.circuit.devices().get(device)?;
     let pos = d
         .pin(PinRole::Pos)
         .or_else(|| d.pins.first().map(|p| p.net))?;

@@ -393,7 +393,7 @@ fn gate_trace(on: f64, off: f64, t_on: f64, period: f64, rise: f64, fall: f64) -
 /// A MOSFET's threshold band: the engine's threshold and the rated `vgs_th_min`/`vgs_th_max`,
 /// as magnitudes, with where they came from.
 fn threshold_band(circuit: &Circuit, s: &SwitchFacts) -> Option<((f64, f64), String)> {
-    let device = circuit.devices.get(s.device)?;
+    let device = circuit.devices().get(s.device)?;
     if !device.kind.is_mos() {
         return None;
     }

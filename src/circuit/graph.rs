@@ -24,8 +24,10 @@ pub enum GraphNode {
 
 #[derive(Clone, Debug, Default)]
 pub struct Circuit {
-    pub nets: Vec<Net>,
-    pub devices: Vec<Device>,
+    /// Made only by [`Circuit::build`] and [`CircuitBuilder::build`], so every index below
+    /// exists whenever a circuit does.
+    pub(super) nets: Vec<Net>,
+    pub(super) devices: Vec<Device>,
     /// Net name → net, case-insensitive.
     pub(super) net_names: NameIndex,
     /// Names that mean the ground net (`0`, `[analysis] ground`, its own name), once it exists.
@@ -102,10 +104,26 @@ impl Circuit {
                 data: resolved.data.clone(),
             });
         }
-        circuit.index_pins();
-        circuit.build_components(netlist);
-        circuit.wires = Wires::build(&circuit, netlist, config);
+        circuit.index(netlist, config);
         (circuit, findings)
+    }
+
+    /// Every net, in order of first appearance: `NetId` indexes it.
+    pub fn nets(&self) -> &[Net] {
+        &self.nets
+    }
+
+    /// Every device, in netlist order: `DeviceId` indexes it.
+    pub fn devices(&self) -> &[Device] {
+        &self.devices
+    }
+
+    /// The indexes that follow from the nets and devices: pins on each net, connected and
+    /// DC-connected components, nets joined through ammeters.
+    pub(super) fn index(&mut self, netlist: &FlatNetlist, config: &Config) {
+        self.index_pins();
+        self.build_components(netlist);
+        self.wires = Wires::build(self, netlist, config);
     }
 
     fn intern_net(&mut self, name: &str, config: &Config) -> NetId {
@@ -114,15 +132,7 @@ impl Circuit {
                 return ground;
             }
             let id = self.push_net(name, true);
-            self.ground = Some(id);
-            self.ground_aliases = config
-                .analysis
-                .ground
-                .iter()
-                .map(String::as_str)
-                .chain(["0", name])
-                .map(str::to_ascii_lowercase)
-                .collect();
+            self.set_ground(id, name, config);
             return id;
         }
         if let Some(id) = self.net_names.get(&self.nets, name) {
@@ -131,6 +141,19 @@ impl Circuit {
         let id = self.push_net(name, false);
         self.net_names.insert(id, name);
         id
+    }
+
+    /// Makes net `id`, named `name`, the reference net that every ground alias names.
+    pub(super) fn set_ground(&mut self, id: NetId, name: &str, config: &Config) {
+        self.ground = Some(id);
+        self.ground_aliases = config
+            .analysis
+            .ground
+            .iter()
+            .map(String::as_str)
+            .chain(["0", name])
+            .map(str::to_ascii_lowercase)
+            .collect();
     }
 
     fn push_net(&mut self, name: &str, is_ground: bool) -> NetId {
@@ -200,7 +223,9 @@ impl Circuit {
         for (id, device) in self.devices.iter().enumerate().rev() {
             let node = NodeIndex::new(first_device + id);
             for (pin_index, pin) in device.pins.iter().enumerate().rev() {
-                graph.add_edge(node, NodeIndex::new(pin.net), pin_index);
+                if pin.net < first_device {
+                    graph.add_edge(node, NodeIndex::new(pin.net), pin_index);
+                }
             }
         }
         graph
@@ -223,6 +248,9 @@ impl Circuit {
             let mut first_any = None;
             let mut first_dc = None;
             for (pin, dc_pin) in device.pins.iter().zip(conducts) {
+                if pin.net >= count {
+                    continue;
+                }
                 match first_any {
                     None => first_any = Some(pin.net),
                     Some(f) => {
@@ -275,12 +303,12 @@ pub(super) struct PathTable {
 }
 
 impl PathTable {
-    fn reserve(&mut self, n: usize) {
+    pub(super) fn reserve(&mut self, n: usize) {
         self.ends.reserve(n);
         self.text.reserve(n.saturating_mul(8));
     }
 
-    fn push(&mut self, path: &str) {
+    pub(super) fn push(&mut self, path: &str) {
         self.text.push_str(path);
         self.ends.push(self.text.len());
     }

@@ -129,6 +129,7 @@ impl Device {
     }
 }
 
+pub mod builder;
 mod data;
 pub mod defaults;
 pub mod graph;
@@ -137,9 +138,11 @@ mod names;
 pub mod parts;
 pub mod pins;
 mod query;
+pub mod sections;
 mod unknown;
 mod wires;
 
+pub use builder::CircuitBuilder;
 pub use defaults::LOGIC_LEVEL_VGS_TH_MAX;
 pub use graph::{Circuit, GraphNode};
 pub use query::SeriesChain;

@@ -183,7 +183,7 @@ fn elements_at(facts: &BufferFacts, offset: u32) -> Vec<(usize, &FlatElement)> {
 fn device_of(facts: &BufferFacts, element: usize) -> Option<DeviceId> {
     facts
         .circuit
-        .devices
+        .devices()
         .iter()
         .position(|d| d.element == element)
 }
@@ -316,7 +316,7 @@ pub fn symbols(checked: &BufferCheck) -> Vec<DocumentSymbol> {
                 .map(|l| (l.device, "load", SymbolKind::OBJECT)),
         );
     for (device, role, kind) in roles {
-        let Some(d) = facts.circuit.devices.get(device) else {
+        let Some(d) = facts.circuit.devices().get(device) else {
             continue;
         };
         let Some(element) = facts.netlist.elements.get(d.element) else {

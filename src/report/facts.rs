@@ -125,7 +125,7 @@ fn range_json(r: &Option<Range>) -> Option<RangeJson> {
 /// The flattened name of a device (`XCH1.M1`).
 pub(crate) fn name(netlist: &FlatNetlist, circuit: &Circuit, device: DeviceId) -> String {
     circuit
-        .devices
+        .devices()
         .get(device)
         .and_then(|d| netlist.elements.get(d.element))
         .map_or_else(|| format!("#{device}"), |e| e.path.clone())

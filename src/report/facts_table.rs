@@ -153,7 +153,7 @@ impl Table<'_> {
 
     /// `threshold 3 V from .model NCH VTO` for a switch's gate numbers.
     fn threshold_note(&self, device: DeviceId) -> String {
-        let Some(d) = self.circuit.devices.get(device) else {
+        let Some(d) = self.circuit.devices().get(device) else {
             return String::new();
         };
         let (key, label) = if d.kind.is_mos() {
@@ -211,7 +211,7 @@ impl Table<'_> {
         };
         let kind = self
             .circuit
-            .devices
+            .devices()
             .get(t.device)
             .map_or(Kind::Unknown, |d| d.kind);
         let _ = writeln!(out, "Timer {} ({kind}, {mode})", self.name(t.device));
@@ -485,7 +485,7 @@ impl Table<'_> {
     fn rating_note(&self, device: DeviceId, key: &str, unit: &str) -> String {
         let rated = self
             .circuit
-            .devices
+            .devices()
             .get(device)
             .and_then(|d| d.data.get(key));
         match rated {

@@ -3,7 +3,7 @@
 
 use super::edits;
 use super::eseries::{ohms, round_down, E12};
-use super::switch_util::{
+use super::support::switch::{
     drive_level, element, finding_at, held_off, is_switch, kind, label, load_device, load_of, name,
     rated, saturated_current, shorted_through, weakest_magnitude,
 };
@@ -35,7 +35,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     if cx.analysis.switches.is_empty() {
         return;
     }
-    let unreferenced = super::switch_util::reference::switches_without_reference(cx);
+    let unreferenced = super::support::switch::reference::switches_without_reference(cx);
     for sw in &cx.analysis.switches {
         let bjt = kind(cx, sw.device).is_some_and(Kind::is_bjt);
         let referenced = unreferenced.binary_search(&sw.device).is_err();
@@ -119,12 +119,12 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
     let hfe_min = rated(cx, sw.device, "hfe_min").map(|h| h.value);
     let forced = ic / ib.max(f64::MIN_POSITIVE);
     let severity = if active {
-        Severity::Error
+        RULE.grade(Severity::Error)
     } else {
         match hfe_min {
             Some(h) if forced <= h / 2.0 => return None,
-            Some(_) => Severity::Warning,
-            None => Severity::Note,
+            Some(_) => RULE.grade(Severity::Warning),
+            None => RULE.grade(Severity::Note),
         }
     };
     if active {

@@ -2,7 +2,7 @@
 //! no bulk capacitor, or the energy a bridge returns at turn-off would pump it by more than
 //! 10 %. See `rules/bulk-capacitance-missing.md`.
 
-use super::switch_util::{
+use super::support::switch::{
     cap_e6, finding_at, is_ground, is_pwm, is_switch, label, load_device, load_of, name,
     next_rating, rail, supply_facts, NetIndex, CAP_VOLTAGES,
 };
@@ -38,7 +38,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         };
         let Some(net) = cx
             .circuit
-            .devices
+            .devices()
             .get(supply)
             .and_then(|d| d.pin(PinRole::Pos))
         else {
@@ -64,7 +64,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 }
 
 fn capacitance(cx: &RuleContext<'_>, id: DeviceId) -> Option<f64> {
-    let d = cx.circuit.devices.get(id)?;
+    let d = cx.circuit.devices().get(id)?;
     d.data
         .value("capacitance")
         .or_else(|| cx.netlist.elements.get(d.element)?.value?.known())
@@ -77,7 +77,7 @@ fn rail_capacitors(cx: &RuleContext<'_>, index: &NetIndex, net: NetId) -> Vec<(D
         .on(net)
         .iter()
         .filter_map(|&(d, _)| {
-            let dev = cx.circuit.devices.get(d)?;
+            let dev = cx.circuit.devices().get(d)?;
             let grounded = dev.pins.iter().any(|p| is_ground(cx, p.net));
             (dev.kind == Kind::Capacitor && grounded)
                 .then(|| capacitance(cx, d).map(|c| (d, c)))
@@ -94,7 +94,7 @@ fn rail_capacitors(cx: &RuleContext<'_>, index: &NetIndex, net: NetId) -> Vec<(D
 /// capacitor and the series capacitance of its tops and bottoms.
 fn series_stacks(cx: &RuleContext<'_>, index: &NetIndex, net: NetId) -> Vec<(DeviceId, f64)> {
     let other_end = |d: DeviceId, from: NetId| -> Option<NetId> {
-        let dev = cx.circuit.devices.get(d)?;
+        let dev = cx.circuit.devices().get(d)?;
         (dev.kind == Kind::Capacitor && dev.pins.len() == 2)
             .then(|| dev.pins.iter().map(|p| p.net).find(|&n| n != from))
             .flatten()
@@ -112,7 +112,7 @@ fn series_stacks(cx: &RuleContext<'_>, index: &NetIndex, net: NetId) -> Vec<(Dev
         let on_middle = index.on(middle);
         let passive = on_middle.iter().all(|&(d, _)| {
             cx.circuit
-                .devices
+                .devices()
                 .get(d)
                 .is_some_and(|x| matches!(x.kind, Kind::Capacitor | Kind::Resistor))
         });
@@ -152,7 +152,7 @@ fn finding(
     let mut caps = rail_capacitors(cx, index, net);
     caps.extend(series_stacks(cx, index, net));
     let total = caps.iter().fold(0.0, |sum, (_, c)| sum + c);
-    let rail_name = super::switch_util::net_name(cx, net);
+    let rail_name = super::support::switch::net_name(cx, net);
     // Energy a full bridge hands back to the rail at turn-off: the largest ½·L·I² behind it.
     let returned = switches
         .iter()
@@ -222,7 +222,7 @@ fn finding(
             Some(dv),
         )
     };
-    let mut f = finding_at(RULE, Severity::Warning, cx, supply, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, supply, message)?;
     for s in switches {
         f = label(
             f,
@@ -277,7 +277,7 @@ fn finding(
 /// into the rail; across a half-bridge leg to a rail it circulates through one diode instead.
 fn between_legs(cx: &RuleContext<'_>, legs: &[NetId], load: DeviceId) -> bool {
     cx.circuit
-        .devices
+        .devices()
         .get(load)
         .is_some_and(|d| d.pins.len() == 2 && d.pins.iter().all(|p| legs.contains(&p.net)))
 }

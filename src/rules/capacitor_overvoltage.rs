@@ -2,7 +2,7 @@
 //! 1/1.5 of it. A capacitor with no `voltage_rating` is not guessed at. See
 //! `rules/capacitor-overvoltage.md`.
 
-use super::switch_util::{finding_at, label, name, next_rating, NetIndex, CAP_VOLTAGES};
+use super::support::switch::{finding_at, label, name, next_rating, NetIndex, CAP_VOLTAGES};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
@@ -32,7 +32,7 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &CapacitorFacts) -> Op
     let id = facts.device;
     let rating = cx
         .circuit
-        .devices
+        .devices()
         .get(id)?
         .data
         .get("voltage_rating")?
@@ -47,9 +47,9 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &CapacitorFacts) -> Op
         (r.min.abs(), &r.min_state)
     };
     let severity = if v > rating.value {
-        Severity::Error
+        RULE.grade(Severity::Error)
     } else if v > rating.value / DERATING {
-        Severity::Warning
+        RULE.grade(Severity::Warning)
     } else {
         return None;
     };
@@ -70,7 +70,7 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &CapacitorFacts) -> Op
         )
     };
     let mut f = finding_at(RULE, severity, cx, id, message)?;
-    if let Some(d) = cx.circuit.devices.get(id) {
+    if let Some(d) = cx.circuit.devices().get(id) {
         for pin in &d.pins {
             if let Some(s) = index.supply_on(cx, pin.net) {
                 f = label(

@@ -1,7 +1,7 @@
 //! `capacitor-reversed`: a polarized capacitor whose positive terminal (its first node) sits
 //! below its negative one in some state. See `rules/capacitor-reversed.md`.
 
-use super::switch_util::{finding_at, label, name, net_name, NetIndex};
+use super::support::switch::{finding_at, label, name, net_name, NetIndex};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
@@ -31,7 +31,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 
 fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &CapacitorFacts) -> Option<Finding> {
     let id = facts.device;
-    let d = cx.circuit.devices.get(id)?;
+    let d = cx.circuit.devices().get(id)?;
     let polarized = d.data.get("polarized").filter(|p| p.value != 0.0)?.clone();
     let v = facts.voltage_v.min;
     if v >= -TOLERATED_V {
@@ -52,7 +52,7 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &CapacitorFacts) -> Op
         net_name(cx, neg),
         facts.voltage_v.min_state
     );
-    let mut f = finding_at(RULE, Severity::Error, cx, id, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, id, message)?;
     for net in [pos, neg] {
         if let Some(s) = index.supply_on(cx, net) {
             f = label(

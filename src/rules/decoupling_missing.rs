@@ -4,7 +4,7 @@
 //!
 //! A netlist carries no placement, so one capacitor across the pair counts for every IC on it.
 
-use super::hygiene_util::{between, finding_at, net_name, wire_pins, NetIndex};
+use super::support::hygiene::{between, finding_at, net_name, wire_pins, NetIndex};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Kind, NetId, PinRole};
@@ -25,13 +25,13 @@ const DECOUPLING_F: f64 = 100e-9;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let is_ic = |k: Kind| k.is_timer() || k == Kind::LogicOutput;
-    if !cx.circuit.devices.iter().any(|d| is_ic(d.kind)) {
+    if !cx.circuit.devices().iter().any(|d| is_ic(d.kind)) {
         return;
     }
     let index = NetIndex::new(cx);
     // Many ICs share one rail pair; look each pair up once.
     let mut decoupled: HashMap<(NetId, NetId), bool> = HashMap::new();
-    for device in cx.circuit.devices.iter().filter(|d| is_ic(d.kind)) {
+    for device in cx.circuit.devices().iter().filter(|d| is_ic(d.kind)) {
         let (Some(vcc), Some(gnd)) = (device.pin(PinRole::Vcc), device.pin(PinRole::Gnd)) else {
             continue;
         };
@@ -64,7 +64,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         out.push(
             finding_at(
                 RULE,
-                Severity::Warning,
+                RULE.severity(),
                 element,
                 format!(
                     "{} ({}) has no capacitor across its supply pins VCC (net `{v}`) and GND \
@@ -89,7 +89,7 @@ fn capacitor_across(cx: &RuleContext<'_>, index: &NetIndex<'_>, vcc: NetId, gnd:
         return true;
     }
     wire_pins(cx, index, vcc).iter().any(|&(id, _)| {
-        cx.circuit.devices.get(id).is_some_and(|d| {
+        cx.circuit.devices().get(id).is_some_and(|d| {
             d.kind == Kind::Capacitor
                 && d.pins.len() == 2
                 && d.pins.iter().any(|p| cx.circuit.same_wire(p.net, vcc))
@@ -101,7 +101,7 @@ fn capacitor_across(cx: &RuleContext<'_>, index: &NetIndex<'_>, vcc: NetId, gnd:
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn cap_across_supply_counts_in_either_order() {
@@ -113,10 +113,10 @@ mod tests {
             .iter()
             .position(|e| e.name == "CDEC")
             .unwrap();
-        d.circuit.devices[cdec].pins.swap(0, 1);
+        d.device_mut(cdec).pins.swap(0, 1);
         assert!(d.run(check).is_empty());
         let other = d.net("elsewhere");
-        d.circuit.devices[cdec].pins[0].net = other;
+        d.device_mut(cdec).pins[0].net = other;
         let found = d.run(check);
         assert_eq!(found.len(), 1);
         assert!(found[0]

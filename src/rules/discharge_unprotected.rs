@@ -2,7 +2,7 @@
 //! `rules/discharge-unprotected.md`.
 
 use super::eseries::{self, ohms};
-use super::timer_util::{
+use super::support::timer::{
     at_state, element, finding_at, is_pot, is_resistor, label, name, ohms_of, rated_or,
 };
 use super::units::format_si;
@@ -36,17 +36,17 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 /// with no chain the one on the discharge pin's own net.
 fn supply_of(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<DeviceId> {
     let nets: Vec<usize> = if t.discharge_chain.is_empty() {
-        let dis = cx.circuit.devices.get(t.device)?.pin(PinRole::Dis)?;
+        let dis = cx.circuit.devices().get(t.device)?.pin(PinRole::Dis)?;
         vec![dis]
     } else {
         t.discharge_chain
             .iter()
-            .filter_map(|&d| cx.circuit.devices.get(d))
+            .filter_map(|&d| cx.circuit.devices().get(d))
             .flat_map(|d| d.pins.iter().map(|p| p.net))
             .collect()
     };
-    let grounded = |n: usize| cx.circuit.nets.get(n).is_some_and(|n| n.is_ground);
-    cx.circuit.devices.iter().enumerate().find_map(|(id, d)| {
+    let grounded = |n: usize| cx.circuit.nets().get(n).is_some_and(|n| n.is_ground);
+    cx.circuit.devices().iter().enumerate().find_map(|(id, d)| {
         if d.kind != Kind::VoltageSource {
             return None;
         }
@@ -66,9 +66,9 @@ fn overcurrent(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
         _ => false,
     };
     let severity = if dead_short || current.max > max.value {
-        Severity::Error
+        RULE.grade(Severity::Error)
     } else if current.max > rated.value {
-        Severity::Warning
+        RULE.grade(Severity::Warning)
     } else {
         return None;
     };
@@ -236,7 +236,7 @@ fn dump(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
         at_state(t.discharge_dump_state.as_deref().unwrap_or("")),
         format_si(peak, "A"),
     );
-    let mut f = finding_at(RULE, Severity::Note, cx, diode, message)?;
+    let mut f = finding_at(RULE, RULE.grade(Severity::Note), cx, diode, message)?;
     f = label(
         f,
         cx,

@@ -2,7 +2,7 @@
 //! than its rating, e.g. a motor hung straight on the pin. See `rules/driver-overload.md`.
 
 use super::eseries::{ohms, round_up, E12};
-use super::switch_util::{drive_level, finding_at, kind, label, name, rated_or, timer_facts};
+use super::support::switch::{drive_level, finding_at, kind, label, name, rated_or, timer_facts};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
@@ -25,7 +25,7 @@ const VBE_ON_V: f64 = 0.8;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let mut draws = all_draws(cx);
-    for (id, d) in cx.circuit.devices.iter().enumerate() {
+    for (id, d) in cx.circuit.devices().iter().enumerate() {
         if d.kind.is_timer() || d.kind == Kind::LogicOutput {
             out.extend(finding(cx, id, draws.remove(&id).unwrap_or_default()));
         }
@@ -54,7 +54,7 @@ impl Draw {
 /// switches).
 fn all_draws(cx: &RuleContext<'_>) -> BTreeMap<DeviceId, Vec<Draw>> {
     let mut by_out_net: BTreeMap<NetId, Vec<DeviceId>> = BTreeMap::new();
-    for (id, d) in cx.circuit.devices.iter().enumerate() {
+    for (id, d) in cx.circuit.devices().iter().enumerate() {
         if d.kind.is_timer() || d.kind == Kind::LogicOutput {
             if let Some(net) = d.pin(PinRole::Out) {
                 by_out_net.entry(net).or_default().push(id);
@@ -71,7 +71,7 @@ fn all_draws(cx: &RuleContext<'_>) -> BTreeMap<DeviceId, Vec<Draw>> {
             continue;
         };
         let mut drivers: Vec<DeviceId> = load.driven_by.into_iter().collect();
-        if let Some(d) = cx.circuit.devices.get(load.device) {
+        if let Some(d) = cx.circuit.devices().get(load.device) {
             for pin in &d.pins {
                 drivers.extend(by_out_net.get(&pin.net).into_iter().flatten().copied());
             }
@@ -161,7 +161,7 @@ fn finding(cx: &RuleContext<'_>, id: DeviceId, draws: Vec<Draw>) -> Option<Findi
         Some(Draw::Base { switch, .. }) => *switch,
         None => id,
     };
-    let mut f = finding_at(RULE, Severity::Error, cx, primary, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, primary, message)?;
     f = label(
         f,
         cx,

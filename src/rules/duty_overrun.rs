@@ -1,7 +1,7 @@
 //! `duty-overrun`: a one-shot's pulse reaches its trigger period. See `rules/duty-overrun.md`.
 
 use super::eseries::{self, ohms};
-use super::timer_util::{
+use super::support::timer::{
     at_state, farads_of, finding_at, label, name, percent, timing_part, ONE_SHOT_MAX_SHARE,
 };
 use super::units::format_si;
@@ -60,7 +60,7 @@ fn overrun(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
     };
 
     let target = timing_part(cx, t).unwrap_or(t.device);
-    let mut f = finding_at(RULE, Severity::Warning, cx, target, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, target, message)?;
     f = label(f, cx, t.device, &format!("{timer}: the one-shot"));
     f = label(
         f,

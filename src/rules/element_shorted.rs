@@ -3,7 +3,7 @@
 //!
 //! Voltage sources are left to `supply-shorted`, where a shorted source is an error.
 
-use super::hygiene_util::{finding_at, net_name, Once};
+use super::support::hygiene::{finding_at, net_name, Once};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::Kind;
@@ -22,7 +22,7 @@ pub const RULE: Rule = Rule {
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let mut once = Once::default();
-    for device in &cx.circuit.devices {
+    for device in cx.circuit.devices() {
         if matches!(device.kind, Kind::VoltageSource | Kind::Coupling) || device.pins.len() < 2 {
             continue;
         }
@@ -43,7 +43,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             }
             finding_at(
                 RULE,
-                Severity::Warning,
+                RULE.severity(),
                 element,
                 format!(
                     "{} has all {} terminals on net `{name}`: it carries no current and does \
@@ -63,7 +63,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             };
             let mut f = Finding::new(
                 RULE,
-                Severity::Warning,
+                RULE.severity(),
                 step.span,
                 format!(
                     "instance {} connects both ends of {} to net `{name}`: inside this instance \
@@ -120,7 +120,7 @@ fn local_nets(cx: &RuleContext<'_>, element: &FlatElement) -> bool {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn resistor_on_one_net_fires_but_not_a_source() {

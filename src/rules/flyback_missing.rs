@@ -2,7 +2,7 @@
 //! `rules/flyback-missing.md`.
 
 use super::edits;
-use super::switch_util::{
+use super::support::switch::{
     branch_ends, diode_choice, diode_hint, element, finding_at, is_pwm, is_switch, kind, label,
     load_device, load_of, main_terminals, name, net_name, rail, saturated_current, NetIndex,
 };
@@ -70,7 +70,7 @@ fn finding(
     let load_kind = kind(cx, load).unwrap_or(Kind::Inductor);
     let inductance = facts
         .and_then(|l| l.inductance.clone())
-        .or_else(|| super::switch_util::rated(cx, load, "inductance"));
+        .or_else(|| super::support::switch::rated(cx, load, "inductance"));
     let solved = facts
         .and_then(|l| l.current_a.as_ref())
         .or(sw.current_a.as_ref())
@@ -141,7 +141,7 @@ fn finding(
         ));
     }
 
-    let mut f = finding_at(RULE, Severity::Error, cx, load, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, load, message)?;
     f = label(
         f,
         cx,
@@ -201,8 +201,8 @@ fn diode_fix(
     cx: &RuleContext<'_>,
     sw: &SwitchFacts,
     load: DeviceId,
-    ends: Option<super::switch_util::BranchEnds>,
-    rail: Option<&super::switch_util::Rail>,
+    ends: Option<super::support::switch::BranchEnds>,
+    rail: Option<&super::support::switch::Rail>,
     current: Option<&Range>,
 ) -> Option<crate::diagnostic::Fix> {
     let ends = ends?;
@@ -229,8 +229,8 @@ fn help(
     cx: &RuleContext<'_>,
     sw: &SwitchFacts,
     load_name: &str,
-    ends: Option<super::switch_util::BranchEnds>,
-    rail: Option<&super::switch_util::Rail>,
+    ends: Option<super::support::switch::BranchEnds>,
+    rail: Option<&super::support::switch::Rail>,
     current: Option<&Range>,
     across_switch: &[DeviceId],
 ) -> String {
@@ -284,7 +284,8 @@ fn help(
 /// Plain diodes with their pins on the switch's drain and source: they do not freewheel the
 /// load (a TVS or zener there is a clamp, which the analysis counts as a freewheel path).
 fn diodes_across(cx: &RuleContext<'_>, index: &NetIndex, sw: &SwitchFacts) -> Vec<DeviceId> {
-    let Some((a, b)) = super::switch_util::device(cx, sw.device).and_then(main_terminals) else {
+    let Some((a, b)) = super::support::switch::device(cx, sw.device).and_then(main_terminals)
+    else {
         return Vec::new();
     };
     index

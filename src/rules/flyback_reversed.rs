@@ -1,7 +1,7 @@
 //! `flyback-reversed`: a freewheel diode fitted backwards conducts from the rail in the on state
 //! and shorts the supply through the switch. See `rules/flyback-reversed.md`.
 
-use super::switch_util::{
+use super::support::switch::{
     branch_ends, finding_at, is_switch, label, load_device, name, net_name, rail,
 };
 use super::units::format_si;
@@ -55,7 +55,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
                 None => message
                     .push_str(", a short across the supply that burns the diode or the switch"),
             }
-            let Some(mut f) = finding_at(RULE, Severity::Error, cx, fw.device, message) else {
+            let Some(mut f) = finding_at(RULE, RULE.severity(), cx, fw.device, message) else {
                 continue;
             };
             f = label(
@@ -125,7 +125,7 @@ fn reversed_clamp(cx: &RuleContext<'_>, sw: &SwitchFacts, fw: &Freewheel) -> Opt
     message.push_str(&format!(
         ", so {load_name} never turns off, and at turn-off it clamps nothing"
     ));
-    let mut f = finding_at(RULE, Severity::Error, cx, fw.device, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, fw.device, message)?;
     f = label(f, cx, sw.device, "the switch it bypasses");
     if let Some(l) = load {
         f = label(f, cx, l, "stays energised");

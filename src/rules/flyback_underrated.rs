@@ -1,14 +1,14 @@
 //! `flyback-underrated`: a freewheel diode whose voltage, current or recovery rating does not
 //! fit its load. See `rules/flyback-underrated.md`.
 
-use super::switch_util::{
+use super::support::switch::{
     diode_hint, duty_text, finding_at, is_pwm, is_switch, kind, label, load_device, load_of, name,
     rail, rated,
 };
 use super::units::{format_si, percent};
 use super::Rule;
 use super::RuleContext;
-use crate::analysis::{Freewheel, FreewheelKind, SwitchFacts};
+use crate::analysis::{freewheel_current, Freewheel, FreewheelKind, SwitchFacts};
 use crate::circuit::{DeviceId, Kind};
 use crate::diagnostic::{Finding, Severity};
 
@@ -119,7 +119,7 @@ impl Diode<'_, '_> {
         let d = self.name();
         let (severity, why) = if vrrm.value < v {
             (
-                Severity::Error,
+                RULE.grade(Severity::Error),
                 format!(
                     "below the rail itself: it breaks down every time {} turns on",
                     name(self.cx, self.sw.device)
@@ -127,7 +127,7 @@ impl Diode<'_, '_> {
             )
         } else {
             (
-                Severity::Warning,
+                RULE.grade(Severity::Warning),
                 "below twice the rail (common practice: the rail rings and spikes at each switching edge)".to_string(),
             )
         };
@@ -164,7 +164,7 @@ impl Diode<'_, '_> {
         let freq = self.sw.frequency_hz.as_ref();
         let (avg, formula) = match (tau, freq) {
             (Some(tau), Some(f)) if tau > 0.0 && f.min > 0.0 => {
-                let (avg, d) = worst_rl_average(i_on, tau, f, duty);
+                let (avg, d) = freewheel_current::worst_rl_average(i_on, tau, f, duty);
                 (
                     avg,
                     format!(
@@ -198,7 +198,7 @@ impl Diode<'_, '_> {
             duty_text(duty),
             format_si(rating.value, "A"),
         );
-        let f = self.finding(Severity::Warning, message)?;
+        let f = self.finding(RULE.grade(Severity::Warning), message)?;
         Some(
             f.with_help(format!("replace {d} with {}", self.hint(avg.max(i_on))))
                 .with_value("if_avg", rating.value, "A", rating.source)
@@ -229,7 +229,7 @@ impl Diode<'_, '_> {
             format_si(rating.2.value, "A"),
             rating.1,
         );
-        let f = self.finding(Severity::Warning, message)?;
+        let f = self.finding(RULE.grade(Severity::Warning), message)?;
         Some(
             f.with_help(format!("replace {d} with {}", self.hint(i_on)))
                 .with_value(rating.0, rating.2.value, "A", rating.2.source)
@@ -258,7 +258,7 @@ impl Diode<'_, '_> {
         );
         let amps = self.on_current().map_or(0.0, |i| i.0);
         let rail_v = rail(self.cx, self.sw).map_or(0.0, |r| r.v.max);
-        let f = self.finding(Severity::Warning, message)?;
+        let f = self.finding(RULE.grade(Severity::Warning), message)?;
         Some(
             f.with_help(format!(
                 "replace {d} with {}: a Schottky has no reverse recovery; or use a fast-recovery \
@@ -268,73 +268,5 @@ impl Diode<'_, '_> {
             .with_value("trr", trr.value, "s", trr.source)
             .with_value("pwm_frequency", f_hz.max, "Hz", "computed"),
         )
-    }
-}
-
-/// The diode's average current in the RL steady state of a stalled winding (I = V/R with the
-/// switch on, ideal switch and diode), worst over the duty and frequency ranges.
-///
-/// First-order RL response, i(t) = I∞ + (i₀ − I∞)·e^(−t/τ): with a = e^(−T_on/τ) and
-/// b = e^(−T_off/τ) the current peaks at I_max = I·(1 − a)/(1 − a·b) and decays to I_max·b
-/// through the diode, which carries the charge τ·I_max·(1 − b) each period. In the limits this
-/// is (1 − D)·D·I (τ ≫ T, the current barely ripples) and 0 (τ ≪ T).
-fn worst_rl_average(
-    i: f64,
-    tau: f64,
-    f: &crate::analysis::Range,
-    duty: &crate::analysis::Range,
-) -> (f64, f64) {
-    let mut best = (0.0, duty.min);
-    let steps = 20;
-    for freq in [f.min, f.max] {
-        if freq <= 0.0 || !freq.is_finite() {
-            continue;
-        }
-        let period = 1.0 / freq;
-        let mut ds: Vec<f64> = (0..=steps)
-            .map(|k| duty.min + (duty.max - duty.min) * k as f64 / steps as f64)
-            .collect();
-        ds.push(0.5f64.clamp(duty.min, duty.max));
-        for d in ds {
-            let d = d.clamp(0.0, 1.0);
-            let a = (-(d * period) / tau).exp();
-            let b = (-((1.0 - d) * period) / tau).exp();
-            let denominator = 1.0 - a * b;
-            if denominator <= 0.0 {
-                continue;
-            }
-            let i_max = i * (1.0 - a) / denominator;
-            let avg = tau * i_max * (1.0 - b) / period;
-            if avg > best.0 {
-                best = (avg, d);
-            }
-        }
-    }
-    best
-}
-
-#[cfg(test)]
-mod tests {
-    use super::worst_rl_average;
-    use crate::analysis::Range;
-
-    // First-order RL steady state: its limits are (1 − D)·D·I for τ ≫ T and 0 for τ ≪ T.
-    #[test]
-    fn rl_average_has_the_textbook_limits() {
-        let d = Range::point(0.3, "");
-        let f = Range::point(20e3, "");
-        let (slow, _) = worst_rl_average(2.0, 1.0, &f, &d);
-        assert!((slow - 0.7 * 0.3 * 2.0).abs() < 1e-3, "{slow}");
-        let (fast, _) = worst_rl_average(2.0, 1e-9, &f, &d);
-        assert!(fast < 1e-3, "{fast}");
-        // Over a duty range the worst is at D = 0.5 when the current barely ripples.
-        let range = Range {
-            min: 0.1,
-            max: 0.9,
-            min_state: String::new(),
-            max_state: String::new(),
-        };
-        let (worst, at) = worst_rl_average(2.0, 1.0, &f, &range);
-        assert!((worst - 0.5).abs() < 1e-3 && (at - 0.5).abs() < 1e-9);
     }
 }

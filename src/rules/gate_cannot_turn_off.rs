@@ -1,7 +1,7 @@
 //! `gate-cannot-turn-off`: the off-state gate-source voltage is too close to the threshold.
 //! See `rules/gate-cannot-turn-off.md`.
 
-use super::switch_util::{
+use super::support::switch::{
     drive_level, finding_at, in_conduction_sense, is_switch, kind, label, load_device, name, rail,
     rated_or, SwitchIndex,
 };
@@ -44,7 +44,9 @@ fn reported_as_shoot_through(
 ) -> bool {
     sw.bridge_partner
         .and_then(|p| index.get(p))
-        .is_some_and(|partner| super::switch_util::conducts_with_partner(cx, sw, partner).is_some())
+        .is_some_and(|partner| {
+            super::support::switch::conducts_with_partner(cx, sw, partner).is_some()
+        })
 }
 
 fn finding(
@@ -67,9 +69,9 @@ fn finding(
         if reported_as_shoot_through(cx, index, sw) {
             return None;
         }
-        Severity::Error
+        RULE.grade(Severity::Error)
     } else if v > 0.5 * th.value {
-        Severity::Warning
+        RULE.grade(Severity::Warning)
     } else {
         return None;
     };

@@ -8,7 +8,7 @@
 //! is a logic output (high-impedance during reset and while unpowered), or when the gate is
 //! reached only through capacitors, diodes, switches or connectors, or by nothing at all.
 
-use super::hygiene_util::{finding_at, net_name, shown, Trace, Tracer};
+use super::support::hygiene::{finding_at, net_name, shown, Trace, Tracer};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Device, DeviceId, Kind, PinRole};
@@ -28,14 +28,14 @@ const SHOWN: usize = 4;
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     if !cx
         .circuit
-        .devices
+        .devices()
         .iter()
         .any(|d| d.kind.is_switch_transistor())
     {
         return;
     }
     let tracer = Tracer::new(cx);
-    for (id, device) in cx.circuit.devices.iter().enumerate() {
+    for (id, device) in cx.circuit.devices().iter().enumerate() {
         if !device.kind.is_switch_transistor() {
             continue;
         }
@@ -56,7 +56,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         // at every instant: the base is driven, however odd that is for a gate.
         let fed = trace.blocked.iter().any(|&d| {
             cx.circuit
-                .devices
+                .devices()
                 .get(d)
                 .is_some_and(|d| d.kind == Kind::CurrentSource)
         });
@@ -72,7 +72,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
                         d.control.is_none()
                             && cx
                                 .circuit
-                                .devices
+                                .devices()
                                 .get(d.device)
                                 .is_some_and(|x| x.kind.is_switch_transistor())
                     }))
@@ -92,7 +92,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         let unknown_driver = cx.circuit.unknown_part(id).is_some()
             || trace.nets.iter().any(|&n| {
                 cx.circuit
-                    .nets
+                    .nets()
                     .get(n)
                     .is_some_and(|net| cx.netlist.is_sensed(&net.name))
             });
@@ -158,7 +158,7 @@ fn report(
     };
     let mut finding = finding_at(
         RULE,
-        Severity::Warning,
+        RULE.severity(),
         element,
         format!(
             "the {gate_word} of {} (net `{g}`) {why}, and no resistor ties it to its \
@@ -174,7 +174,7 @@ fn report(
     for &id in floaters.iter().chain(trace.blocked.iter()).take(SHOWN) {
         if let Some(e) = cx
             .circuit
-            .devices
+            .devices()
             .get(id)
             .and_then(|d| cx.netlist.elements.get(d.element))
         {
@@ -194,7 +194,7 @@ fn names(cx: &RuleContext<'_>, ids: &[DeviceId]) -> String {
 }
 
 fn blocked_reason(cx: &RuleContext<'_>, ids: &[DeviceId]) -> &'static str {
-    let kind = |d: &DeviceId| cx.circuit.devices.get(*d).map(|x| x.kind);
+    let kind = |d: &DeviceId| cx.circuit.devices().get(*d).map(|x| x.kind);
     if ids.iter().all(|d| kind(d) == Some(Kind::Capacitor)) {
         "a capacitor passes no DC, so the level drifts"
     } else if ids.iter().any(|d| kind(d) == Some(Kind::Switch)) {
@@ -209,7 +209,7 @@ fn blocked_reason(cx: &RuleContext<'_>, ids: &[DeviceId]) -> &'static str {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     fn mcu_drive(pull: bool) -> Deck {
         let mut d = Deck::new();
@@ -258,7 +258,7 @@ mod tests {
             .position(|e| e.name == "RPD")
             .unwrap();
         let g = fan.net("g");
-        fan.circuit.devices[rpd].pins[1].net = g;
+        fan.device_mut(rpd).pins[1].net = g;
         assert!(fan.run(check).is_empty());
     }
 

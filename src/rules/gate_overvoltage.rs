@@ -2,7 +2,7 @@
 //! `rules/gate-overvoltage.md`.
 
 use super::eseries::{ohms, round_down, round_up, E12};
-use super::switch_util::{finding_at, is_switch, kind, label, name, polarity, rated_or};
+use super::support::switch::{finding_at, is_switch, kind, label, name, polarity, rated_or};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
@@ -69,7 +69,7 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
         format_si(vgs, "V"),
         format_si(max.value, "V")
     );
-    let mut f = finding_at(RULE, Severity::Error, cx, sw.device, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, sw.device, message)?;
     if let Some(d) = &sw.driver {
         f = label(
             f,

@@ -6,7 +6,7 @@
 //! therefore needs `V_GS > V_th + √(2·I/k)` just to stay out of saturation; one more volt keeps
 //! its on-resistance low.
 
-use super::switch_util::{
+use super::support::switch::{
     drive_level, finding_at, held_off, in_conduction_sense, is_switch, kind, label, load_device,
     load_of, name, rated_or, saturated_current, shorted_through,
 };
@@ -36,7 +36,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     if cx.analysis.switches.is_empty() {
         return;
     }
-    let unreferenced = super::switch_util::reference::switches_without_reference(cx);
+    let unreferenced = super::support::switch::reference::switches_without_reference(cx);
     for sw in &cx.analysis.switches {
         let Some(k) = kind(cx, sw.device).filter(|k| k.is_mos()) else {
             continue;
@@ -138,7 +138,7 @@ fn follower(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding> 
         )),
         (None, None) => message.push_str(", in its linear region instead of switching"),
     }
-    let mut f = finding_at(RULE, Severity::Error, cx, sw.device, message)?;
+    let mut f = finding_at(RULE, RULE.grade(Severity::Error), cx, sw.device, message)?;
     if let Some(d) = &sw.driver {
         f = label(
             f,
@@ -250,7 +250,7 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
     let (severity, message) = if vgs < th_min.value {
         let load = load_device(cx, sw).map_or_else(|| "its load".to_string(), |l| name(cx, l));
         (
-            Severity::Error,
+            RULE.grade(Severity::Error),
             format!(
                 "{s}'s gate gets only {}{from} ({state}): below its lowest threshold of {}, so \
                  {s} never turns on and {load} never runs; it needs {} ({reason_short})",
@@ -275,7 +275,7 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
                 format_si(p.max, "W")
             ));
         }
-        (Severity::Error, m)
+        (RULE.grade(Severity::Error), m)
     } else if vgs < RATED_SHARE * rated.value {
         let mut m = format!(
             "{s}'s gate gets {}{from} ({state}), below the {} its on-resistance is rated at",
@@ -289,14 +289,14 @@ fn weak_drive(cx: &RuleContext<'_>, sw: &SwitchFacts, k: Kind) -> Option<Finding
             ));
             if let Some(rds) = cx
                 .circuit
-                .devices
+                .devices()
                 .get(sw.device)
                 .and_then(|d| d.data.get("rds_on"))
             {
                 m.push_str(&format!(" instead of {}", format_si(rds.value, "Ω")));
             }
         }
-        (Severity::Note, m)
+        (RULE.grade(Severity::Note), m)
     } else {
         return None;
     };

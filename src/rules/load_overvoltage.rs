@@ -1,7 +1,7 @@
 //! `load-overvoltage`: a load's effective or peak voltage exceeds its rating. See
 //! `rules/load-overvoltage.md`.
 
-use super::switch_util::{
+use super::support::switch::{
     duty_text, finding_at, label, name, supply_facts, timer_facts, NetIndex, SwitchIndex,
 };
 use super::units::{format_si, percent};
@@ -53,9 +53,9 @@ fn finding(
     let own_switch = load.switch.and_then(|s| switches.get(s));
     let starved = load.full_on_v.is_some();
     let severity = if eff > EFFECTIVE_ERROR * r || pk > PEAK_ERROR * r {
-        Severity::Error
+        RULE.grade(Severity::Error)
     } else if eff > EFFECTIVE_WARNING * r || pk > PEAK_WARNING * r {
-        Severity::Warning
+        RULE.grade(Severity::Warning)
     } else {
         return None;
     };
@@ -187,7 +187,7 @@ fn supply_of(
     own_switch: Option<&SwitchFacts>,
     load: &LoadFacts,
 ) -> Option<usize> {
-    let d = cx.circuit.devices.get(load.device)?;
+    let d = cx.circuit.devices().get(load.device)?;
     [PinRole::Pos, PinRole::Neg]
         .into_iter()
         .filter_map(|r| d.pin(r))

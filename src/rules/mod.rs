@@ -70,6 +70,24 @@ pub struct Rule {
     pub check: Option<fn(&RuleContext<'_>, &mut Vec<Finding>)>,
 }
 
+impl Rule {
+    /// The severity of a finding of an ungraded rule: the one its identity declares.
+    pub const fn severity(&self) -> Severity {
+        self.default_severity
+    }
+
+    /// The severity of a graded finding: `wanted` when the rule's identity lists it among the
+    /// grades it gives, else the rule's default. A finding never carries a severity the rule
+    /// does not declare, so `kickback rules` always tells the whole range.
+    pub fn grade(&self, wanted: Severity) -> Severity {
+        if wanted == self.default_severity || self.grades.contains(&wanted) {
+            wanted
+        } else {
+            self.default_severity
+        }
+    }
+}
+
 impl From<Rule> for String {
     fn from(rule: Rule) -> String {
         rule.id.to_string()
@@ -171,10 +189,8 @@ pub mod assumed;
 pub mod edits;
 pub mod eseries;
 pub mod front_end;
-pub mod hygiene_util;
 pub mod part_models;
+pub mod support;
 pub mod suppress;
-pub mod switch_util;
-pub mod timer_util;
 pub mod units;
 pub mod unknown_parts;

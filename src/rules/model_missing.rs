@@ -4,7 +4,7 @@
 //! When an include could not be read, the names left undefined are blamed on it: one warning
 //! per missing file, listing what it would have defined, instead of an error per element.
 
-use super::hygiene_util::{finding_at, Once};
+use super::support::hygiene::{finding_at, Once};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::UnknownPart;
@@ -98,7 +98,7 @@ fn missing(cx: &RuleContext<'_>, element: &FlatElement, name: &str, uses: usize)
         message.push_str(&format!(" ({uses} elements use it)"));
     }
     message.push_str(": a simulator stops here, and kickback cannot tell what the part is");
-    let mut finding = finding_at(RULE, Severity::Error, element, message);
+    let mut finding = finding_at(RULE, RULE.grade(Severity::Error), element, message);
     if let Some(model) = elsewhere {
         finding = finding.with_label(model.span, format!("`{}` is defined here", model.name));
     }
@@ -189,9 +189,9 @@ fn blame_missing_includes(
     };
     let project_file = missing.iter().any(|m| !is_absolute(&m.path));
     let severity = if names.is_empty() || !project_file {
-        Severity::Note
+        RULE.grade(Severity::Note)
     } else {
-        Severity::Warning
+        RULE.grade(Severity::Warning)
     };
     let place = if paths.len() == 1 {
         "put the file where the path points (relative to this netlist) or correct the path"

@@ -4,7 +4,7 @@
 //! The finding points at the later line; the earlier one is labelled. When the two come from
 //! different instance lines (two `X` lines with one name), those lines are the ones shown.
 
-use super::hygiene_util::Once;
+use super::support::hygiene::Once;
 use super::Rule;
 use super::RuleContext;
 use crate::diagnostic::{Finding, Severity};
@@ -53,7 +53,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         let free = free_name(&name, scope, names);
         let mut finding = Finding::new(
             RULE,
-            Severity::Error,
+            RULE.severity(),
             here,
             format!(
                 "`{name}` is defined twice (SPICE names are case-insensitive): a simulator \
@@ -142,7 +142,7 @@ fn free_name(name: &str, scope: &str, taken: &HashSet<String>) -> String {
 mod tests {
     use super::*;
     use crate::diagnostic::InstanceStep;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
     use crate::source::FileId;
 
     #[test]

@@ -5,10 +5,10 @@
 //! connection is a part's pin (a timer, a transistor, a kept subcircuit), which
 //! `pin-unconnected` reports with what that pin does.
 
-use super::hygiene_util::{
+use super::support::hygiene::{
     finding_at, is_no_connect_name, is_part, net_name, wire_is_ground_or_global, wire_pins,
 };
-use super::hygiene_util::{NetIndex, Once};
+use super::support::hygiene::{NetIndex, Once};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::NetId;
@@ -53,7 +53,7 @@ struct Dangling<'a> {
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
     let mut dangling = Vec::new();
-    for net in 0..cx.circuit.nets.len() {
+    for net in 0..cx.circuit.nets().len() {
         let Some((device_id, pin)) = single_connection(cx, &index, net) else {
             continue;
         };
@@ -68,7 +68,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         if cx.netlist.is_sensed(net_name(cx, net)) {
             continue;
         }
-        let Some(device) = cx.circuit.devices.get(device_id) else {
+        let Some(device) = cx.circuit.devices().get(device_id) else {
             continue;
         };
         let Some(element) = cx.netlist.elements.get(device.element) else {
@@ -104,7 +104,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let per_line = per_line(&dangling);
     let mut grouped_lines: HashSet<Span> = HashSet::new();
     for d in &dangling {
-        let Some(device) = cx.circuit.devices.get(d.device) else {
+        let Some(device) = cx.circuit.devices().get(d.device) else {
             continue;
         };
         let Some(element) = cx.netlist.elements.get(device.element) else {
@@ -132,7 +132,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         };
         let mut finding = finding_at(
             RULE,
-            Severity::Warning,
+            RULE.severity(),
             element,
             format!(
                 "net `{name}`{elsewhere} has a single connection ({} node {}): nothing else is \
@@ -185,7 +185,7 @@ fn single_connection(
         [(device, pin)] => {
             let on_this_net = cx
                 .circuit
-                .devices
+                .devices()
                 .get(device)
                 .and_then(|d| d.pins.get(pin))
                 .is_some_and(|p| p.net == net);
@@ -228,7 +228,7 @@ fn grouped(element: &crate::netlist::FlatElement, line: &LineDangling) -> Findin
     let rest = line.nets.saturating_sub(named.len());
     finding_at(
         RULE,
-        Severity::Warning,
+        RULE.severity(),
         element,
         format!(
             "{} nets on {}'s line have a single connection: {} and {rest} more; nothing else is \
@@ -294,8 +294,10 @@ fn closest(
     let limit = if length <= 4 { 1 } else { 2 };
     let mut best: Option<(usize, std::cmp::Reverse<usize>, String, NetId)> = None;
     let first = device.saturating_sub(WINDOW);
-    let last = device.saturating_add(WINDOW).min(cx.circuit.devices.len());
-    for near in cx.circuit.devices.get(first..last).unwrap_or(&[]) {
+    let last = device
+        .saturating_add(WINDOW)
+        .min(cx.circuit.devices().len());
+    for near in cx.circuit.devices().get(first..last).unwrap_or(&[]) {
         let Some(element) = cx.netlist.elements.get(near.element) else {
             continue;
         };
@@ -335,7 +337,7 @@ fn closest(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn typo_net_suggests_the_real_one() {

@@ -6,7 +6,7 @@
 //! trigger), a BJT's substrate; its RESET is `timer-reset-floating`'s. A pin of a part of
 //! unknown kind on a net named as a no-connect is taken at its word.
 
-use super::hygiene_util::{
+use super::support::hygiene::{
     finding_at, is_no_connect_name, is_part, net_name, pin_label, wire_is_ground_or_global,
     wire_pins, NetIndex,
 };
@@ -27,7 +27,7 @@ pub const RULE: Rule = Rule {
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
-    for (id, device) in cx.circuit.devices.iter().enumerate() {
+    for (id, device) in cx.circuit.devices().iter().enumerate() {
         let Some(element) = cx.netlist.elements.get(device.element) else {
             continue;
         };
@@ -86,7 +86,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             )
         };
         out.push(
-            finding_at(RULE, Severity::Warning, element, message)
+            finding_at(RULE, RULE.severity(), element, message)
                 .with_value(
                     "open_pins",
                     open.len() as f64,
@@ -133,7 +133,7 @@ fn consequence(kind: Kind, role: PinRole) -> &'static str {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn open_trigger_fires_open_control_does_not() {

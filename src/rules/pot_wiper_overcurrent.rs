@@ -2,7 +2,7 @@
 //! worst position of its travel. See `rules/pot-wiper-overcurrent.md`.
 
 use super::eseries::{ohms, round_up, E12};
-use super::switch_util::{dc_resistance, finding_at, label, name, timer_facts, NetIndex};
+use super::support::switch::{dc_resistance, finding_at, label, name, timer_facts, NetIndex};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
@@ -30,7 +30,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 /// `wiper_current_max`, else √(power_rating/R) (common practice: the track's full power
 /// through the wiper's contact).
 fn wiper_limit(cx: &RuleContext<'_>, id: DeviceId) -> Option<Rated> {
-    let d = cx.circuit.devices.get(id)?;
+    let d = cx.circuit.devices().get(id)?;
     if let Some(r) = d.data.get("wiper_current_max") {
         return Some(r.clone());
     }
@@ -57,7 +57,7 @@ fn context(
         .iter()
         .find(|t| t.pots.contains(&id) || t.discharge_chain.contains(&id));
     let from_timer = timer.and_then(|t| t.supply_v.as_ref()).map(|r| r.max);
-    let from_pins = cx.circuit.devices.get(id).and_then(|d| {
+    let from_pins = cx.circuit.devices().get(id).and_then(|d| {
         d.pins
             .iter()
             .filter_map(|p| index.supply_on(cx, p.net))
@@ -69,7 +69,7 @@ fn context(
 
 fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Option<Finding> {
     let id = facts.device;
-    if cx.circuit.devices.get(id)?.kind != Kind::Potentiometer {
+    if cx.circuit.devices().get(id)?.kind != Kind::Potentiometer {
         return None;
     }
     let wiper = facts.wiper_current_a.as_ref()?;
@@ -89,7 +89,7 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Opt
         format_si(amps, "A"),
         format_si(limit.value, "A")
     );
-    let mut f = finding_at(RULE, Severity::Warning, cx, id, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, id, message)?;
     let (timer, rail) = context(cx, index, id);
     if let Some(t) = timer {
         f = label(f, cx, t, "its timing network runs through the wiper");

@@ -6,7 +6,7 @@
 //! driving timer's RA, RB and C. One finding per frequency-setting driver, at the line whose
 //! value sets the frequency (the PULSE source, the astable's timing capacitor).
 
-use super::hygiene_util::{
+use super::support::hygiene::{
     astable, astable_frequency, capacitance, device_element, finding_at, resistance, shown,
     NetIndex, Tracer,
 };
@@ -72,7 +72,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
                     .copied()
                     .filter(|&d| {
                         cx.circuit
-                            .devices
+                            .devices()
                             .get(d)
                             .is_some_and(|x| x.kind.is_inductive())
                     })
@@ -130,14 +130,14 @@ fn from_topology(
 ) {
     if !cx
         .circuit
-        .devices
+        .devices()
         .iter()
         .any(|d| d.kind.is_switch_transistor())
     {
         return;
     }
     let tracer = Tracer::new(cx);
-    for (id, device) in cx.circuit.devices.iter().enumerate() {
+    for (id, device) in cx.circuit.devices().iter().enumerate() {
         if !device.kind.is_switch_transistor() {
             continue;
         }
@@ -158,7 +158,7 @@ fn from_topology(
             .flat_map(|&n| index.on(n).iter().map(|&(d, _)| d))
             .filter(|&d| {
                 cx.circuit
-                    .devices
+                    .devices()
                     .get(d)
                     .is_some_and(|x| x.kind.is_inductive())
             })
@@ -184,8 +184,13 @@ fn from_topology(
             })
         });
         let timer = trace.drivers.iter().find_map(|&(d, role)| {
-            (role == PinRole::Out && cx.circuit.devices.get(d).is_some_and(|x| x.kind.is_timer()))
-                .then_some(d)
+            (role == PinRole::Out
+                && cx
+                    .circuit
+                    .devices()
+                    .get(d)
+                    .is_some_and(|x| x.kind.is_timer()))
+            .then_some(d)
         });
         if let Some(driver) = pulse.or(timer) {
             let g = groups.entry(driver).or_default();
@@ -263,7 +268,7 @@ fn report(
     let load_names: Vec<String> = loads.iter().map(|&l| shown(cx, l)).collect();
     let noun = loads
         .first()
-        .and_then(|&l| cx.circuit.devices.get(l))
+        .and_then(|&l| cx.circuit.devices().get(l))
         .map_or("load", |d| load_noun(d.kind));
     let (low, high) = (format_si(drive.min_hz, "Hz"), format_si(drive.max_hz, "Hz"));
     let at = if low != high {
@@ -277,7 +282,7 @@ fn report(
     };
     let mut finding = finding_at(
         RULE,
-        Severity::Note,
+        RULE.severity(),
         element,
         format!(
             "{} {} switched at {at} (from {}), inside the audible band of 20 Hz–20 kHz: the \
@@ -428,7 +433,7 @@ fn spice(value: f64) -> String {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn fan_at_24_khz_is_quiet_at_2_khz_fires_on_the_capacitor() {

@@ -8,7 +8,7 @@
 //!   capacitance or charge, take more than 5 % of the period: it spends that time half on,
 //!   and the switching loss `½·V·I·(t_r + t_f)·f` follows.
 
-use super::switch_util::{duty_text, finding_at, is_pwm, label, name, SwitchIndex};
+use super::support::switch::{duty_text, finding_at, is_pwm, label, name, SwitchIndex};
 use super::units::{format_si, percent};
 use super::Rule;
 use super::RuleContext;
@@ -73,7 +73,7 @@ fn chopped(cx: &RuleContext<'_>, switches: &SwitchIndex<'_>, load: &LoadFacts) -
             duty_text(duty)
         ));
     }
-    let mut finding = finding_at(RULE, Severity::Warning, cx, load.device, message)?;
+    let mut finding = finding_at(RULE, RULE.severity(), cx, load.device, message)?;
     let switch = load.switch.and_then(|s| switches.get(s));
     let driver = switch
         .and_then(|s| s.driver.as_ref())
@@ -131,7 +131,7 @@ fn slow_gate(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
             format_si(p, "W")
         ));
     }
-    let mut finding = finding_at(RULE, Severity::Warning, cx, sw.device, message)?;
+    let mut finding = finding_at(RULE, RULE.severity(), cx, sw.device, message)?;
     if let Some(d) = &sw.driver {
         finding = label(finding, cx, d.device, &format!("drives {s}'s gate"));
         for &r in &d.network {

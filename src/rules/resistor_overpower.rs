@@ -2,7 +2,7 @@
 //! state (pot wipers searched over their travel). See `rules/resistor-overpower.md`.
 
 use super::eseries::{ohms, round_up, E12};
-use super::switch_util::{
+use super::support::switch::{
     dc_resistance, element, finding_at, is_ground, kind, label, name, next_rating, rated_or,
     NetIndex, RESISTOR_WATTS,
 };
@@ -81,7 +81,7 @@ fn linear_stage_note(
         },
         facts.stage_reason
     );
-    let mut f = finding_at(RULE, Severity::Note, cx, first, message)?;
+    let mut f = finding_at(RULE, RULE.grade(Severity::Note), cx, first, message)?;
     for &(other, _) in &resistors[1..] {
         f = label(f, cx, other, "also in this stage's bias");
     }
@@ -110,7 +110,7 @@ fn involved(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> Vec<(Device
             }
         }
     }
-    let Some(d) = cx.circuit.devices.get(id) else {
+    let Some(d) = cx.circuit.devices().get(id) else {
         return found;
     };
     for pin in &d.pins {
@@ -124,7 +124,7 @@ fn involved(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> Vec<(Device
             continue;
         }
         for &(other, _) in on_net {
-            let pot = cx.circuit.devices.get(other).map(|o| o.kind) == Some(Kind::Potentiometer);
+            let pot = cx.circuit.devices().get(other).map(|o| o.kind) == Some(Kind::Potentiometer);
             if other != id && pot && !found.iter().any(|(f, _)| *f == other) {
                 found.push((other, "at its worst position".to_string()));
             }
@@ -140,7 +140,7 @@ fn involved(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> Vec<(Device
 /// resistance of its own). Its dissipation is the load's own copper loss, not a discrete
 /// resistor's.
 fn is_winding_copper(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> bool {
-    let (Some(device), Some(own)) = (cx.circuit.devices.get(id), element(cx, id)) else {
+    let (Some(device), Some(own)) = (cx.circuit.devices().get(id), element(cx, id)) else {
         return false;
     };
     let nested = !own.instances.is_empty();
@@ -221,9 +221,9 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Opt
         return None;
     }
     let severity = if p > rating.value {
-        Severity::Error
+        RULE.grade(Severity::Error)
     } else if p > DERATING * rating.value {
-        Severity::Warning
+        RULE.grade(Severity::Warning)
     } else {
         return None;
     };
@@ -292,9 +292,9 @@ fn finding(cx: &RuleContext<'_>, index: &NetIndex, facts: &ResistorFacts) -> Opt
     // Where the rating is only assumed, the verdict stands only if it would with the largest
     // rating an unstated part plausibly has.
     let holds_at = if p > UNSTATED_RATING_MAX_W {
-        Some(Severity::Error)
+        Some(RULE.grade(Severity::Error))
     } else if p > DERATING * UNSTATED_RATING_MAX_W {
-        Some(Severity::Warning)
+        Some(RULE.grade(Severity::Warning))
     } else {
         None
     };

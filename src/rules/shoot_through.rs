@@ -5,8 +5,8 @@
 //! switch on (error); two separate PULSE drives whose on-times overlap (error); and a shared
 //! drive that passes through the band where both conduct on every edge (warning).
 
-use super::switch_util::{conducts_with_partner, shared, threshold_min};
-use super::switch_util::{
+use super::support::switch::{conducts_with_partner, shared, threshold_min};
+use super::support::switch::{
     element, finding_at, held_off, in_conduction_sense, is_switch, kind, label, name, rail,
     SwitchIndex,
 };
@@ -123,7 +123,7 @@ impl Leg<'_, '_> {
             format_si(th.value, "V"),
             self.rail_text()
         );
-        let f = finding_at(RULE, Severity::Error, cx, stuck.device, message)?;
+        let f = finding_at(RULE, RULE.grade(Severity::Error), cx, stuck.device, message)?;
         let f = self.with_context(f, stuck, other);
         Some(
             f.with_help(format!(
@@ -141,7 +141,7 @@ impl Leg<'_, '_> {
         let cx = self.cx;
         let ka = kind(cx, self.a.device)?;
         let kb = kind(cx, self.b.device)?;
-        if super::switch_util::polarity(ka) != super::switch_util::polarity(kb) {
+        if super::support::switch::polarity(ka) != super::support::switch::polarity(kb) {
             return None;
         }
         let on = in_conduction_sense(self.b.vgs_on_v.as_ref()?, kb);
@@ -184,7 +184,13 @@ impl Leg<'_, '_> {
             format_si(ta.value, "V"),
             format_si(tb.value, "V"),
         );
-        let f = finding_at(RULE, Severity::Warning, cx, first.device, message)?;
+        let f = finding_at(
+            RULE,
+            RULE.grade(Severity::Warning),
+            cx,
+            first.device,
+            message,
+        )?;
         let f = self.with_context(f, first, second);
         Some(
             f.with_help(
@@ -217,7 +223,7 @@ impl Leg<'_, '_> {
         let (s, o) = (name(cx, self.a.device), name(cx, self.b.device));
         let (severity, message, value) = if (wa.period - wb.period).abs() > 1e-9 * wa.period {
             (
-                Severity::Error,
+                RULE.grade(Severity::Error),
                 format!(
                     "{s} and {o} are driven by PULSE sources of different periods ({} and {}): \
                      their on-times drift into each other and both conduct, shorting {} to ground",
@@ -239,7 +245,7 @@ impl Leg<'_, '_> {
             // stretch where both switches are fully on.
             if overlap > edge.max(1e-9 * wa.period) {
                 (
-                    Severity::Error,
+                    RULE.grade(Severity::Error),
                     format!(
                         "{s} and {o} are both on for {} of every {} period: their PULSE drives \
                          overlap and the leg shorts {} to ground",
@@ -251,7 +257,7 @@ impl Leg<'_, '_> {
                 )
             } else if overlap > 0.0 || dead < edge.max(1e-12) {
                 (
-                    Severity::Warning,
+                    RULE.grade(Severity::Warning),
                     format!(
                         "{s} turns on as {o} turns off with no dead time between their PULSE \
                          drives ({} gap, {} edges): both conduct during the edge",
@@ -302,7 +308,7 @@ fn on_window(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Window> {
             if !passive {
                 return None;
             }
-            Some(super::switch_util::polarity(kind(cx, sw.device)?) > 0.0)
+            Some(super::support::switch::polarity(kind(cx, sw.device)?) > 0.0)
         }
     };
     let Waveform::Pulse {

@@ -6,7 +6,7 @@
 //! whose controller is not in the netlist, or a linear coil driver: rather than guess, one note
 //! says what kickback needs to judge it.
 
-use super::switch_util::{device, finding_at, kind, label, load_device, name, NetIndex};
+use super::support::switch::{device, finding_at, kind, label, load_device, name, NetIndex};
 use super::Rule;
 use super::RuleContext;
 use crate::analysis::Stage;
@@ -47,7 +47,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
              the switch checks (freewheel path, {base} drive, dissipation) were not run on it",
             sw.stage_reason
         );
-        let Some(mut f) = finding_at(RULE, Severity::Note, cx, sw.device, message) else {
+        let Some(mut f) = finding_at(RULE, RULE.severity(), cx, sw.device, message) else {
             continue;
         };
         if let Some(l) = load {

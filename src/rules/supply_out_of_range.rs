@@ -1,7 +1,9 @@
 //! `supply-out-of-range`: a part's supply is outside its operating or absolute range at some
 //! supply corner (battery end of life included). See `rules/supply-out-of-range.md`.
 
-use super::switch_util::{finding_at, is_ground, label, name, supply_range, timer_facts, NetIndex};
+use super::support::switch::{
+    finding_at, is_ground, label, name, supply_range, timer_facts, NetIndex,
+};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
@@ -36,7 +38,7 @@ struct Limits {
 }
 
 fn limits(cx: &RuleContext<'_>, id: DeviceId) -> Option<Limits> {
-    let d = cx.circuit.devices.get(id)?;
+    let d = cx.circuit.devices().get(id)?;
     let fallback = defaults(d.kind);
     let get = |key: &str, pick: fn((f64, f64, f64)) -> f64| {
         d.data.get(key).cloned().or_else(|| {
@@ -56,7 +58,7 @@ fn limits(cx: &RuleContext<'_>, id: DeviceId) -> Option<Limits> {
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
-    for (id, d) in cx.circuit.devices.iter().enumerate() {
+    for (id, d) in cx.circuit.devices().iter().enumerate() {
         let Some(vcc) = d.pin(PinRole::Vcc) else {
             continue;
         };
@@ -92,7 +94,7 @@ fn finish(
             s,
             &format!(
                 "sets {part}'s supply: {}",
-                super::switch_util::range_text(range.min, range.max, "V")
+                super::support::switch::range_text(range.min, range.max, "V")
             ),
         ),
         None => f,
@@ -108,12 +110,16 @@ fn high(
 ) -> Option<Finding> {
     let v = range.max;
     let (severity, limit, what) = match (&limits.abs_max, &limits.max) {
-        (Some(a), _) if v > a.value => (Severity::Error, a, "absolute maximum"),
-        (_, Some(m)) if v > m.value => (Severity::Warning, m, "operating maximum"),
+        (Some(a), _) if v > a.value => (RULE.grade(Severity::Error), a, "absolute maximum"),
+        (_, Some(m)) if v > m.value => (RULE.grade(Severity::Warning), m, "operating maximum"),
         _ => return None,
     };
     let part = name(cx, id);
-    let kind = cx.circuit.devices.get(id).map_or(Kind::Unknown, |d| d.kind);
+    let kind = cx
+        .circuit
+        .devices()
+        .get(id)
+        .map_or(Kind::Unknown, |d| d.kind);
     let consequence = if severity == Severity::Error {
         "it can fail at once"
     } else {
@@ -161,7 +167,11 @@ fn low(
         return None;
     }
     let part = name(cx, id);
-    let kind = cx.circuit.devices.get(id).map_or(Kind::Unknown, |d| d.kind);
+    let kind = cx
+        .circuit
+        .devices()
+        .get(id)
+        .map_or(Kind::Unknown, |d| d.kind);
     let message = format!(
         "{part} ({kind}) gets only {} ({}): below its {} minimum supply, where its thresholds and \
          output level are no longer specified",
@@ -169,7 +179,7 @@ fn low(
         range.min_state,
         format_si(min.value, "V")
     );
-    let f = finding_at(RULE, Severity::Warning, cx, id, message)?;
+    let f = finding_at(RULE, RULE.grade(Severity::Warning), cx, id, message)?;
     let help = if kind == Kind::Timer555 && v >= 2.0 {
         format!(
             "use a CMOS 555 (2–15 V), or a supply that stays above {} at the battery's end of life",

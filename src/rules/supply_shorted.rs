@@ -6,7 +6,7 @@
 //! nets into one node first, so sources "in parallel" through such links count as parallel.
 //! Equal sources in parallel are not reported: no current flows between them.
 
-use super::hygiene_util::{device_element, finding_at, net_name, shown};
+use super::support::hygiene::{device_element, finding_at, net_name, shown};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Device, DeviceId, Kind, NetId};
@@ -28,14 +28,14 @@ pub const RULE: Rule = Rule {
 const MAX_PATH_LABELS: usize = 6;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
-    let nets = cx.circuit.nets.len();
+    let nets = cx.circuit.nets().len();
     if nets == 0 {
         return;
     }
     let mut joined = UnionFind::<usize>::new(nets);
     let mut links: HashMap<NetId, Vec<(DeviceId, NetId)>> = HashMap::new();
     let mut sources = Vec::new();
-    for (id, device) in cx.circuit.devices.iter().enumerate() {
+    for (id, device) in cx.circuit.devices().iter().enumerate() {
         let Some(element) = cx.netlist.elements.get(device.element) else {
             continue;
         };
@@ -140,7 +140,7 @@ fn across_short(
             net_name(cx, neg)
         )
     };
-    let mut finding = finding_at(RULE, Severity::Error, element, message);
+    let mut finding = finding_at(RULE, RULE.severity(), element, message);
     let dc = spec
         .and_then(|s| s.dc)
         .or(element.value.and_then(|v| v.known()));
@@ -239,7 +239,7 @@ fn fighting(
     }
     let mut finding = finding_at(
         RULE,
-        Severity::Error,
+        RULE.severity(),
         b,
         format!(
             "{} ({}) is in parallel with {} ({}){}: two voltage sources with different values \
@@ -285,7 +285,7 @@ fn fighting(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn source_across_ideal_inductor() {

@@ -2,16 +2,15 @@
 //! whose gate driver and source sit in different DC sections (two supplies whose negatives were
 //! never joined). See `rules/supply-unreferenced.md`.
 //!
-//! Sections are the nets joined by DC-conducting pins (see [`joins`]). A section that is only a
+//! Sections are the nets joined by DC-conducting pins (see [`joins_reference`]). A section that is only a
 //! gate or a 555 RESET behind capacitors is left to `gate-floating` and `timer-reset-floating`;
 //! a lone net with one pin to `net-dangling` and `pin-unconnected`.
 
-use super::hygiene_util::{device_element, finding_at, net_name, shown};
-use super::switch_util::reference::{
-    joins, sections, supplied_sections, unreferenced_drives, Unreferenced,
-};
+use super::support::hygiene::{device_element, finding_at, net_name, shown};
+use super::support::switch::reference::{unreferenced_drives, Unreferenced};
 use super::Rule;
 use super::RuleContext;
+use crate::circuit::sections::joins_reference;
 use crate::circuit::{DeviceId, Kind, NetId, PinRole};
 use crate::diagnostic::{Finding, Severity};
 use crate::rules::units::format_si;
@@ -47,19 +46,19 @@ struct Section {
 }
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
-    let count = cx.circuit.nets.len();
+    let count = cx.circuit.nets().len();
     if count == 0 {
         return;
     }
-    let Some(ground) = cx.circuit.nets.iter().position(|n| n.is_ground) else {
+    let Some(ground) = cx.circuit.nets().iter().position(|n| n.is_ground) else {
         no_reference(cx, out);
         return;
     };
-    let (sets, apart) = sections(cx);
+    let (sets, apart) = cx.circuit.dc_sections(cx.netlist);
     let mut referenced = vec![false; count];
     for (i, _) in cx
         .circuit
-        .nets
+        .nets()
         .iter()
         .enumerate()
         .filter(|(_, n)| n.is_ground)
@@ -94,7 +93,7 @@ fn no_reference(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     out.push(
         finding_at(
             RULE,
-            Severity::Error,
+            RULE.severity(),
             element,
             format!(
                 "no net of the deck is the reference (`{names}`): every voltage is undefined and \
@@ -115,7 +114,7 @@ fn floating_sections(
     referenced: &[bool],
 ) -> BTreeMap<usize, Section> {
     let mut sections: BTreeMap<usize, Section> = BTreeMap::new();
-    for net in 0..cx.circuit.nets.len() {
+    for net in 0..cx.circuit.nets().len() {
         let root = sets.find(net);
         if referenced.get(root).copied().unwrap_or(true) {
             continue;
@@ -129,7 +128,7 @@ fn floating_sections(
     if sections.is_empty() {
         return sections;
     }
-    for (id, device) in cx.circuit.devices.iter().enumerate() {
+    for (id, device) in cx.circuit.devices().iter().enumerate() {
         let letter = cx
             .netlist
             .elements
@@ -146,7 +145,7 @@ fn floating_sections(
                 s.pins += 1;
             }
             s.unknown_part |= cx.circuit.unknown_part(id).is_some();
-            let conducts = joins(device.kind, letter, pin.role);
+            let conducts = joins_reference(device.kind, letter, pin.role);
             if conducts {
                 s.conducting_pins += 1;
                 s.first_conducting.get_or_insert(id);
@@ -213,7 +212,7 @@ fn floating(cx: &RuleContext<'_>, section: &Section, ground: &str) -> Option<Fin
         let ret = device.pin(PinRole::Neg).map_or("?", |n| net_name(cx, n));
         finding_at(
             RULE,
-            Severity::Error,
+            RULE.severity(),
             element,
             format!(
                 "{}{volts} and the nets it feeds ({nets}) have no DC path to the reference \
@@ -230,7 +229,7 @@ fn floating(cx: &RuleContext<'_>, section: &Section, ground: &str) -> Option<Fin
     } else {
         finding_at(
             RULE,
-            Severity::Error,
+            RULE.severity(),
             element,
             format!(
                 "{nets} {} no DC path to the reference `{ground}`; {through}: the DC voltage \
@@ -267,7 +266,7 @@ fn mismatched_references(
     explained: &mut HashSet<usize>,
     out: &mut Vec<Finding>,
 ) {
-    if supplied_sections(cx, apart) <= 1 {
+    if cx.circuit.supplied_sections(apart) <= 1 {
         // Every supply and the reference share one section: every driver does too.
         return;
     }
@@ -278,7 +277,7 @@ fn mismatched_references(
         reference,
     } in unreferenced_drives(cx, apart)
     {
-        let Some(device) = cx.circuit.devices.get(id) else {
+        let Some(device) = cx.circuit.devices().get(id) else {
             continue;
         };
         explained.insert(sets.find(source));
@@ -298,7 +297,7 @@ fn mismatched_references(
         out.push(
             finding_at(
                 RULE,
-                Severity::Error,
+                RULE.severity(),
                 element,
                 format!(
                     "{}'s {terminal} is on `{s_name}`, but its {drive} driver {} is referenced \
@@ -326,7 +325,7 @@ fn mismatched_references(
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn clean_fan_is_quiet() {
@@ -339,32 +338,32 @@ mod tests {
         // The fan moves onto its own 24 V pack whose negative is `gnd2`.
         d.v("VB2", "v24", "gnd2", 24.0);
         let m1 = d
-            .circuit
-            .devices
+            .parts
+            .devices()
             .iter()
             .position(|x| x.kind == Kind::Nmos)
             .unwrap();
         let gnd2 = d.net("gnd2");
         let v24 = d.net("v24");
-        for pin in &mut d.circuit.devices[m1].pins {
+        for pin in &mut d.device_mut(m1).pins {
             if matches!(pin.role, PinRole::Source | PinRole::Bulk) {
                 pin.net = gnd2;
             }
         }
         let fan = d
-            .circuit
-            .devices
+            .parts
+            .devices()
             .iter()
             .position(|x| x.kind == Kind::DcMotor)
             .unwrap();
-        d.circuit.devices[fan].pins[0].net = v24;
+        d.device_mut(fan).pins[0].net = v24;
         let diode = d
-            .circuit
-            .devices
+            .parts
+            .devices()
             .iter()
             .position(|x| x.kind == Kind::Schottky)
             .unwrap();
-        d.circuit.devices[diode].pins[1].net = v24;
+        d.device_mut(diode).pins[1].net = v24;
         let found = d.run(check);
         assert_eq!(found.len(), 1, "{found:?}");
         assert!(found[0].message.contains("`gnd2`") && found[0].message.contains("XU1"));

@@ -4,7 +4,7 @@
 //! The loss is the analysis's: `I²·Rds(on)·D` with Rds(on) at the actual V_GS and × 1.5 for a
 //! hot die (common practice), or `V_CE·I_C·D` for a BJT, at the worst state and duty.
 
-use super::switch_util::{
+use super::support::switch::{
     duty_text, finding_at, in_conduction_sense, is_switch, kind, label, load_device, name,
     rated_or, shorted_through,
 };
@@ -109,7 +109,7 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
         loss.max_state,
         format_si(limit.value, "W")
     );
-    let mut f = finding_at(RULE, Severity::Warning, cx, sw.device, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, sw.device, message)?;
     if let Some(l) = load_device(cx, sw) {
         f = label(f, cx, l, "the load whose current it carries");
     }

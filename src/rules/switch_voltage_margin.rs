@@ -2,7 +2,7 @@
 //! it sees at turn-off (the rail plus whatever clamps the winding). See
 //! `rules/switch-voltage-margin.md`.
 
-use super::switch_util::{
+use super::support::switch::{
     finding_at, is_switch, kind, label, name, next_rating, rail, rated, VDS_CLASSES,
 };
 use super::units::format_si;
@@ -126,9 +126,9 @@ fn finding(cx: &RuleContext<'_>, sw: &SwitchFacts) -> Option<Finding> {
     let s = name(cx, sw.device);
     let label_v = if k.is_bjt() { "V_CE" } else { "V_DS" };
     let severity = if rating.value < st.volts {
-        Severity::Error
+        RULE.grade(Severity::Error)
     } else {
-        Severity::Warning
+        RULE.grade(Severity::Warning)
     };
     let message = if st.across_switch && severity == Severity::Error {
         format!(

@@ -5,7 +5,7 @@
 //! timers' CTRL pins (a divider resistor, a source, a zener, a transistor) counts as a
 //! deliberate drive.
 
-use super::hygiene_util::{finding_at, is_ground, net_name, NetIndex};
+use super::support::hygiene::{finding_at, is_ground, net_name, NetIndex};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Kind, PinRole};
@@ -24,11 +24,11 @@ pub const RULE: Rule = Rule {
 const BYPASS_F: f64 = 10e-9;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
-    if !cx.circuit.devices.iter().any(|d| d.kind.is_timer()) {
+    if !cx.circuit.devices().iter().any(|d| d.kind.is_timer()) {
         return;
     }
     let index = NetIndex::new(cx);
-    for (id, device) in cx.circuit.devices.iter().enumerate() {
+    for (id, device) in cx.circuit.devices().iter().enumerate() {
         if !device.kind.is_timer() {
             continue;
         }
@@ -44,7 +44,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             if other == id {
                 continue;
             }
-            let Some(d) = cx.circuit.devices.get(other) else {
+            let Some(d) = cx.circuit.devices().get(other) else {
                 continue;
             };
             let role = d.pins.get(pin_index).map(|p| p.role);
@@ -70,7 +70,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         out.push(
             finding_at(
                 RULE,
-                Severity::Note,
+                RULE.severity(),
                 element,
                 format!(
                     "CTRL of {} (net `{c}`) has no capacitor to ground: it is the tap of the \
@@ -96,7 +96,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn bypassed_or_divided_is_quiet_open_fires() {
@@ -109,7 +109,7 @@ mod tests {
             .position(|e| e.name == "CCTL")
             .unwrap();
         let v12 = d.net("v12");
-        d.circuit.devices[cctl].pins[1].net = v12;
+        d.device_mut(cctl).pins[1].net = v12;
         let found = d.run(check);
         assert_eq!(found.len(), 1);
         assert_eq!(found[0].severity, Severity::Note);

@@ -5,7 +5,7 @@
 //! output (another timer, a transistor, a logic output: a controller that drives RESET on
 //! purpose is not a wiring mistake).
 
-use super::hygiene_util::{finding_at, net_name, shown, Tracer};
+use super::support::hygiene::{finding_at, net_name, shown, Tracer};
 use super::Rule;
 use super::RuleContext;
 use crate::circuit::{Kind, PinRole};
@@ -22,11 +22,11 @@ pub const RULE: Rule = Rule {
 };
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
-    if !cx.circuit.devices.iter().any(|d| d.kind.is_timer()) {
+    if !cx.circuit.devices().iter().any(|d| d.kind.is_timer()) {
         return;
     }
     let tracer = Tracer::new(cx);
-    for device in cx.circuit.devices.iter().filter(|d| d.kind.is_timer()) {
+    for device in cx.circuit.devices().iter().filter(|d| d.kind.is_timer()) {
         let (Some(reset), Some(vcc)) = (device.pin(PinRole::Reset), device.pin(PinRole::Vcc))
         else {
             continue;
@@ -43,7 +43,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         let finding = if alone {
             finding_at(
                 RULE,
-                Severity::Warning,
+                RULE.severity(),
                 element,
                 format!(
                     "RESET of {} (net `{r}`) connects to nothing: a floating RESET picks up noise \
@@ -64,7 +64,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
                 .collect();
             let mut f = finding_at(
                 RULE,
-                Severity::Warning,
+                RULE.severity(),
                 element,
                 format!(
                     "RESET of {} (net `{r}`) is tied to nothing that holds it{}: it floats, picks \
@@ -80,7 +80,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             for &b in trace.blocked.iter().take(4) {
                 if let Some(e) = cx
                     .circuit
-                    .devices
+                    .devices()
                     .get(b)
                     .and_then(|d| cx.netlist.elements.get(d.element))
                 {
@@ -105,7 +105,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn reset_on_vcc_is_quiet() {
@@ -117,12 +117,12 @@ mod tests {
         let mut d = Deck::fan();
         let rst = d.net("rst");
         let u1 = d
-            .circuit
-            .devices
+            .parts
+            .devices()
             .iter()
             .position(|x| x.kind.is_timer())
             .unwrap();
-        d.circuit.devices[u1].pins[3].net = rst;
+        d.device_mut(u1).pins[3].net = rst;
         d.c("CRST", "rst", "0", 1e-6);
         let found = d.run(check);
         assert_eq!(found.len(), 1, "{found:?}");

@@ -1,7 +1,7 @@
 //! `timer-stuck`: a timer phase can never reach its threshold. See `rules/timer-stuck.md`.
 
 use super::eseries::{self, ohms};
-use super::timer_util::{at_state, finding_at, is_pot, is_resistor, label, name, ohms_of};
+use super::support::timer::{at_state, finding_at, is_pot, is_resistor, label, name, ohms_of};
 use super::units::format_si;
 use super::Rule;
 use super::RuleContext;
@@ -58,7 +58,7 @@ fn stuck(cx: &RuleContext<'_>, t: &TimerFacts, s: &StuckPhase) -> Option<Finding
         s.bias_a.is_none()
             && cx
                 .circuit
-                .devices
+                .devices()
                 .get(d)
                 .is_some_and(|x| x.kind.is_diode_like())
     });
@@ -106,7 +106,7 @@ fn stuck(cx: &RuleContext<'_>, t: &TimerFacts, s: &StuckPhase) -> Option<Finding
         },
     };
 
-    let mut f = finding_at(RULE, Severity::Error, cx, target, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, target, message)?;
     f = label(f, cx, t.device, &format!("{timer}: its {phase} never ends"));
     for &d in s.devices.iter().filter(|&&d| d != target).take(4) {
         f = label(f, cx, d, "in the capacitor's path in that phase");
@@ -183,7 +183,7 @@ fn stuck(cx: &RuleContext<'_>, t: &TimerFacts, s: &StuckPhase) -> Option<Finding
     if let Some(i) = s.bias_a {
         let source = cx
             .circuit
-            .devices
+            .devices()
             .get(t.device)
             .and_then(|d| {
                 d.data.get(if charging {

@@ -2,7 +2,7 @@
 //! `rules/trigger-overlap.md`.
 
 use super::eseries::{self, ohms};
-use super::timer_util::{
+use super::support::timer::{
     at_state, farads_of, finding_at, is_diode, is_pot, is_resistor, label, name, ohms_of,
     timing_part, ONE_SHOT_MAX_SHARE,
 };
@@ -131,7 +131,7 @@ fn overlap(cx: &RuleContext<'_>, t: &TimerFacts) -> Option<Finding> {
         }
     }
 
-    let mut f = finding_at(RULE, Severity::Error, cx, target, message)?;
+    let mut f = finding_at(RULE, RULE.severity(), cx, target, message)?;
     f = label(
         f,
         cx,

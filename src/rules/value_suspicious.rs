@@ -9,7 +9,7 @@
 //! The message gives both readings and what each does: the 555's frequency or pulse width by the
 //! datasheet equations where the part is an astable's RA/RB/C or a monostable's R/C.
 
-use super::hygiene_util::{
+use super::support::hygiene::{
     astable, astable_frequency, capacitance, device_element, finding_at, monostable,
     monostable_width, net_name, resistance, NetIndex, Once,
 };
@@ -71,8 +71,8 @@ impl Signal {
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let index = NetIndex::new(cx);
-    let mut signals: Vec<Signal> = vec![Signal::default(); cx.circuit.nets.len()];
-    for (id, device) in cx.circuit.devices.iter().enumerate() {
+    let mut signals: Vec<Signal> = vec![Signal::default(); cx.circuit.nets().len()];
+    for (id, device) in cx.circuit.devices().iter().enumerate() {
         for pin in &device.pins {
             match (device.kind, pin.role) {
                 (k, PinRole::Gate | PinRole::Base) if k.is_switch_transistor() => {
@@ -102,7 +102,7 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         signals: &signals,
     };
     let mut once = Once::default();
-    for (id, device) in cx.circuit.devices.iter().enumerate() {
+    for (id, device) in cx.circuit.devices().iter().enumerate() {
         let Some(element) = cx.netlist.elements.get(device.element) else {
             continue;
         };
@@ -158,11 +158,11 @@ struct Ctx<'c, 'a> {
 impl Ctx<'_, '_> {
     /// The reference, or a net a voltage source sets.
     fn is_fixed(&self, net: NetId) -> bool {
-        crate::rules::hygiene_util::is_ground(self.cx, net)
+        crate::rules::support::hygiene::is_ground(self.cx, net)
             || self.index.on(net).iter().any(|&(d, _)| {
                 self.cx
                     .circuit
-                    .devices
+                    .devices()
                     .get(d)
                     .is_some_and(|x| x.kind == Kind::VoltageSource)
             })
@@ -182,7 +182,7 @@ impl Ctx<'_, '_> {
             || self.index.on(net).iter().any(|&(d, pin)| {
                 self.cx
                     .circuit
-                    .devices
+                    .devices()
                     .get(d)
                     .and_then(|x| x.pins.get(pin))
                     .is_some_and(|p| matches!(p.role, PinRole::Source | PinRole::Emitter))
@@ -199,7 +199,7 @@ impl Ctx<'_, '_> {
 
     /// What a resistor does to a 555's timing under a changed value: "runs at 14.4 kHz".
     fn timing_effect(&self, timer: DeviceId, part: DeviceId, value: f64) -> Option<(String, f64)> {
-        let device = self.cx.circuit.devices.get(timer)?;
+        let device = self.cx.circuit.devices().get(timer)?;
         let pick = |id: DeviceId| {
             if id == part {
                 Some(value)
@@ -282,7 +282,7 @@ impl Ctx<'_, '_> {
         let (written, intended) = (format_si(r, "Ω"), format_si(mega, "Ω"));
         let mut finding = finding_at(
             RULE,
-            Severity::Warning,
+            RULE.severity(),
             element,
             format!(
                 "{} = `{text}` reads as {written}: in SPICE `M` is milli, mega is `MEG`. {}",
@@ -332,7 +332,7 @@ impl Ctx<'_, '_> {
         intended: &str,
     ) -> String {
         if let Some((timer, _)) = self.timer_on(device) {
-            let name = super::hygiene_util::shown(self.cx, timer);
+            let name = super::support::hygiene::shown(self.cx, timer);
             if let (Some((a, _)), Some((b, _))) = (
                 self.timing_effect(timer, id, r),
                 self.timing_effect(timer, id, mega),
@@ -356,11 +356,11 @@ impl Ctx<'_, '_> {
             let far_fixed = far.is_some_and(|n| self.is_fixed(n));
             let far_name = far.map_or("?", |n| net_name(self.cx, n));
             if let Some(switch) = signal.gate() {
-                let name = super::hygiene_util::shown(self.cx, switch);
+                let name = super::support::hygiene::shown(self.cx, switch);
                 let own_source = self
                     .cx
                     .circuit
-                    .devices
+                    .devices()
                     .get(switch)
                     .and_then(|s| s.pin(PinRole::Source).or(s.pin(PinRole::Emitter)));
                 if far_fixed || far == own_source {
@@ -377,11 +377,11 @@ impl Ctx<'_, '_> {
                 );
             }
             if let Some((timer, role)) = signal.timer() {
-                let name = super::hygiene_util::shown(self.cx, timer);
+                let name = super::support::hygiene::shown(self.cx, timer);
                 let pin_name = role.as_str().to_ascii_uppercase();
                 let held = match (
                     role,
-                    far.is_some_and(|n| crate::rules::hygiene_util::is_ground(self.cx, n)),
+                    far.is_some_and(|n| crate::rules::support::hygiene::is_ground(self.cx, n)),
                 ) {
                     (PinRole::Reset, true) => ": the timer is held in reset and never runs",
                     (PinRole::Trig, true) => ": the trigger is held low and the output stays high",
@@ -405,7 +405,7 @@ impl Ctx<'_, '_> {
         text: &str,
         timer: DeviceId,
     ) -> Finding {
-        let name = super::hygiene_util::shown(self.cx, timer);
+        let name = super::support::hygiene::shown(self.cx, timer);
         let effect = self
             .timing_effect(timer, id, r)
             .map_or(String::new(), |(a, _)| format!(": as written {name} {a}"));
@@ -420,7 +420,7 @@ impl Ctx<'_, '_> {
         };
         finding_at(
             RULE,
-            Severity::Warning,
+            RULE.severity(),
             element,
             format!(
                 "{} = {} is under 1 Ω in the timing network of {name}{effect}; below about 1 kΩ \
@@ -446,7 +446,7 @@ impl Ctx<'_, '_> {
         Some(
             finding_at(
                 RULE,
-                Severity::Warning,
+                RULE.severity(),
                 element,
                 format!(
                     "{} has a track resistance of {}: pots are 100 Ω to 1 MΩ (common practice), \
@@ -498,7 +498,7 @@ impl Ctx<'_, '_> {
         let effect = self
             .timer_on(device)
             .and_then(|(t, _)| {
-                let name = super::hygiene_util::shown(self.cx, t);
+                let name = super::support::hygiene::shown(self.cx, t);
                 let (a, _) = self.timing_effect(t, id, c)?;
                 let (b, _) = self.timing_effect(t, id, micro)?;
                 Some(format!(
@@ -515,7 +515,7 @@ impl Ctx<'_, '_> {
         Some(
             finding_at(
                 RULE,
-                Severity::Warning,
+                RULE.severity(),
                 element,
                 format!("{} = `{text}` {reading}{effect}", element.path),
             )
@@ -556,7 +556,7 @@ fn resistor_named_as_capacitor(element: &FlatElement, text: &str) -> Option<Stri
 mod tests {
     use super::*;
     use crate::netlist::Num;
-    use crate::rules::hygiene_util::testkit::Deck;
+    use crate::rules::support::hygiene::testkit::Deck;
 
     #[test]
     fn suffixes() {

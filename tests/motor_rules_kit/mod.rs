@@ -9,7 +9,7 @@ use kickback::analysis::{
     Stage, SupplyFacts, SwitchFacts, TimerFacts, TimerMode,
 };
 use kickback::circuit::{
-    Circuit, Device, DeviceId, Kind, Net, NetId, PartData, Pin, PinRole, Rated,
+    CircuitBuilder, Device, DeviceId, Kind, Net, NetId, PartData, Pin, PinRole, Rated,
 };
 use kickback::config::Config;
 use kickback::diagnostic::{Finding, InstanceStep};
@@ -20,7 +20,8 @@ use kickback::source::{FileId, Span};
 pub struct Kit {
     pub text: String,
     pub netlist: FlatNetlist,
-    pub circuit: Circuit,
+    /// The nets and devices; `run` builds the circuit, with its indexes, from them.
+    pub parts: CircuitBuilder,
     pub analysis: Analysis,
     pub config: Config,
 }
@@ -33,15 +34,15 @@ impl Default for Kit {
 
 impl Kit {
     pub fn new() -> Kit {
-        let mut circuit = Circuit::default();
-        circuit.nets.push(Net {
+        let mut parts = CircuitBuilder::new();
+        parts.add_net(Net {
             name: "0".into(),
             is_ground: true,
         });
         Kit {
             text: "test deck\n".into(),
             netlist: FlatNetlist::default(),
-            circuit,
+            parts,
             analysis: Analysis::default(),
             config: Config::default(),
         }
@@ -51,14 +52,23 @@ impl Kit {
         if name == "0" || name.eq_ignore_ascii_case("gnd") {
             return 0;
         }
-        if let Some(i) = self.circuit.nets.iter().position(|n| n.name == name) {
+        if let Some(i) = self.parts.nets().iter().position(|n| n.name == name) {
             return i;
         }
-        self.circuit.nets.push(Net {
+        self.parts.add_net(Net {
             name: name.into(),
             is_ground: false,
-        });
-        self.circuit.nets.len() - 1
+        })
+    }
+
+    /// A device added earlier.
+    pub fn device(&self, id: DeviceId) -> &Device {
+        &self.parts.devices()[id]
+    }
+
+    /// A device added earlier, to change before the next run.
+    pub fn device_mut(&mut self, id: DeviceId) -> &mut Device {
+        self.parts.device_mut(id).expect("a device of this kit")
     }
 
     fn add_line(&mut self, line: &str) -> Span {
@@ -113,13 +123,12 @@ impl Kit {
             instances: Vec::new(),
         };
         self.netlist.elements.push(element);
-        self.circuit.devices.push(Device {
+        self.parts.add_device(Device {
             element: self.netlist.elements.len() - 1,
             kind,
             pins: pin_list,
             data: part_data,
-        });
-        self.circuit.devices.len() - 1
+        })
     }
 
     pub fn two(&mut self, line: &str, kind: Kind, data: &[(&str, f64)]) -> DeviceId {
@@ -157,16 +166,17 @@ impl Kit {
         let e = self
             .netlist
             .elements
-            .get_mut(self.circuit.devices[id].element)
+            .get_mut(self.parts.devices()[id].element)
             .unwrap();
         e.path = format!("{inst}.{}", e.name);
         e.instances = vec![InstanceStep { name: inst, span }];
     }
 
     pub fn run(&self, check: fn(&RuleContext<'_>, &mut Vec<Finding>)) -> Vec<Finding> {
+        let circuit = self.parts.build(&self.netlist, &self.config);
         let cx = RuleContext {
             netlist: &self.netlist,
-            circuit: &self.circuit,
+            circuit: &circuit,
             analysis: &self.analysis,
             config: &self.config,
         };

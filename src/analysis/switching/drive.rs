@@ -52,7 +52,7 @@ pub fn polarity(t: &SwitchTopology) -> f64 {
 }
 
 fn control_and_common(cx: &Context<'_>, device: DeviceId) -> Option<(PinRole, PinRole)> {
-    let d = cx.circuit.devices.get(device)?;
+    let d = cx.circuit.devices().get(device)?;
     Some(if d.kind.is_mos() {
         (PinRole::Gate, PinRole::Source)
     } else {
@@ -68,7 +68,7 @@ pub fn drive_voltage(cx: &Context<'_>, device: DeviceId, solved: &Solved) -> Opt
 
 /// Physical V_DS (MOS) or V_CE (BJT) in a solve.
 pub fn channel_voltage(cx: &Context<'_>, device: DeviceId, solved: &Solved) -> Option<f64> {
-    let d = cx.circuit.devices.get(device)?;
+    let d = cx.circuit.devices().get(device)?;
     let (hi, lo) = if d.kind.is_mos() {
         (PinRole::Drain, PinRole::Source)
     } else {
@@ -224,7 +224,7 @@ pub fn numbers(
     current_known: bool,
 ) -> DriveNumbers {
     let device = t.device;
-    let Some(d) = cx.circuit.devices.get(device) else {
+    let Some(d) = cx.circuit.devices().get(device) else {
         return DriveNumbers::default();
     };
     let is_mos = d.kind.is_mos();
@@ -345,7 +345,7 @@ pub fn input_timing(
     if cx.is_pulse_source(input) {
         let spec = cx
             .circuit
-            .devices
+            .devices()
             .get(input)
             .and_then(|d| cx.netlist.elements.get(d.element))
             .and_then(|e| e.source.as_ref());

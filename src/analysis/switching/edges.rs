@@ -29,7 +29,7 @@ pub struct EdgeSetting<'a> {
 
 /// Output resistance of a driver and how it was found.
 fn driver_ohms(cx: &Context<'_>, driver: DeviceId) -> Option<(f64, String)> {
-    let d = cx.circuit.devices.get(driver)?;
+    let d = cx.circuit.devices().get(driver)?;
     let name = cx.name(driver);
     match d.kind {
         Kind::VoltageSource => Some(match d.data.value("rser").filter(|r| *r >= 0.0) {
@@ -60,7 +60,7 @@ fn input_capacitance(
     switch: DeviceId,
     swing: Option<f64>,
 ) -> Option<(f64, String)> {
-    let data = &cx.circuit.devices.get(switch)?.data;
+    let data = &cx.circuit.devices().get(switch)?.data;
     if let Some(c) = data.get("ciss").filter(|c| c.value > 0.0) {
         return Some((c.value, format!("CISS ({})", c.source)));
     }
@@ -75,7 +75,7 @@ fn input_capacitance(
 }
 
 pub fn gate_edges(cx: &Context<'_>, switch: DeviceId, s: &EdgeSetting<'_>) -> Option<GateEdges> {
-    let d = cx.circuit.devices.get(switch)?;
+    let d = cx.circuit.devices().get(switch)?;
     if !d.kind.is_mos() {
         return None;
     }
@@ -83,7 +83,7 @@ pub fn gate_edges(cx: &Context<'_>, switch: DeviceId, s: &EdgeSetting<'_>) -> Op
     let (mut ohms, driver_how) = driver_ohms(cx, driver)?;
     let mut series = Vec::new();
     for &part in &s.drive.network {
-        let p = cx.circuit.devices.get(part)?;
+        let p = cx.circuit.devices().get(part)?;
         if p.kind != Kind::Resistor {
             // A diode or ferrite in the path: its resistance is not a fixed number.
             return None;

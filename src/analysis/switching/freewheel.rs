@@ -76,7 +76,7 @@ fn add_partner(cx: &Context<'_>, t: &SwitchTopology, out: &mut Vec<Candidate>) {
     if let Some(partner) = t.partner {
         if cx
             .circuit
-            .devices
+            .devices()
             .get(partner)
             .is_some_and(|d| d.kind.is_mos())
         {
@@ -115,7 +115,7 @@ fn branch_candidates(cx: &Context<'_>, nets: &NetMap, t: &SwitchTopology) -> Vec
     let skipped = |net: NetId| net != switched && nets::rail(cx, net).is_some();
     for &net in branch_nets.iter().filter(|&&n| !skipped(n)) {
         for &(device, _) in nets.on(net) {
-            let Some(d) = cx.circuit.devices.get(device) else {
+            let Some(d) = cx.circuit.devices().get(device) else {
                 continue;
             };
             if let Some(diode) = rail_side_diode(cx, nets, device, net) {
@@ -203,7 +203,7 @@ fn ac_paths(
     // side's pulls it in: a diode in the path must conduct that way, or it is no path at all
     // (DC solves of a converter take its winding for a short and cannot tell).
     let conducts_on = |diode: DeviceId, from: NetId| -> bool {
-        let Some(d) = cx.circuit.devices.get(diode) else {
+        let Some(d) = cx.circuit.devices().get(diode) else {
             return false;
         };
         match t.side {
@@ -213,7 +213,7 @@ fn ac_paths(
         }
     };
     for &(device, _) in nets.on(switched) {
-        let Some(d) = cx.circuit.devices.get(device) else {
+        let Some(d) = cx.circuit.devices().get(device) else {
             continue;
         };
         let Some(far) = nets::other_end(cx, device, switched) else {
@@ -278,7 +278,7 @@ fn part_to(
     ok: &dyn Fn(NetId) -> bool,
 ) -> Option<DeviceId> {
     nets.on(net).iter().find_map(|&(d, _)| {
-        let kind = cx.circuit.devices.get(d)?.kind;
+        let kind = cx.circuit.devices().get(d)?.kind;
         if d == except || !want(kind) {
             return None;
         }
@@ -300,7 +300,7 @@ fn carries_energy(cx: &Context<'_>, nets: &NetMap, winding: DeviceId) -> bool {
         nets::rail(cx, n).is_none()
             && nets.on(n).iter().any(|&(d, _)| {
                 d != winding
-                    && cx.circuit.devices.get(d).is_some_and(|x| {
+                    && cx.circuit.devices().get(d).is_some_and(|x| {
                         x.kind.is_diode_like()
                             || x.kind.is_load()
                             || matches!(x.kind, Kind::Resistor | Kind::Capacitor)
@@ -317,7 +317,7 @@ fn rail_side_diode(
     partner: DeviceId,
     net: NetId,
 ) -> Option<(DeviceId, Option<NetId>)> {
-    let kind = cx.circuit.devices.get(partner)?.kind;
+    let kind = cx.circuit.devices().get(partner)?.kind;
     if !(kind.is_diode_like() || kind == Kind::Resistor) {
         return None;
     }
@@ -326,7 +326,7 @@ fn rail_side_diode(
         return None;
     };
     let diode = if *a == partner { *b } else { *a };
-    let d = cx.circuit.devices.get(diode)?;
+    let d = cx.circuit.devices().get(diode)?;
     let (Some(anode), Some(cathode)) = (d.pin(PinRole::Anode), d.pin(PinRole::Cathode)) else {
         return None;
     };
@@ -359,7 +359,7 @@ fn series_partner_end(
     let [partner] = others.as_slice() else {
         return None;
     };
-    let kind = cx.circuit.devices.get(*partner)?.kind;
+    let kind = cx.circuit.devices().get(*partner)?.kind;
     if !(kind.is_diode_like() || kind == Kind::Resistor) {
         return None;
     }

@@ -39,7 +39,7 @@ pub struct Bootstrap {
 }
 
 pub fn control_pin(cx: &Context<'_>, device: DeviceId) -> Option<NetId> {
-    let d = cx.circuit.devices.get(device)?;
+    let d = cx.circuit.devices().get(device)?;
     if d.kind.is_mos() {
         d.pin(PinRole::Gate)
     } else {
@@ -65,7 +65,7 @@ pub fn find(cx: &Context<'_>, nets: &NetMap, topology: &SwitchTopology) -> GateD
 
 /// True for the parts that only switch between levels: pulse sources, timers, logic outputs.
 pub fn is_switching_input(cx: &Context<'_>, device: DeviceId) -> bool {
-    match cx.circuit.devices.get(device).map(|d| d.kind) {
+    match cx.circuit.devices().get(device).map(|d| d.kind) {
         Some(k) if k.is_timer() || k == Kind::LogicOutput => true,
         Some(Kind::VoltageSource) => cx.is_pulse_source(device),
         _ => false,
@@ -87,7 +87,7 @@ fn control_of(
     if is_controlled_source(cx, driver) {
         // A linear controlled source switches when its input does: follow its control pins
         // (a behavioural `B` source has none, and its levels stay unknown).
-        let d = cx.circuit.devices.get(driver)?;
+        let d = cx.circuit.devices().get(driver)?;
         return [PinRole::CtrlPos, PinRole::CtrlNeg]
             .iter()
             .filter_map(|&role| d.pin(role))
@@ -106,7 +106,7 @@ fn control_of(
 /// voltage or current.
 pub fn is_controlled_source(cx: &Context<'_>, device: DeviceId) -> bool {
     cx.circuit
-        .devices
+        .devices()
         .get(device)
         .is_some_and(|d| d.kind == Kind::ControlledSource)
 }
@@ -122,7 +122,7 @@ fn driver_on(cx: &Context<'_>, nets: &NetMap, net: NetId, except: DeviceId) -> O
         if d == except {
             return None;
         }
-        let kind = cx.circuit.devices.get(d)?.kind;
+        let kind = cx.circuit.devices().get(d)?.kind;
         let drives = match kind {
             k if k.is_timer() || k == Kind::LogicOutput => role == PinRole::Out,
             Kind::VoltageSource => cx.is_pulse_source(d),
@@ -179,7 +179,7 @@ pub fn walk_back(
         for &(device, _) in nets.on(net) {
             let kind = cx
                 .circuit
-                .devices
+                .devices()
                 .get(device)
                 .map_or(Kind::Unknown, |d| d.kind);
             if !(matches!(kind, Kind::Resistor | Kind::Inductor) || kind.is_diode_like()) {
@@ -204,7 +204,7 @@ pub fn walk_back(
 /// A capacitor from the switched node to a net whose diode is fed from elsewhere.
 fn bootstrap(cx: &Context<'_>, nets: &NetMap, node: NetId) -> Option<Bootstrap> {
     nets.on(node).iter().find_map(|&(cap, _)| {
-        if cx.circuit.devices.get(cap)?.kind != Kind::Capacitor {
+        if cx.circuit.devices().get(cap)?.kind != Kind::Capacitor {
             return None;
         }
         let top = nets::other_end(cx, cap, node)?;
@@ -212,7 +212,7 @@ fn bootstrap(cx: &Context<'_>, nets: &NetMap, node: NetId) -> Option<Bootstrap> 
             return None;
         }
         nets.on(top).iter().find_map(|&(diode, role)| {
-            let d = cx.circuit.devices.get(diode)?;
+            let d = cx.circuit.devices().get(diode)?;
             if !d.kind.is_diode_like() || role != PinRole::Cathode {
                 return None;
             }

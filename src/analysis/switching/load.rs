@@ -65,7 +65,7 @@ struct Pwm {
 pub fn load_facts(cx: &Context<'_>, device: DeviceId, setting: &LoadSetting<'_>) -> LoadFacts {
     let kind = cx
         .circuit
-        .devices
+        .devices()
         .get(device)
         .map_or(Kind::Unknown, |d| d.kind);
     let solves = setting.solves;
@@ -77,7 +77,7 @@ pub fn load_facts(cx: &Context<'_>, device: DeviceId, setting: &LoadSetting<'_>)
         (Some(l), Some(r)) if r > 0.0 => Some(l / r),
         _ => None,
     };
-    let data = cx.circuit.devices.get(device).map(|d| &d.data);
+    let data = cx.circuit.devices().get(device).map(|d| &d.data);
     let rated_v = data.and_then(|d| d.get("rated_voltage")).cloned();
     let resistance = resistance_rated(cx, device);
     // Ratings are judged on the load with its switch saturated when the switch now runs
@@ -245,7 +245,7 @@ pub fn saturated_current(
     who: &str,
 ) -> Option<Range> {
     for &id in branch {
-        let k = cx.circuit.devices.get(id)?.kind;
+        let k = cx.circuit.devices().get(id)?.kind;
         if !(k == Kind::Resistor || k.is_inductive() || k.is_load()) {
             return None;
         }
@@ -268,7 +268,7 @@ pub fn saturated_current(
 
 /// A part's inductance: `inductance` from its data, else an inductor's netlist value.
 pub fn inductance_rated(cx: &Context<'_>, device: DeviceId) -> Option<Rated> {
-    let d = cx.circuit.devices.get(device)?;
+    let d = cx.circuit.devices().get(device)?;
     if let Some(r) = d.data.get("inductance") {
         return Some(r.clone());
     }
@@ -285,7 +285,7 @@ pub fn inductance_rated(cx: &Context<'_>, device: DeviceId) -> Option<Rated> {
 
 /// A load's winding resistance: stated, or derived from its rated voltage and current.
 pub fn resistance_rated(cx: &Context<'_>, device: DeviceId) -> Option<Rated> {
-    let d = cx.circuit.devices.get(device)?;
+    let d = cx.circuit.devices().get(device)?;
     if let Some(r) = d.data.get("resistance") {
         return Some(r.clone());
     }
@@ -324,7 +324,7 @@ fn branch_inductance(cx: &Context<'_>, branch: &[DeviceId]) -> Option<f64> {
 pub fn branch_resistance(cx: &Context<'_>, branch: &[DeviceId]) -> Option<f64> {
     let mut total = 0.0;
     for &id in branch {
-        let d = cx.circuit.devices.get(id)?;
+        let d = cx.circuit.devices().get(id)?;
         total += match d.kind {
             Kind::Resistor => stand_in::resistance(cx, d)?,
             Kind::Inductor => stand_in::winding_resistance(cx, d).unwrap_or(0.0),

@@ -173,7 +173,7 @@ pub fn analyze(
     }
 
     // Loads no switch interrupts: straight on a rail, a pulse source or a timer's pin.
-    for (device, d) in cx.circuit.devices.iter().enumerate() {
+    for (device, d) in cx.circuit.devices().iter().enumerate() {
         if !d.kind.is_load() || load_index.contains_key(&device) {
             continue;
         }
@@ -350,7 +350,7 @@ fn switch_facts(
     if ramps {
         numbers.linear_region = false;
     }
-    let conducts = match (&numbers.vgs_on_v, cx.circuit.devices.get(t.device)) {
+    let conducts = match (&numbers.vgs_on_v, cx.circuit.devices().get(t.device)) {
         (Some(v), Some(d)) => {
             let needed = if d.kind.is_mos() {
                 crate::analysis::stand_in::mos_threshold(&d.data)
@@ -396,7 +396,7 @@ fn switch_facts(
         duty.as_ref(),
     );
     let driver = gate.driver.map(|device| {
-        let kind_of = |d: DeviceId| cx.circuit.devices.get(d).map(|x| x.kind);
+        let kind_of = |d: DeviceId| cx.circuit.devices().get(d).map(|x| x.kind);
         DriverFacts {
             device,
             control: gate.control,
@@ -410,7 +410,7 @@ fn switch_facts(
         }
     });
     let (rail_v, rail) = rail_range(cx, t, all);
-    let device = cx.circuit.devices.get(t.device);
+    let device = cx.circuit.devices().get(t.device);
     let gain = device
         .filter(|d| d.kind.is_mos())
         .map(|d| crate::analysis::stand_in::mos_gain_fact(&d.data));
@@ -488,7 +488,7 @@ fn switch_facts(
 fn ramps(cx: &Context<'_>, branch: &[DeviceId]) -> bool {
     !branch.is_empty()
         && branch.iter().all(|&d| {
-            cx.circuit.devices.get(d).is_some_and(|dev| {
+            cx.circuit.devices().get(d).is_some_and(|dev| {
                 dev.kind == Kind::Inductor
                     && crate::analysis::stand_in::winding_resistance(cx, dev).is_none()
             })
@@ -506,7 +506,7 @@ fn unswitched_load(
 ) -> LoadFacts {
     let driven_by = cx
         .circuit
-        .devices
+        .devices()
         .get(device)
         .map(|d| d.pins.clone())
         .unwrap_or_default()
@@ -583,7 +583,7 @@ fn freewheel_drop(cx: &Context<'_>, path: &Freewheel, sw: &SwitchFacts) -> f64 {
     const BODY_DIODE_V: f64 = 0.7;
     /// Thermal voltage kT/q at 300 K.
     const VT: f64 = 0.025_85;
-    let Some(d) = cx.circuit.devices.get(path.device) else {
+    let Some(d) = cx.circuit.devices().get(path.device) else {
         return BODY_DIODE_V;
     };
     match path.kind {
@@ -624,7 +624,7 @@ fn full_on_voltage(
         return None;
     }
     let i = sw.saturated_current_a.as_ref()?;
-    let d = cx.circuit.devices.get(load_device)?;
+    let d = cx.circuit.devices().get(load_device)?;
     let r = crate::analysis::stand_in::winding_resistance(cx, d)
         .or_else(|| crate::analysis::stand_in::resistance(cx, d))?;
     let solved = drive::range_over(s, conducting, &|_, x| load::across(cx, load_device, x));

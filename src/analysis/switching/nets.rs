@@ -16,9 +16,9 @@ pub struct NetMap {
 
 impl NetMap {
     pub fn new(cx: &Context<'_>) -> NetMap {
-        let mut pins = vec![Vec::new(); cx.circuit.nets.len()];
+        let mut pins = vec![Vec::new(); cx.circuit.nets().len()];
         let mut has_coupling = false;
-        for (id, device) in cx.circuit.devices.iter().enumerate() {
+        for (id, device) in cx.circuit.devices().iter().enumerate() {
             has_coupling |= device.kind == Kind::Coupling;
             for pin in &device.pins {
                 if let Some(list) = pins.get_mut(pin.net) {
@@ -49,7 +49,7 @@ impl NetMap {
 fn couplings(cx: &Context<'_>) -> BTreeMap<DeviceId, Vec<DeviceId>> {
     let by_path: BTreeMap<String, DeviceId> = cx
         .circuit
-        .devices
+        .devices()
         .iter()
         .enumerate()
         .filter(|(_, d)| d.kind == Kind::Inductor)
@@ -61,7 +61,7 @@ fn couplings(cx: &Context<'_>) -> BTreeMap<DeviceId, Vec<DeviceId>> {
     let mut out: BTreeMap<DeviceId, Vec<DeviceId>> = BTreeMap::new();
     for d in cx
         .circuit
-        .devices
+        .devices()
         .iter()
         .filter(|d| d.kind == Kind::Coupling)
     {
@@ -140,7 +140,7 @@ pub fn pulse_source_on(cx: &Context<'_>, net: NetId) -> Option<DeviceId> {
 
 /// The two pins of a two-terminal device, in node order.
 pub fn two_pins(cx: &Context<'_>, device: DeviceId) -> Option<(NetId, NetId)> {
-    let d = cx.circuit.devices.get(device)?;
+    let d = cx.circuit.devices().get(device)?;
     match d.pins.as_slice() {
         [a, b] => Some((a.net, b.net)),
         _ => None,

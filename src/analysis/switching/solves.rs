@@ -190,7 +190,7 @@ pub fn failure_finding(
     device: DeviceId,
 ) -> Option<Finding> {
     let (label, error) = solves.failure.as_ref()?;
-    let d = cx.circuit.devices.get(device)?;
+    let d = cx.circuit.devices().get(device)?;
     let element = cx.netlist.elements.get(d.element)?;
     // Every case is a note: the engine could not judge these nets, which says nothing against
     // the circuit. The note says what was skipped and what would let it be judged.
@@ -248,7 +248,7 @@ fn unmodelled_beside(cx: &Context<'_>, component: usize) -> Option<String> {
     let component = cx.partition.components.get(component)?;
     component.nets.iter().find_map(|&net| {
         cx.circuit.devices_on(net).iter().find_map(|&(d, _)| {
-            let device = cx.circuit.devices.get(d)?;
+            let device = cx.circuit.devices().get(d)?;
             let what = match device.kind {
                 Kind::Switch => "a controlled switch",
                 Kind::Jfet => "a JFET",

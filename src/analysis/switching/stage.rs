@@ -34,7 +34,7 @@ pub fn classify(
     t: &SwitchTopology,
     drive: &GateDrive,
 ) -> (Stage, String) {
-    let Some(d) = cx.circuit.devices.get(t.device) else {
+    let Some(d) = cx.circuit.devices().get(t.device) else {
         return (Stage::Unknown, "not found in the circuit".into());
     };
     let bjt = d.kind.is_bjt();
@@ -203,7 +203,7 @@ fn drives_only_charge(cx: &Context<'_>, output: NetId, own: DeviceId) -> bool {
         if id == own {
             continue;
         }
-        match cx.circuit.devices.get(id).map(|d| d.kind) {
+        match cx.circuit.devices().get(id).map(|d| d.kind) {
             Some(Kind::Capacitor) => {}
             Some(k) if k.is_switch_transistor() => {}
             _ => return false,
@@ -215,7 +215,7 @@ fn drives_only_charge(cx: &Context<'_>, output: NetId, own: DeviceId) -> bool {
 
 fn switch_reason(cx: &Context<'_>, driver: DeviceId, control: DeviceId, base: &str) -> String {
     let what = |d: DeviceId| -> &'static str {
-        match cx.circuit.devices.get(d).map(|x| x.kind) {
+        match cx.circuit.devices().get(d).map(|x| x.kind) {
             Some(k) if k.is_timer() => "a timer's output",
             Some(Kind::LogicOutput) => "a logic output",
             Some(Kind::VoltageSource) => "a pulse source",
@@ -253,7 +253,7 @@ fn two_terminal_between(
         return None;
     }
     nets.on(a).iter().find_map(|&(d, _)| {
-        let dev = cx.circuit.devices.get(d)?;
+        let dev = cx.circuit.devices().get(d)?;
         (dev.kind == kind && nets::other_end(cx, d, a) == Some(b)).then_some(d)
     })
 }
@@ -261,7 +261,7 @@ fn two_terminal_between(
 /// True when a controlled source's control pins sit on one of `terminals`, or one resistor
 /// away from one (the feedback of an amplifier wrapped around its output transistor).
 fn senses(cx: &Context<'_>, nets: &NetMap, amp: DeviceId, terminals: &[NetId]) -> bool {
-    let Some(d) = cx.circuit.devices.get(amp) else {
+    let Some(d) = cx.circuit.devices().get(amp) else {
         return false;
     };
     [PinRole::CtrlPos, PinRole::CtrlNeg]
@@ -272,7 +272,7 @@ fn senses(cx: &Context<'_>, nets: &NetMap, amp: DeviceId, terminals: &[NetId]) -
             terminals.contains(&n)
                 || nets.on(n).iter().any(|&(r, _)| {
                     cx.circuit
-                        .devices
+                        .devices()
                         .get(r)
                         .is_some_and(|x| x.kind == Kind::Resistor)
                         && nets::other_end(cx, r, n).is_some_and(|o| terminals.contains(&o))
@@ -288,7 +288,7 @@ fn signal_source(cx: &Context<'_>, nets: &NetMap, pin: NetId) -> Option<(DeviceI
     while let Some((at, depth)) = queue.pop_front() {
         let net = seen.get(at)?.0;
         for &(device, _) in nets.on(net) {
-            let Some(d) = cx.circuit.devices.get(device) else {
+            let Some(d) = cx.circuit.devices().get(device) else {
                 continue;
             };
             if matches!(d.kind, Kind::VoltageSource | Kind::CurrentSource) && is_sine(cx, device) {
@@ -325,7 +325,7 @@ fn signal_source(cx: &Context<'_>, nets: &NetMap, pin: NetId) -> Option<(DeviceI
 
 fn is_sine(cx: &Context<'_>, device: DeviceId) -> bool {
     cx.circuit
-        .devices
+        .devices()
         .get(device)
         .and_then(|d| cx.netlist.elements.get(d.element))
         .and_then(|e| e.source.as_ref())
@@ -338,7 +338,7 @@ fn divider(cx: &Context<'_>, nets: &NetMap, pin: NetId) -> Option<(DeviceId, Dev
         .on(pin)
         .iter()
         .filter_map(|&(d, _)| {
-            if cx.circuit.devices.get(d)?.kind != Kind::Resistor {
+            if cx.circuit.devices().get(d)?.kind != Kind::Resistor {
                 return None;
             }
             let far = nets::other_end(cx, d, pin)?;
@@ -354,7 +354,7 @@ fn divider(cx: &Context<'_>, nets: &NetMap, pin: NetId) -> Option<(DeviceId, Dev
 /// A resistor larger than a sense resistor from the emitter or source straight to a rail.
 fn degeneration(cx: &Context<'_>, nets: &NetMap, common: NetId) -> Option<DeviceId> {
     nets.on(common).iter().find_map(|&(d, _)| {
-        let dev = cx.circuit.devices.get(d)?;
+        let dev = cx.circuit.devices().get(d)?;
         if dev.kind != Kind::Resistor {
             return None;
         }
@@ -367,7 +367,7 @@ fn degeneration(cx: &Context<'_>, nets: &NetMap, common: NetId) -> Option<Device
 /// A resistor from `pin` to a net a DC supply holds (not ground), and that supply.
 fn fed_from_supply(cx: &Context<'_>, nets: &NetMap, pin: NetId) -> Option<(DeviceId, DeviceId)> {
     nets.on(pin).iter().find_map(|&(d, _)| {
-        if cx.circuit.devices.get(d)?.kind != Kind::Resistor {
+        if cx.circuit.devices().get(d)?.kind != Kind::Resistor {
             return None;
         }
         let supply = nets::rail(cx, nets::other_end(cx, d, pin)?)?.supply?;

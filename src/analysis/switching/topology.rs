@@ -103,7 +103,7 @@ impl SwitchTopology {
 
 /// The (upper, lower) main terminals of a switch and whether it is N-type.
 pub fn main_terminals(cx: &Context<'_>, device: DeviceId) -> Option<(NetId, NetId, bool)> {
-    let d = cx.circuit.devices.get(device)?;
+    let d = cx.circuit.devices().get(device)?;
     let (upper, lower, n_type) = match d.kind {
         Kind::Nmos => (PinRole::Drain, PinRole::Source, true),
         Kind::Pmos => (PinRole::Source, PinRole::Drain, false),
@@ -118,7 +118,7 @@ pub fn main_terminals(cx: &Context<'_>, device: DeviceId) -> Option<(NetId, NetI
 pub fn classify_all(cx: &Context<'_>, nets: &NetMap) -> Vec<SwitchTopology> {
     let mut all: Vec<SwitchTopology> = cx
         .circuit
-        .devices
+        .devices()
         .iter()
         .enumerate()
         .filter(|(_, d)| d.kind.is_switch_transistor())
@@ -203,14 +203,14 @@ pub fn classify_all(cx: &Context<'_>, nets: &NetMap) -> Vec<SwitchTopology> {
 
 fn kind_of(cx: &Context<'_>, device: DeviceId) -> Kind {
     cx.circuit
-        .devices
+        .devices()
         .get(device)
         .map_or(Kind::Unknown, |d| d.kind)
 }
 
 /// Inductors, motors, relay coils and solenoids, and any part that states an inductance.
 pub fn is_inductive(cx: &Context<'_>, device: DeviceId) -> bool {
-    cx.circuit.devices.get(device).is_some_and(|d| {
+    cx.circuit.devices().get(device).is_some_and(|d| {
         d.kind.is_inductive() || d.data.value("inductance").is_some_and(|l| l > 0.0)
     })
 }
@@ -263,7 +263,7 @@ fn classify(cx: &Context<'_>, nets: &NetMap, device: DeviceId) -> Option<SwitchT
 /// A rail reached from `net` through one small resistor (sense or emitter resistor).
 fn sense_anchor(cx: &Context<'_>, nets: &NetMap, net: NetId) -> Option<Rail> {
     nets.on(net).iter().find_map(|&(d, _)| {
-        let device = cx.circuit.devices.get(d)?;
+        let device = cx.circuit.devices().get(d)?;
         if device.kind != Kind::Resistor {
             return None;
         }

@@ -24,8 +24,8 @@ pub struct NetIndex {
 
 impl NetIndex {
     pub fn new(cx: &Context<'_>) -> NetIndex {
-        let mut pins = vec![Vec::new(); cx.circuit.nets.len()];
-        for (id, device) in cx.circuit.devices.iter().enumerate() {
+        let mut pins = vec![Vec::new(); cx.circuit.nets().len()];
+        for (id, device) in cx.circuit.devices().iter().enumerate() {
             for pin in &device.pins {
                 if let Some(list) = pins.get_mut(pin.net) {
                     list.push((id, pin.role));
@@ -68,16 +68,7 @@ fn conducts(kind: Kind) -> bool {
 
 /// A capacitor's value: its part data, else the element's value.
 pub fn capacitance(cx: &Context<'_>, device: &Device) -> Option<f64> {
-    device
-        .data
-        .value("capacitance")
-        .or_else(|| {
-            let e = cx.netlist.elements.get(device.element)?;
-            e.value
-                .and_then(|v| v.known())
-                .or_else(|| e.param("c").and_then(|v| v.known()))
-        })
-        .filter(|c| c.is_finite() && *c > 0.0)
+    crate::analysis::part_values::capacitance(cx.netlist, device)
 }
 
 fn is_fixed(cx: &Context<'_>, net: NetId) -> bool {
@@ -103,7 +94,7 @@ fn other_net(device: &Device, net: NetId) -> Option<NetId> {
 /// as wires).
 fn joined(cx: &Context<'_>, index: &NetIndex, a: NetId, b: NetId) -> bool {
     node_pins(cx, index, a).iter().any(|&(d, _)| {
-        let device = &cx.circuit.devices[d];
+        let device = &cx.circuit.devices()[d];
         conducts(device.kind) && device.pins.iter().any(|p| cx.circuit.same_wire(p.net, b))
     })
 }
@@ -137,7 +128,7 @@ fn far_end(cx: &Context<'_>, device: &Device, net: NetId) -> Option<NetId> {
 }
 
 pub fn recognise(cx: &Context<'_>, index: &NetIndex, id: DeviceId) -> Setup {
-    let device = &cx.circuit.devices[id];
+    let device = &cx.circuit.devices()[id];
     let thr = device.pin(PinRole::Thr);
     let trig = device.pin(PinRole::Trig);
     let dis = device.pin(PinRole::Dis);
@@ -164,7 +155,7 @@ pub fn recognise(cx: &Context<'_>, index: &NetIndex, id: DeviceId) -> Setup {
         .iter()
         .filter(|&&(d, _)| d != id)
         .filter_map(|&(d, _)| {
-            let c = &cx.circuit.devices[d];
+            let c = &cx.circuit.devices()[d];
             if c.kind != Kind::Capacitor {
                 return None;
             }
@@ -185,8 +176,8 @@ pub fn recognise(cx: &Context<'_>, index: &NetIndex, id: DeviceId) -> Setup {
 
     let charged = on_thr.iter().any(|&(d, _)| {
         d != id
-            && conducts(cx.circuit.devices[d].kind)
-            && far_end(cx, &cx.circuit.devices[d], thr).is_some()
+            && conducts(cx.circuit.devices()[d].kind)
+            && far_end(cx, &cx.circuit.devices()[d], thr).is_some()
     });
     let same = |a: NetId, b: NetId| cx.circuit.same_wire(a, b);
     let dis_on_timing = dis.is_some_and(|d| same(d, thr) || joined(cx, index, d, thr));
@@ -217,7 +208,7 @@ pub fn recognise(cx: &Context<'_>, index: &NetIndex, id: DeviceId) -> Setup {
 /// bypassed or open control pin: the internal ladder alone sets the thresholds).
 pub fn only_capacitors(cx: &Context<'_>, index: &NetIndex, net: NetId, timer: DeviceId) -> bool {
     index.on(net).iter().all(|&(d, _)| {
-        let device = &cx.circuit.devices[d];
+        let device = &cx.circuit.devices()[d];
         d == timer
             || (device.kind == Kind::Capacitor
                 && other_net(device, net).is_some_and(|far| is_fixed(cx, far)))
@@ -233,7 +224,7 @@ pub fn fixed_by(cx: &Context<'_>, net: NetId) -> Option<Fixed> {
 pub fn resistors_on(cx: &Context<'_>, index: &NetIndex, net: NetId) -> Vec<(DeviceId, NetId)> {
     let mut out = Vec::new();
     for &(d, role) in index.on(net) {
-        let device = &cx.circuit.devices[d];
+        let device = &cx.circuit.devices()[d];
         match device.kind {
             Kind::Resistor => {
                 if let Some(far) = other_net(device, net) {

@@ -129,7 +129,7 @@ fn tied(
     dis: usize,
     describe: &dyn Fn(&State) -> String,
 ) -> Option<Discharge> {
-    let gnd = cx.circuit.devices.get(setup.device)?.pin(PinRole::Gnd);
+    let gnd = cx.circuit.devices().get(setup.device)?.pin(PinRole::Gnd);
     let mut volts = Vec::new();
     for &corner in sweep::corners(cx) {
         let state = State {
@@ -171,7 +171,7 @@ fn carriers(cx: &Context<'_>, solved: &Solved, amps: f64, dis: usize) -> Vec<Dev
     };
     let mut chain = Vec::new();
     for &d in &component.devices {
-        let device = &cx.circuit.devices[d];
+        let device = &cx.circuit.devices()[d];
         let is_path = matches!(device.kind, Kind::Resistor | Kind::Potentiometer)
             || device.kind.is_diode_like();
         if !is_path {
@@ -215,13 +215,15 @@ fn dump(
     let diodes: Vec<DeviceId> = index
         .on(thr)
         .iter()
-        .filter(|&&(d, role)| cx.circuit.devices[d].kind.is_diode_like() && role == PinRole::Anode)
+        .filter(|&&(d, role)| {
+            cx.circuit.devices()[d].kind.is_diode_like() && role == PinRole::Anode
+        })
         .map(|&(d, _)| d)
         .collect();
     if diodes.is_empty() {
         return None;
     }
-    let data = &cx.circuit.devices.get(setup.device)?.data;
+    let data = &cx.circuit.devices().get(setup.device)?.data;
     let floor = data.value("discharge_current_rated").unwrap_or(0.015);
     let mut best: Option<(DeviceId, f64, usize)> = None;
     for (at, point) in points.iter().enumerate() {

@@ -31,7 +31,7 @@ pub fn analyze(cx: &Context<'_>) -> (Vec<TimerFacts>, Vec<Finding>) {
     let index = NetIndex::new(cx);
     let setups: Vec<Setup> = cx
         .circuit
-        .devices
+        .devices()
         .iter()
         .enumerate()
         .filter(|(_, d)| d.kind.is_timer())
@@ -373,7 +373,7 @@ fn path_devices(cx: &Context<'_>, setup: &Setup, state: &State, v: f64) -> Vec<D
     };
     let mut out = Vec::new();
     for &d in &component.devices {
-        let device = &cx.circuit.devices[d];
+        let device = &cx.circuit.devices()[d];
         let is_path = matches!(device.kind, Kind::Resistor | Kind::Potentiometer)
             || device.kind.is_diode_like();
         if !is_path {
@@ -395,7 +395,7 @@ fn path_devices(cx: &Context<'_>, setup: &Setup, state: &State, v: f64) -> Vec<D
 }
 
 fn supply_range(cx: &Context<'_>, setup: &Setup) -> Option<Range> {
-    let device = cx.circuit.devices.get(setup.device)?;
+    let device = cx.circuit.devices().get(setup.device)?;
     let mut samples = Vec::new();
     for &corner in sweep::corners(cx) {
         let state = State {
@@ -448,7 +448,7 @@ fn output_current(cx: &Context<'_>, setup: &Setup) -> Option<Range> {
 fn solve_failed(cx: &Context<'_>, setup: &Setup, e: &DcError) -> Finding {
     let element = cx
         .circuit
-        .devices
+        .devices()
         .get(setup.device)
         .and_then(|d| cx.netlist.elements.get(d.element));
     let span = element.map(|e| e.span).unwrap_or_default();

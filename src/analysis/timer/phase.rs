@@ -37,7 +37,7 @@ pub fn thresholds(
     setup: &Setup,
     state: &State,
 ) -> Result<Option<Thresholds>, DcError> {
-    let Some(device) = cx.circuit.devices.get(setup.device) else {
+    let Some(device) = cx.circuit.devices().get(setup.device) else {
         return Ok(None);
     };
     let Some(vcc) = stand_in::timer_supply(cx, device, state) else {
@@ -249,7 +249,7 @@ fn stuck(cx: &Context<'_>, phase: &Phase<'_>) -> Result<Option<Stuck>, DcError> 
     let th = cx.thevenin(&built.network, node)?;
     let solved = built.solve_in(cx)?;
     let charging = phase.v_end >= phase.v_start;
-    let data = &cx.circuit.devices[setup.device].data;
+    let data = &cx.circuit.devices()[setup.device].data;
     // The bias current that acts in this phase, and what the network would reach without it.
     let bias = if charging {
         stand_in::threshold_bias(data)
@@ -279,7 +279,7 @@ fn stuck(cx: &Context<'_>, phase: &Phase<'_>) -> Result<Option<Stuck>, DcError> 
         1e-9
     };
     for &d in &component.devices {
-        let device = &cx.circuit.devices[d];
+        let device = &cx.circuit.devices()[d];
         let is_path = matches!(device.kind, Kind::Resistor | Kind::Potentiometer)
             || device.kind.is_diode_like();
         if !is_path {
@@ -367,7 +367,7 @@ fn blocking_diodes(
         .iter()
         .copied()
         .filter(|&d| {
-            let device = &cx.circuit.devices[d];
+            let device = &cx.circuit.devices()[d];
             if !device.kind.is_diode_like() {
                 return false;
             }
@@ -391,7 +391,7 @@ fn anodes_on(cx: &Context<'_>, component: &Component, net: crate::circuit::NetId
         .iter()
         .copied()
         .filter(|&d| {
-            let device = &cx.circuit.devices[d];
+            let device = &cx.circuit.devices()[d];
             device.kind.is_diode_like()
                 && device.pin(PinRole::Anode) == Some(net)
                 && device.pin(PinRole::Cathode) != Some(net)

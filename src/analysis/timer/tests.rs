@@ -4,7 +4,7 @@
 
 use super::*;
 use crate::analysis::facts::TimerMode;
-use crate::circuit::{Circuit, Device, Net, NetId, PartData, Pin, PinRole, Rated};
+use crate::circuit::{CircuitBuilder, Device, Net, NetId, PartData, Pin, PinRole, Rated};
 use crate::config::Config;
 use crate::netlist::{FlatElement, FlatNetlist, Num, SourceSpec, Waveform};
 use crate::source::Span;
@@ -13,7 +13,7 @@ use std::collections::BTreeMap;
 #[derive(Default)]
 struct Deck {
     pub netlist: FlatNetlist,
-    pub circuit: Circuit,
+    pub circuit: CircuitBuilder,
     nets: BTreeMap<String, NetId>,
 }
 
@@ -43,8 +43,7 @@ impl Deck {
         if let Some(&n) = self.nets.get(&key) {
             return n;
         }
-        let id = self.circuit.nets.len();
-        self.circuit.nets.push(Net {
+        let id = self.circuit.add_net(Net {
             name: name.to_string(),
             is_ground: key == "0" || key == "gnd",
         });
@@ -80,13 +79,12 @@ impl Deck {
             );
         }
         self.netlist.elements.push(e);
-        self.circuit.devices.push(Device {
+        self.circuit.add_device(Device {
             element: self.netlist.elements.len() - 1,
             kind,
             pins,
             data: pd,
-        });
-        self.circuit.devices.len() - 1
+        })
     }
 
     pub fn v(&mut self, name: &str, pos: &str, neg: &str, dc: f64) -> DeviceId {
@@ -184,7 +182,8 @@ impl Deck {
 
     pub fn analyze(&self) -> Vec<TimerFacts> {
         let config = Config::default();
-        let cx = Context::new(&self.netlist, &self.circuit, &config);
+        let circuit = self.circuit.build(&self.netlist, &config);
+        let cx = Context::new(&self.netlist, &circuit, &config);
         analyze(&cx).0
     }
 }
@@ -290,7 +289,7 @@ fn diode_across_rb_makes_the_low_time_a_spike() {
 }
 
 fn cx_name(d: &Deck, device: DeviceId) -> String {
-    d.netlist.elements[d.circuit.devices[device].element]
+    d.netlist.elements[d.circuit.devices()[device].element]
         .path
         .clone()
 }

@@ -38,7 +38,7 @@ fn timer_output_on(
     not: DeviceId,
 ) -> Option<DeviceId> {
     index.on(net).iter().find_map(|&(d, role)| {
-        (d != not && role == PinRole::Out && cx.circuit.devices[d].kind.is_timer()).then_some(d)
+        (d != not && role == PinRole::Out && cx.circuit.devices()[d].kind.is_timer()).then_some(d)
     })
 }
 
@@ -60,7 +60,7 @@ pub fn driver(cx: &Context<'_>, index: &NetIndex, setup: &Setup) -> Option<Drive
         });
     }
     for (r, far) in config::resistors_on(cx, index, trig) {
-        if cx.circuit.devices[r].kind != Kind::Resistor {
+        if cx.circuit.devices()[r].kind != Kind::Resistor {
             continue;
         }
         if let Some(src) = is_pulse_net(cx, far) {
@@ -243,7 +243,7 @@ fn trigger_facts(
         } else {
             let element = cx
                 .circuit
-                .devices
+                .devices()
                 .get(drv.device)
                 .and_then(|d| cx.netlist.elements.get(d.element))?;
             let spec = element.source.as_ref()?;

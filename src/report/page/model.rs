@@ -134,7 +134,7 @@ fn verdict(
     let element = name(r.netlist, r.circuit, device);
     let line = r
         .circuit
-        .devices
+        .devices()
         .get(device)
         .and_then(|d| r.netlist.elements.get(d.element))
         .map(|e| locate(r.report, e.span));
@@ -185,7 +185,7 @@ pub fn page(review: &Review<'_>, draw: bool) -> Page {
         .chain(r.analysis.loads.iter().map(|l| l.device))
         .map(n)
         .collect();
-    let kind_of = |d: DeviceId| r.circuit.devices.get(d).map_or(Kind::Unknown, |x| x.kind);
+    let kind_of = |d: DeviceId| r.circuit.devices().get(d).map_or(Kind::Unknown, |x| x.kind);
     let mut stages = Vec::new();
     for t in sorted(&r.analysis.timers, |t| t.device) {
         let (verdict, class) = verdict(r, &stage_names, t.device);
@@ -370,7 +370,7 @@ fn switch_figure(r: &Review<'_>, s: &SwitchFacts, draw: bool) -> Figure {
         (Some(w), true) => charts::switch(w, &element, &names),
         _ => (String::new(), Vec::new()),
     };
-    let data = r.circuit.devices.get(s.device).map(|d| &d.data);
+    let data = r.circuit.devices().get(s.device).map(|d| &d.data);
     let rating = |key: &str| {
         data.and_then(|d| d.get(key))
             .map(|x| (x.value, format!("{key} {}", x.source)))
@@ -464,7 +464,7 @@ fn finding_view(r: &Review<'_>, f: &Finding, i: usize, draw: bool) -> FindingVie
         .unwrap_or_default();
     let device = (!element.is_empty())
         .then(|| {
-            r.circuit.devices.iter().position(|d| {
+            r.circuit.devices().iter().position(|d| {
                 r.netlist
                     .elements
                     .get(d.element)

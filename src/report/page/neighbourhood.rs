@@ -22,7 +22,7 @@ enum Node {
 
 /// The neighbourhood of `device` as an SVG drawing; empty when there is nothing around it.
 pub fn draw(circuit: &Circuit, netlist: &FlatNetlist, device: DeviceId) -> String {
-    let Some(d) = circuit.devices.get(device) else {
+    let Some(d) = circuit.devices().get(device) else {
         return String::new();
     };
     let mut nodes = vec![Node::Element(device)];
@@ -91,7 +91,7 @@ pub fn draw(circuit: &Circuit, netlist: &FlatNetlist, device: DeviceId) -> Strin
         match node {
             Node::Element(d) | Node::Part(d) => {
                 let kind = circuit
-                    .devices
+                    .devices()
                     .get(*d)
                     .map(|x| x.kind.to_string())
                     .unwrap_or_default();
@@ -99,7 +99,7 @@ pub fn draw(circuit: &Circuit, netlist: &FlatNetlist, device: DeviceId) -> Strin
             }
             Node::Net(n) => (
                 circuit
-                    .nets
+                    .nets()
                     .get(*n)
                     .map_or_else(|| format!("net {n}"), |x| x.name.clone()),
                 "net",

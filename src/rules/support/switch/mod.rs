@@ -16,21 +16,23 @@ pub use drive::*;
 pub use leg::*;
 pub use ratings::*;
 
-use super::eseries;
-use super::units::{format_si, sig3};
-use super::RuleContext;
 use crate::analysis::{LoadFacts, Range, Stage, SupplyFacts, SwitchFacts, TimerFacts};
 use crate::circuit::{Circuit, Device, DeviceId, Kind, NetId, PinRole, Rated};
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::FlatElement;
+use crate::rules::eseries;
+use crate::rules::units::{format_si, sig3};
+use crate::rules::RuleContext;
 use std::collections::HashMap;
 
 /// The flattened element behind a device.
 pub fn element<'a>(cx: &RuleContext<'a>, id: DeviceId) -> Option<&'a FlatElement> {
-    cx.netlist.elements.get(cx.circuit.devices.get(id)?.element)
+    cx.netlist
+        .elements
+        .get(cx.circuit.devices().get(id)?.element)
 }
 pub fn device<'a>(cx: &RuleContext<'a>, id: DeviceId) -> Option<&'a Device> {
-    cx.circuit.devices.get(id)
+    cx.circuit.devices().get(id)
 }
 pub fn kind(cx: &RuleContext<'_>, id: DeviceId) -> Option<Kind> {
     device(cx, id).map(|d| d.kind)
@@ -40,10 +42,10 @@ pub fn name(cx: &RuleContext<'_>, id: DeviceId) -> String {
     element(cx, id).map_or_else(|| format!("device {id}"), |e| e.path.clone())
 }
 pub fn net_name<'a>(cx: &RuleContext<'a>, net: NetId) -> &'a str {
-    cx.circuit.nets.get(net).map_or("?", |n| n.name.as_str())
+    cx.circuit.nets().get(net).map_or("?", |n| n.name.as_str())
 }
 pub fn is_ground(cx: &RuleContext<'_>, net: NetId) -> bool {
-    cx.circuit.nets.get(net).is_some_and(|n| n.is_ground)
+    cx.circuit.nets().get(net).is_some_and(|n| n.is_ground)
 }
 /// A finding on a device's line, with its instance path and the instance lines that placed it.
 pub fn finding_at(
@@ -135,13 +137,10 @@ pub fn supply_range(cx: &RuleContext<'_>, s: &SupplyFacts) -> Range {
         }
     }
 }
-/// Pins on each net (the circuit's own index when it has one, else one built here: circuits
-/// assembled by hand in tests have none) and the supply source on each rail, found once per
+/// Pins on each net (the circuit's index) and the supply source on each rail, found once per
 /// rule call so that no rule walks a rail's pins for every switch on it.
 pub struct NetIndex<'a> {
     circuit: &'a Circuit,
-    /// `pins[offsets[n]..offsets[n + 1]]` are the pins on net `n`, when built here.
-    own: Option<PinsOnNets>,
     /// Rail net → the first grounded voltage source (in device order) holding it, with facts.
     supplies: HashMap<NetId, &'a SupplyFacts>,
 }
@@ -165,28 +164,15 @@ impl<'a> NetIndex<'a> {
                 *slot = s;
             }
         }
-        let circuit = cx.circuit;
-        let indexed = circuit
-            .devices
-            .iter()
-            .find_map(|d| d.pins.first())
-            .is_none_or(|p| !circuit.devices_on(p.net).is_empty());
         NetIndex {
-            circuit,
-            own: (!indexed).then(|| own_index(circuit)),
+            circuit: cx.circuit,
             supplies,
         }
     }
 
     /// `(device, pin index)` of every pin on `net`.
-    pub fn on(&self, net: NetId) -> &[(DeviceId, usize)] {
-        match &self.own {
-            None => self.circuit.devices_on(net),
-            Some((offsets, pins)) => match (offsets.get(net), offsets.get(net + 1)) {
-                (Some(&a), Some(&b)) => pins.get(a..b).unwrap_or(&[]),
-                _ => &[],
-            },
-        }
+    pub fn on(&self, net: NetId) -> &'a [(DeviceId, usize)] {
+        self.circuit.devices_on(net)
     }
 
     /// Two-terminal devices with one pin on `a` and the other on `b`, either way round.
@@ -218,35 +204,6 @@ impl<'a> NetIndex<'a> {
     pub fn supply_on(&self, _cx: &RuleContext<'a>, net: NetId) -> Option<&'a SupplyFacts> {
         self.supplies.get(&net).copied()
     }
-}
-/// Offsets per net into a list of `(device, pin index)`.
-pub(crate) type PinsOnNets = (Vec<usize>, Vec<(DeviceId, usize)>);
-/// Pins on each net of a circuit that has no index of its own.
-pub(crate) fn own_index(circuit: &Circuit) -> PinsOnNets {
-    let mut offsets = vec![0usize; circuit.nets.len() + 1];
-    for device in &circuit.devices {
-        for pin in &device.pins {
-            if let Some(count) = offsets.get_mut(pin.net + 1) {
-                *count += 1;
-            }
-        }
-    }
-    for i in 1..offsets.len() {
-        offsets[i] += offsets[i - 1];
-    }
-    let mut fill = offsets.clone();
-    let mut pins = vec![(0, 0); offsets.last().copied().unwrap_or(0)];
-    for (id, device) in circuit.devices.iter().enumerate() {
-        for (index, pin) in device.pins.iter().enumerate() {
-            if let Some(slot) = fill.get_mut(pin.net) {
-                if let Some(entry) = pins.get_mut(*slot) {
-                    *entry = (id, index);
-                }
-                *slot += 1;
-            }
-        }
-    }
-    (offsets, pins)
 }
 /// The timer facts of a device.
 pub fn timer_facts<'a>(cx: &RuleContext<'a>, id: DeviceId) -> Option<&'a TimerFacts> {

@@ -1,18 +1,20 @@
 //! Shared pieces of the timer rules: the finding skeleton for a device, labels, names, ratings
 //! with their provenance, and the wording of states and ranges.
 
-use super::units::{format_si, sig3};
-use super::RuleContext;
-use crate::analysis::{Range, TimerFacts};
+use crate::analysis::{part_values, Range, TimerFacts};
 use crate::circuit::{DeviceId, Kind, Rated};
 use crate::netlist::FlatElement;
+use crate::rules::units::{format_si, sig3};
+use crate::rules::RuleContext;
 
 pub fn element<'a>(cx: &RuleContext<'a>, id: DeviceId) -> Option<&'a FlatElement> {
-    cx.netlist.elements.get(cx.circuit.devices.get(id)?.element)
+    cx.netlist
+        .elements
+        .get(cx.circuit.devices().get(id)?.element)
 }
 
 pub fn kind(cx: &RuleContext<'_>, id: DeviceId) -> Option<Kind> {
-    cx.circuit.devices.get(id).map(|d| d.kind)
+    cx.circuit.devices().get(id).map(|d| d.kind)
 }
 
 /// The element's path as the user reads it (`XDRV.U1`, or `U1` at top level).
@@ -21,11 +23,11 @@ pub fn name(cx: &RuleContext<'_>, id: DeviceId) -> String {
 }
 
 /// Findings and labels on device lines are built the same way for every rule family.
-pub use super::switch_util::{finding_at, label};
+pub use super::switch::{finding_at, label};
 
 /// A timer rating with its provenance, or the kind's documented default.
 pub fn rated_or(cx: &RuleContext<'_>, id: DeviceId, key: &str, bipolar: f64, cmos: f64) -> Rated {
-    let device = cx.circuit.devices.get(id);
+    let device = cx.circuit.devices().get(id);
     if let Some(r) = device.and_then(|d| d.data.get(key)) {
         return r.clone();
     }
@@ -64,24 +66,14 @@ pub fn percent(fraction: f64) -> String {
     format!("{} %", sig3(fraction * 100.0))
 }
 
-/// A device's resistance as the netlist gives it (resistor value or pot track).
+/// A device's resistance as the analysis reads it (resistor value or pot track).
 pub fn ohms_of(cx: &RuleContext<'_>, id: DeviceId) -> Option<f64> {
-    let device = cx.circuit.devices.get(id)?;
-    device.data.value("resistance").or_else(|| {
-        let e = element(cx, id)?;
-        e.value
-            .and_then(|v| v.known())
-            .or_else(|| e.param("r").and_then(|v| v.known()))
-    })
+    part_values::resistance(cx.netlist, cx.circuit.devices().get(id)?)
 }
 
-/// A capacitor's value as the netlist gives it.
+/// A capacitor's value as the analysis reads it.
 pub fn farads_of(cx: &RuleContext<'_>, id: DeviceId) -> Option<f64> {
-    let device = cx.circuit.devices.get(id)?;
-    device
-        .data
-        .value("capacitance")
-        .or_else(|| element(cx, id)?.value.and_then(|v| v.known()))
+    part_values::capacitance(cx.netlist, cx.circuit.devices().get(id)?)
 }
 
 pub fn is_pot(cx: &RuleContext<'_>, id: DeviceId) -> bool {

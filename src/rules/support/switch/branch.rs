@@ -102,9 +102,9 @@ pub fn dc_resistance(cx: &RuleContext<'_>, id: DeviceId) -> Option<f64> {
     let d = device(cx, id)?;
     let data = &d.data;
     match d.kind {
-        Kind::Resistor | Kind::Potentiometer => data
-            .value("resistance")
-            .or_else(|| element(cx, id)?.value?.known()),
+        Kind::Resistor | Kind::Potentiometer => {
+            crate::analysis::part_values::resistance(cx.netlist, d)
+        }
         k if k.is_inductive() => data.value("resistance").or_else(|| {
             let v = data.value("rated_voltage")?;
             let i = data

@@ -4,58 +4,32 @@
 //!
 //! Every rule builds what it needs once per call; each structure is linear in the number of pins.
 
-use super::RuleContext;
 use crate::circuit::{Circuit, Device, DeviceId, Kind, NetId, PinRole};
 use crate::diagnostic::{Finding, Severity};
 use crate::netlist::FlatElement;
+use crate::rules::RuleContext;
 use crate::source::Span;
 use std::collections::HashSet;
 
-/// Pins on each net: the circuit's own index when it has one, else one built here (circuits
-/// assembled by hand in tests have none).
+/// Pins on each net, read from the circuit's index.
 pub struct NetIndex<'c> {
     circuit: &'c Circuit,
-    own: Option<OwnIndex>,
-}
-
-/// `pins[offsets[n]..offsets[n + 1]]` are the pins on net `n`.
-struct OwnIndex {
-    offsets: Vec<usize>,
-    pins: Vec<(DeviceId, usize)>,
 }
 
 impl<'c> NetIndex<'c> {
     pub fn new(cx: &RuleContext<'c>) -> NetIndex<'c> {
-        let circuit = cx.circuit;
-        let indexed = circuit
-            .devices
-            .iter()
-            .find_map(|d| d.pins.first())
-            .is_none_or(|p| !circuit.devices_on(p.net).is_empty());
-        let own = (!indexed).then(|| OwnIndex::new(circuit));
-        NetIndex { circuit, own }
+        NetIndex {
+            circuit: cx.circuit,
+        }
     }
 
     /// `(device, pin index)` of every pin on `net`.
-    pub fn on(&self, net: NetId) -> &[(DeviceId, usize)] {
-        match &self.own {
-            None => self.circuit.devices_on(net),
-            Some(own) => match (own.offsets.get(net), own.offsets.get(net + 1)) {
-                (Some(&a), Some(&b)) => own.pins.get(a..b).unwrap_or(&[]),
-                _ => &[],
-            },
-        }
+    pub fn on(&self, net: NetId) -> &'c [(DeviceId, usize)] {
+        self.circuit.devices_on(net)
     }
 
     pub fn degree(&self, net: NetId) -> usize {
         self.on(net).len()
-    }
-}
-
-impl OwnIndex {
-    fn new(circuit: &Circuit) -> OwnIndex {
-        let (offsets, pins) = super::switch_util::own_index(circuit);
-        OwnIndex { offsets, pins }
     }
 }
 
@@ -69,7 +43,7 @@ pub fn device_element<'a>(
     cx: &RuleContext<'a>,
     id: DeviceId,
 ) -> Option<(&'a Device, &'a FlatElement)> {
-    let device = cx.circuit.devices.get(id)?;
+    let device = cx.circuit.devices().get(id)?;
     Some((device, element(cx, device)?))
 }
 
@@ -79,11 +53,11 @@ pub fn shown(cx: &RuleContext<'_>, id: DeviceId) -> String {
 }
 
 pub fn net_name<'a>(cx: &RuleContext<'a>, net: NetId) -> &'a str {
-    cx.circuit.nets.get(net).map_or("?", |n| n.name.as_str())
+    cx.circuit.nets().get(net).map_or("?", |n| n.name.as_str())
 }
 
 pub fn is_ground(cx: &RuleContext<'_>, net: NetId) -> bool {
-    cx.circuit.nets.get(net).is_some_and(|n| n.is_ground)
+    cx.circuit.nets().get(net).is_some_and(|n| n.is_ground)
 }
 
 pub fn is_global(cx: &RuleContext<'_>, net: NetId) -> bool {
@@ -115,7 +89,7 @@ pub fn wire_is_ground_or_global(cx: &RuleContext<'_>, net: NetId) -> bool {
 
 /// A finding on an element's line, with its instance path and the instance lines that placed it.
 pub fn finding_at(
-    rule: super::Rule,
+    rule: crate::rules::Rule,
     severity: Severity,
     element: &FlatElement,
     message: impl Into<String>,
@@ -290,11 +264,11 @@ impl<'c, 'a> Tracer<'c, 'a> {
         let index = NetIndex::new(cx);
         let mut fixed_by: Vec<Option<Option<DeviceId>>> = cx
             .circuit
-            .nets
+            .nets()
             .iter()
             .map(|n| n.is_ground.then_some(None))
             .collect();
-        for (id, device) in cx.circuit.devices.iter().enumerate() {
+        for (id, device) in cx.circuit.devices().iter().enumerate() {
             if device.kind == Kind::VoltageSource {
                 for pin in &device.pins {
                     if let Some(slot @ None) = fixed_by.get_mut(pin.net) {
@@ -403,7 +377,7 @@ pub fn between(
         .iter()
         .map(|&(id, _)| id)
         .filter(|&id| {
-            cx.circuit.devices.get(id).is_some_and(|d| {
+            cx.circuit.devices().get(id).is_some_and(|d| {
                 want(d.kind)
                     && d.pins.len() == 2
                     && d.pins.iter().any(|p| p.net == near)
@@ -512,7 +486,9 @@ pub fn pin_label(element: &FlatElement, device: &Device, pin_index: usize) -> St
 #[cfg(test)]
 pub mod testkit {
     use crate::analysis::Analysis;
-    use crate::circuit::{Circuit, Device, Kind, Net, NetId, PartData, Pin, PinRole};
+    use crate::circuit::{
+        CircuitBuilder, Device, DeviceId, Kind, Net, NetId, PartData, Pin, PinRole,
+    };
     use crate::config::Config;
     use crate::diagnostic::Finding;
     use crate::netlist::{FlatElement, FlatNetlist, Num, SourceSpec, Waveform};
@@ -523,7 +499,8 @@ pub mod testkit {
 
     pub struct Deck {
         pub netlist: FlatNetlist,
-        pub circuit: Circuit,
+        /// The circuit's nets and devices; `run` builds the circuit with its indexes.
+        pub parts: CircuitBuilder,
         pub config: Config,
         pub analysis: Analysis,
         names: std::collections::HashMap<String, NetId>,
@@ -537,14 +514,14 @@ pub mod testkit {
 
     impl Deck {
         pub fn new() -> Deck {
-            let mut circuit = Circuit::default();
-            circuit.nets.push(Net {
+            let mut parts = CircuitBuilder::new();
+            parts.add_net(Net {
                 name: "0".into(),
                 is_ground: true,
             });
             Deck {
                 netlist: FlatNetlist::default(),
-                circuit,
+                parts,
                 config: Config::default(),
                 analysis: Analysis::default(),
                 names: std::collections::HashMap::new(),
@@ -559,12 +536,17 @@ pub mod testkit {
             if let Some(&i) = self.names.get(&key) {
                 return i;
             }
-            self.names.insert(key, self.circuit.nets.len());
-            self.circuit.nets.push(Net {
+            let id = self.parts.add_net(Net {
                 name: name.into(),
                 is_ground: false,
             });
-            self.circuit.nets.len() - 1
+            self.names.insert(key, id);
+            id
+        }
+
+        /// A device added earlier, to rewire or change before the next run.
+        pub fn device_mut(&mut self, id: DeviceId) -> &mut Device {
+            self.parts.device_mut(id).expect("a device of this deck")
         }
 
         /// Adds an element; the letter is the name's first character, the line its index + 2.
@@ -582,7 +564,7 @@ pub mod testkit {
                     net: self.net(net),
                 })
                 .collect();
-            self.circuit.devices.push(Device {
+            self.parts.add_device(Device {
                 element: index,
                 kind,
                 pins,
@@ -608,13 +590,13 @@ pub mod testkit {
             });
             let element = self.netlist.elements.last_mut().expect("just pushed");
             element.nodes = self
-                .circuit
-                .devices
+                .parts
+                .devices()
                 .last()
                 .map(|d| {
                     d.pins
                         .iter()
-                        .map(|p| self.circuit.nets[p.net].name.clone())
+                        .map(|p| self.parts.nets()[p.net].name.clone())
                         .collect()
                 })
                 .unwrap_or_default();
@@ -694,9 +676,10 @@ pub mod testkit {
         }
 
         pub fn run(&self, check: Check) -> Vec<Finding> {
+            let circuit = self.parts.build(&self.netlist, &self.config);
             let cx = RuleContext {
                 netlist: &self.netlist,
-                circuit: &self.circuit,
+                circuit: &circuit,
                 analysis: &self.analysis,
                 config: &self.config,
             };
@@ -769,88 +752,5 @@ mod tests {
         for name in ["ncount", "vcc", "sync"] {
             assert!(!super::is_no_connect_name(name), "{name}");
         }
-    }
-}
-
-/// Cost of each hygiene rule on a 550,000-element deck (50,000 fan channels, each with one
-/// dangling net). Run by hand with an optimised build:
-/// `CARGO_PROFILE_DEV_OPT_LEVEL=2 cargo test --lib scale_probe -- --ignored --nocapture`.
-#[cfg(test)]
-mod scale_probe {
-    /// This thread's CPU time in ns (Linux schedstat), so a loaded machine does not skew it.
-    fn cpu_ns() -> u64 {
-        std::fs::read_to_string("/proc/thread-self/schedstat")
-            .ok()
-            .and_then(|s| s.split_whitespace().next()?.parse().ok())
-            .unwrap_or(0)
-    }
-
-    use super::testkit::{Check, Deck};
-    use crate::rules::*;
-
-    #[test]
-    #[ignore]
-    fn probe() {
-        let mut d = Deck::new();
-        d.v("V12", "v12", "0", 12.0);
-        for i in 0..50_000 {
-            let n = |s: &str| format!("{s}{i}");
-            d.timer(
-                &n("XU"),
-                [
-                    "0",
-                    &n("tc"),
-                    &n("out"),
-                    "v12",
-                    &n("ctl"),
-                    &n("tc"),
-                    &n("dis"),
-                    "v12",
-                ],
-            );
-            d.r(&n("RA"), "v12", &n("dis"), "5.6k", 5.6e3);
-            d.r(&n("RB"), &n("dis"), &n("tc"), "27k", 27e3);
-            d.c(&n("CT"), &n("tc"), "0", 1e-9);
-            d.c(&n("CCTL"), &n("ctl"), "0", 1e-8);
-            d.c(&n("CDEC"), "v12", "0", 1e-7);
-            d.r(&n("RG"), &n("out"), &n("g"), "100", 100.0);
-            d.r(&n("RPD"), &n("g"), "0", "10k", 1e4);
-            d.mos(&n("M"), crate::circuit::Kind::Nmos, &n("d"), &n("g"), "0");
-            d.r(&n("RL"), "v12", &n("d"), "24", 24.0);
-            d.r(&n("RX"), &n("d"), &n("dangle"), "24", 24.0);
-        }
-        let checks: [(&str, Check); 13] = [
-            ("model", model_missing::check),
-            ("dup", name_duplicate::check),
-            ("short", element_shorted::check),
-            ("dangling", net_dangling::check),
-            ("pin", pin_unconnected::check),
-            ("supply-shorted", supply_shorted::check),
-            ("unref", supply_unreferenced::check),
-            ("gate", gate_floating::check),
-            ("reset", timer_reset_floating::check),
-            ("ctrl", timer_control_unbypassed::check),
-            ("decoupling", decoupling_missing::check),
-            ("pwm", pwm_audible::check),
-            ("value", value_suspicious::check),
-        ];
-        let t = std::time::Instant::now();
-        let (circuit, _) = crate::circuit::Circuit::build(&d.netlist, &d.config);
-        d.circuit = circuit;
-        println!(
-            "elements {} (graph {:?})",
-            d.netlist.elements.len(),
-            t.elapsed()
-        );
-        let total = std::time::Instant::now();
-        for (name, check) in checks {
-            let t = cpu_ns();
-            let n = d.run(check).len();
-            println!(
-                "{name}: {} ms cpu ({n} findings)",
-                (cpu_ns() - t) / 1_000_000
-            );
-        }
-        println!("all: {:?}", total.elapsed());
     }
 }
