@@ -7,7 +7,9 @@
 //! cargo run --release --example gen_board -- --channels 5 --files 200 --out many/
 //! ```
 //!
-//! Each channel has 10 elements. `--nested N` puts the channels in N levels of subcircuits.
+//! Each channel has 10 elements. `--shape bridge` writes the second channel shape instead (an
+//! H-bridge with a 555 per leg and a relay, 21 elements a channel; flat boards only).
+//! `--nested N` puts the channels in N levels of subcircuits.
 //! `--files N --out DIR` writes N boards and their `kickback.toml` into DIR instead of one
 //! board to standard output.
 
@@ -22,10 +24,11 @@ struct Options {
     nested: usize,
     files: usize,
     out: Option<PathBuf>,
+    shape: board::Shape,
 }
 
 fn usage() -> ! {
-    eprintln!("usage: gen_board [--channels N] [--nested LEVELS] [--files N --out DIR]");
+    eprintln!("usage: gen_board [--channels N] [--shape dosing|bridge] [--nested LEVELS] [--files N --out DIR]");
     std::process::exit(2);
 }
 
@@ -35,6 +38,7 @@ fn options() -> Options {
         nested: 0,
         files: 1,
         out: None,
+        shape: board::Shape::Dosing,
     };
     let mut args = std::env::args().skip(1);
     while let Some(arg) = args.next() {
@@ -44,15 +48,22 @@ fn options() -> Options {
             "--nested" => o.nested = value.parse().unwrap_or_else(|_| usage()),
             "--files" => o.files = value.parse().unwrap_or_else(|_| usage()),
             "--out" => o.out = Some(PathBuf::from(value)),
+            "--shape" => o.shape = board::Shape::parse(&value).unwrap_or_else(|| usage()),
             _ => usage(),
         }
+    }
+    if o.nested != 0 && o.shape != board::Shape::Dosing {
+        usage();
     }
     o
 }
 
 fn write_board(out: &mut impl Write, o: &Options) -> io::Result<()> {
     if o.nested == 0 {
-        board::write_flat(out, o.channels)
+        match o.shape {
+            board::Shape::Dosing => board::write_flat(out, o.channels),
+            shape => board::write_flat_shape(out, o.channels, shape),
+        }
     } else {
         board::write_nested(out, o.channels, o.nested)
     }
@@ -68,7 +79,7 @@ fn main() -> io::Result<()> {
     };
     fs::create_dir_all(dir)?;
     fs::write(dir.join("kickback.toml"), board::CONFIG)?;
-    let _ = board::CHANNEL_ELEMENTS;
+    let _ = (board::CHANNEL_ELEMENTS, o.shape.elements());
     for i in 0..o.files {
         let mut out = BufWriter::new(fs::File::create(dir.join(format!("board{i:04}.cir")))?);
         write_board(&mut out, &o)?;

@@ -70,7 +70,15 @@ pub fn analyze(
     // memo, so they are solved in parallel; the indexed collect keeps component order, which
     // is the order findings and facts were always gathered in.
     let work: Vec<(usize, &Vec<DeviceId>)> = by_component.iter().map(|(&c, m)| (c, m)).collect();
-    type Done = (usize, ComponentSolves, Option<Finding>, Vec<ResistorFacts>);
+    // Each sub-network's solves are read while they are at hand and dropped with the closure:
+    // resistor facts and what each capacitor touching it sees; nothing holds the solves of
+    // every sub-network at once.
+    type Done = (
+        usize,
+        Option<Finding>,
+        Vec<ResistorFacts>,
+        Vec<(DeviceId, CapacitorSeen)>,
+    );
     let done: Vec<Option<Done>> = work
         .par_iter()
         .map(|&(c, members)| -> Option<Done> {
@@ -114,16 +122,24 @@ pub fn analyze(
                 }
                 facts
             };
-            Some((c, s, finding, facts))
+            let seen = members
+                .iter()
+                .copied()
+                .filter(|&d| cx.circuit.devices()[d].kind == Kind::Capacitor)
+                .filter_map(|d| Some((d, capacitor_seen(cx, &s, d)?)))
+                .collect();
+            Some((c, finding, facts, seen))
         })
         .collect();
     let mut findings = Vec::new();
-    let mut solved: BTreeMap<usize, ComponentSolves> = BTreeMap::new();
+    let mut seen: BTreeMap<(DeviceId, usize), CapacitorSeen> = BTreeMap::new();
     let mut resistors = Vec::new();
-    for (c, s, finding, facts) in done.into_iter().flatten() {
+    for (c, finding, facts, caps) in done.into_iter().flatten() {
         findings.extend(finding);
         resistors.extend(facts);
-        solved.insert(c, s);
+        for (d, cap) in caps {
+            seen.insert((d, c), cap);
+        }
     }
     resistors.sort_by_key(|r: &ResistorFacts| r.device);
     resistors.dedup_by_key(|r| r.device);
@@ -134,7 +150,7 @@ pub fn analyze(
         .iter()
         .enumerate()
         .filter(|(_, d)| d.kind == Kind::Capacitor)
-        .filter_map(|(id, _)| capacitor_facts(cx, &solved, id))
+        .filter_map(|(id, _)| capacitor_facts(cx, &seen, id))
         .collect();
     capacitors.sort_by_key(|c| c.device);
     for c in &mut capacitors {
@@ -607,11 +623,17 @@ fn net_voltage(
     }
 }
 
-fn capacitor_facts(
-    cx: &Context<'_>,
-    solved: &BTreeMap<usize, ComponentSolves>,
-    device: DeviceId,
-) -> Option<CapacitorFacts> {
+/// What one sub-network's solves say about a capacitor touching it: the voltage across it
+/// when the solves see both ends, and the range of each end that lies in this sub-network.
+/// `None` for a capacitor straight across two fixed nets (it needs no solve).
+struct CapacitorSeen {
+    across: Option<Range>,
+    pos: Option<Range>,
+    neg: Option<Range>,
+}
+
+/// A capacitor's two nets (`Pos`/`Neg`, else its first two pins).
+fn capacitor_nets(cx: &Context<'_>, device: DeviceId) -> Option<(NetId, NetId)> {
     let d = cx.circuit.devices().get(device)?;
     let pos = d
         .pin(PinRole::Pos)
@@ -619,6 +641,46 @@ fn capacitor_facts(
     let neg = d
         .pin(PinRole::Neg)
         .or_else(|| d.pins.get(1).map(|p| p.net))?;
+    Some((pos, neg))
+}
+
+fn capacitor_seen(
+    cx: &Context<'_>,
+    s: &ComponentSolves,
+    device: DeviceId,
+) -> Option<CapacitorSeen> {
+    let (pos, neg) = capacitor_nets(cx, device)?;
+    let fixed = |net: NetId| cx.partition.fixed.get(net).copied().flatten().is_some();
+    if fixed(pos) && fixed(neg) {
+        return None;
+    }
+    // Both ends seen in one solve: the exact difference, state by state.
+    let across = Range::from_samples(s.ok().filter_map(|(st, x)| {
+        let v = net_voltage(cx, s, x, &st.state, pos)? - net_voltage(cx, s, x, &st.state, neg)?;
+        Some((v, st.label.as_str()))
+    }));
+    // Each end on its own, where it lies in this sub-network.
+    let end_range = |net: NetId| -> Option<Range> {
+        if cx.partition.net_component.get(net).copied().flatten() != Some(s.component) {
+            return None;
+        }
+        Range::from_samples(s.ok().filter_map(|(st, x)| {
+            Some((net_voltage(cx, s, x, &st.state, net)?, st.label.as_str()))
+        }))
+    };
+    Some(CapacitorSeen {
+        across,
+        pos: end_range(pos),
+        neg: end_range(neg),
+    })
+}
+
+fn capacitor_facts(
+    cx: &Context<'_>,
+    seen: &BTreeMap<(DeviceId, usize), CapacitorSeen>,
+    device: DeviceId,
+) -> Option<CapacitorFacts> {
+    let (pos, neg) = capacitor_nets(cx, device)?;
     let own = cx.partition.device_components.get(device)?;
     let fixed = |net: NetId| cx.partition.fixed.get(net).copied().flatten().is_some();
     if fixed(pos) && fixed(neg) {
@@ -636,34 +698,24 @@ fn capacitor_facts(
         return Range::from_samples(samples.iter().map(|(v, l)| (*v, l.as_str())))
             .map(|voltage_v| CapacitorFacts { device, voltage_v });
     }
-    let components: Vec<&ComponentSolves> = own.iter().filter_map(|c| solved.get(c)).collect();
+    let components: Vec<(usize, &CapacitorSeen)> = own
+        .iter()
+        .filter_map(|&c| Some((c, seen.get(&(device, c))?)))
+        .collect();
     // Both ends seen in one solve: the exact difference, state by state.
-    for s in &components {
-        let samples: Vec<(f64, &str)> = s
-            .ok()
-            .filter_map(|(st, x)| {
-                let v =
-                    net_voltage(cx, s, x, &st.state, pos)? - net_voltage(cx, s, x, &st.state, neg)?;
-                Some((v, st.label.as_str()))
-            })
-            .collect();
-        if let Some(range) = Range::from_samples(samples) {
-            return Some(CapacitorFacts {
-                device,
-                voltage_v: range,
-            });
-        }
+    if let Some(range) = components.iter().find_map(|(_, s)| s.across.clone()) {
+        return Some(CapacitorFacts {
+            device,
+            voltage_v: range,
+        });
     }
     // The two ends in different sub-networks: the widest difference of their own ranges.
-    let end_range = |net: NetId| -> Option<Range> {
-        let s = components.iter().find(|s| {
-            cx.partition.net_component.get(net).copied().flatten() == Some(s.component)
-        })?;
-        Range::from_samples(s.ok().filter_map(|(st, x)| {
-            Some((net_voltage(cx, s, x, &st.state, net)?, st.label.as_str()))
-        }))
+    let end_range = |net: NetId, pick: fn(&CapacitorSeen) -> &Option<Range>| -> Option<Range> {
+        let c = cx.partition.net_component.get(net).copied().flatten()?;
+        let (_, s) = components.iter().find(|(own, _)| *own == c)?;
+        pick(s).clone()
     };
-    let (p, n) = (end_range(pos)?, end_range(neg)?);
+    let (p, n) = (end_range(pos, |s| &s.pos)?, end_range(neg, |s| &s.neg)?);
     Some(CapacitorFacts {
         device,
         voltage_v: Range {

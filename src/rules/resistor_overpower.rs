@@ -167,14 +167,14 @@ fn is_winding_copper(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> bo
 /// DC states take the filter's inductor as a wire and the rectifier as always on, so they
 /// see the pulses, not the filtered output the resistor really dissipates in.
 fn is_filtered_output_load(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId) -> bool {
-    let Some(device) = cx.circuit.devices.get(id) else {
+    let Some(device) = cx.circuit.devices().get(id) else {
         return false;
     };
     let [first, second] = device.pins.as_slice() else {
         return false;
     };
     let other_end = |part: DeviceId, net| {
-        let p = cx.circuit.devices.get(part)?;
+        let p = cx.circuit.devices().get(part)?;
         match p.pins.as_slice() {
             [a, b] if a.net == net => Some(b.net),
             [a, b] if b.net == net => Some(a.net),

@@ -37,6 +37,9 @@ pub type Timers<'a> = BTreeMap<DeviceId, &'a TimerFacts>;
 
 /// Wiper positions a switch's sub-network is solved at (pots there are rare: a gate divider).
 const SWITCH_WIPER_GRID: [f64; 3] = [0.0, 0.5, 1.0];
+/// Switches judged per batch: their sub-networks are solved together, in parallel, and
+/// dropped when no later switch reads them.
+const SWITCH_BATCH: usize = 256;
 
 pub fn analyze(
     cx: &Context<'_>,
@@ -73,26 +76,6 @@ pub fn analyze(
             by_component.entry(c).or_default().push(i);
         }
     }
-    // Each sub-network is solved on its own, in parallel (answers do not depend on the thread
-    // or the memo); the indexed collect keeps component order for the findings.
-    let work: Vec<(usize, &Vec<usize>)> = by_component.iter().map(|(&c, m)| (c, m)).collect();
-    let done: Vec<Option<(usize, ComponentSolves)>> = work
-        .par_iter()
-        .map(|&(c, members)| {
-            let mut keys: Vec<DeviceId> =
-                members.iter().filter_map(|&i| drives[i].control).collect();
-            keys.sort_unstable();
-            keys.dedup();
-            solves::solve_component(cx, c, &keys, &SWITCH_WIPER_GRID).map(|s| (c, s))
-        })
-        .collect();
-    let mut solved: BTreeMap<usize, ComponentSolves> = BTreeMap::new();
-    for (c, s) in done.into_iter().flatten() {
-        if let Some(first) = by_component.get(&c).and_then(|m| m.first()) {
-            findings.extend(solves::failure_finding(cx, &s, topologies[*first].device));
-        }
-        solved.insert(c, s);
-    }
     let component_of = |device: DeviceId| -> Option<usize> {
         cx.partition
             .device_components
@@ -100,77 +83,136 @@ pub fn analyze(
             .and_then(|v| v.first())
             .copied()
     };
-
-    let on_levels: Vec<Option<bool>> = topologies
-        .iter()
-        .zip(&drives)
-        .map(|(t, d)| {
-            let s = solved.get(&component_of(t.device)?)?;
-            drive::on_level(cx, t, d.control, s)
-        })
-        .collect();
+    let partner_of = |t: &SwitchTopology| -> Option<usize> { position.get(&t.partner?).copied() };
+    // Sub-networks are solved a batch of switches at a time, in parallel (answers do not depend
+    // on the thread or the memo), and a sub-network's solves are dropped once the last switch
+    // that reads them (as its own or as a bridge partner's) is judged, so memory follows the
+    // batch, not the board. Failures are reported in component order, as if all were solved
+    // at once.
+    let mut last_use: BTreeMap<usize, usize> = BTreeMap::new();
+    for (i, t) in topologies.iter().enumerate() {
+        let partner = partner_of(t).and_then(|j| component_of(topologies[j].device));
+        for c in component_of(t.device).into_iter().chain(partner) {
+            last_use.insert(c, i);
+        }
+    }
+    let solve = |c: usize| -> Option<ComponentSolves> {
+        let members = by_component.get(&c)?;
+        let mut keys: Vec<DeviceId> = members.iter().filter_map(|&i| drives[i].control).collect();
+        keys.sort_unstable();
+        keys.dedup();
+        solves::solve_component(cx, c, &keys, &SWITCH_WIPER_GRID)
+    };
+    let mut solved: BTreeMap<usize, ComponentSolves> = BTreeMap::new();
+    let mut attempted: std::collections::BTreeSet<usize> = std::collections::BTreeSet::new();
+    let mut failures: BTreeMap<usize, Finding> = BTreeMap::new();
+    let mut on_levels: Vec<Option<bool>> = vec![None; topologies.len()];
+    let mut on_known = vec![false; topologies.len()];
 
     let mut switches = Vec::new();
     let mut loads: Vec<LoadFacts> = Vec::new();
     let mut load_index: BTreeMap<DeviceId, usize> = BTreeMap::new();
     let mut freewheels = freewheel::CandidateCache::default();
-    for (i, t) in topologies.iter().enumerate() {
-        let Some(s) = component_of(t.device).and_then(|c| solved.get(&c)) else {
-            switches.push(bare_switch(cx, t, &topologies, stages[i].clone()));
-            continue;
-        };
-        let partner = t.partner.and_then(|p| {
-            let j = *position.get(&p)?;
-            Some((drives[j].control?, on_levels[j]?))
-        });
-        let states = drive::on_off(t, drives[i].control, on_levels[i], partner, s);
-        let mut facts = switch_facts(
-            cx,
-            timers,
-            &nets,
-            t,
-            &topologies,
-            &drives[i],
-            &states,
-            s,
-            &mut freewheels,
-        );
-        (facts.stage, facts.stage_reason) = stages[i].clone();
-        for &load_device in t.load.iter().chain(t.parallel_loads.iter()) {
-            if load_index.contains_key(&load_device) {
+    for batch_start in (0..topologies.len()).step_by(SWITCH_BATCH) {
+        let batch = batch_start..(batch_start + SWITCH_BATCH).min(topologies.len());
+        let mut wanted: Vec<usize> = batch
+            .clone()
+            .flat_map(|i| {
+                let t = &topologies[i];
+                let partner = partner_of(t).and_then(|j| component_of(topologies[j].device));
+                component_of(t.device).into_iter().chain(partner)
+            })
+            .filter(|c| by_component.contains_key(c) && !attempted.contains(c))
+            .collect();
+        wanted.sort_unstable();
+        wanted.dedup();
+        let done: Vec<(usize, Option<ComponentSolves>)> =
+            wanted.par_iter().map(|&c| (c, solve(c))).collect();
+        for (c, s) in done {
+            attempted.insert(c);
+            let Some(s) = s else { continue };
+            if let Some(first) = by_component.get(&c).and_then(|m| m.first()) {
+                if let Some(f) = solves::failure_finding(cx, &s, topologies[*first].device) {
+                    failures.insert(c, f);
+                }
+            }
+            solved.insert(c, s);
+        }
+        for i in batch
+            .clone()
+            .chain(batch.clone().filter_map(|i| partner_of(&topologies[i])))
+        {
+            if on_known[i] {
                 continue;
             }
-            let branch: Vec<DeviceId> = if Some(load_device) == t.load {
-                t.branch.devices.clone()
-            } else {
-                vec![load_device]
-            };
-            let path = facts.freewheel.iter().find(|f| !f.reversed);
-            let full_on_v = (Some(load_device) == t.load)
-                .then(|| full_on_voltage(cx, &facts, load_device, s, &states.conducting))
-                .flatten();
-            let setting = LoadSetting {
-                solves: s,
-                conducting: &states.conducting,
-                duty: facts.duty.clone(),
-                frequency_hz: facts.frequency_hz.clone(),
-                branch: &branch,
-                switch: Some(t.device),
-                freewheel: path.map(|f| f.device),
-                freewheel_drop_v: path.map(|f| freewheel_drop(cx, f, &facts)),
-                full_on_v,
-                driven_by: None,
-            };
-            load_index.insert(load_device, loads.len());
-            let mut this_load = load::load_facts(cx, load_device, &setting);
-            if ramps(cx, &branch) {
-                this_load.current_a = None;
-                this_load.stored_energy_j = None;
-            }
-            loads.push(this_load);
+            let t = &topologies[i];
+            on_levels[i] = component_of(t.device)
+                .and_then(|c| solved.get(&c))
+                .and_then(|s| drive::on_level(cx, t, drives[i].control, s));
+            on_known[i] = true;
         }
-        switches.push(facts);
+        for i in batch.clone() {
+            let t = &topologies[i];
+            let Some(s) = component_of(t.device).and_then(|c| solved.get(&c)) else {
+                switches.push(bare_switch(cx, t, &topologies, stages[i].clone()));
+                continue;
+            };
+            let partner = t.partner.and_then(|p| {
+                let j = *position.get(&p)?;
+                Some((drives[j].control?, on_levels[j]?))
+            });
+            let states = drive::on_off(t, drives[i].control, on_levels[i], partner, s);
+            let mut facts = switch_facts(
+                cx,
+                timers,
+                &nets,
+                t,
+                &topologies,
+                &drives[i],
+                &states,
+                s,
+                &mut freewheels,
+            );
+            (facts.stage, facts.stage_reason) = stages[i].clone();
+            for &load_device in t.load.iter().chain(t.parallel_loads.iter()) {
+                if load_index.contains_key(&load_device) {
+                    continue;
+                }
+                let branch: Vec<DeviceId> = if Some(load_device) == t.load {
+                    t.branch.devices.clone()
+                } else {
+                    vec![load_device]
+                };
+                let path = facts.freewheel.iter().find(|f| !f.reversed);
+                let full_on_v = (Some(load_device) == t.load)
+                    .then(|| full_on_voltage(cx, &facts, load_device, s, &states.conducting))
+                    .flatten();
+                let setting = LoadSetting {
+                    solves: s,
+                    conducting: &states.conducting,
+                    duty: facts.duty.clone(),
+                    frequency_hz: facts.frequency_hz.clone(),
+                    branch: &branch,
+                    switch: Some(t.device),
+                    freewheel: path.map(|f| f.device),
+                    freewheel_drop_v: path.map(|f| freewheel_drop(cx, f, &facts)),
+                    full_on_v,
+                    driven_by: None,
+                };
+                load_index.insert(load_device, loads.len());
+                let mut this_load = load::load_facts(cx, load_device, &setting);
+                if ramps(cx, &branch) {
+                    this_load.current_a = None;
+                    this_load.stored_energy_j = None;
+                }
+                loads.push(this_load);
+            }
+            switches.push(facts);
+        }
+        let next = batch.end;
+        solved.retain(|c, _| last_use.get(c).is_some_and(|&last| last >= next));
     }
+    findings.extend(failures.into_values());
 
     // Loads no switch interrupts: straight on a rail, a pulse source or a timer's pin.
     for (device, d) in cx.circuit.devices().iter().enumerate() {
@@ -181,13 +223,21 @@ pub fn analyze(
             continue;
         };
         if let std::collections::btree_map::Entry::Vacant(slot) = solved.entry(c) {
-            let Some(component) = cx.partition.components.get(c) else {
-                continue;
-            };
-            let inputs = cx.inputs(component);
-            if let Some(s) = solves::solve_component(cx, c, &inputs, &SWITCH_WIPER_GRID) {
-                findings.extend(solves::failure_finding(cx, &s, device));
-                slot.insert(s);
+            if attempted.contains(&c) {
+                // Solved for its switches and dropped since: solved again (the same answer),
+                // its failure already reported.
+                if let Some(s) = solve(c) {
+                    slot.insert(s);
+                }
+            } else {
+                let Some(component) = cx.partition.components.get(c) else {
+                    continue;
+                };
+                let inputs = cx.inputs(component);
+                if let Some(s) = solves::solve_component(cx, c, &inputs, &SWITCH_WIPER_GRID) {
+                    findings.extend(solves::failure_finding(cx, &s, device));
+                    slot.insert(s);
+                }
             }
         }
         let Some(s) = solved.get(&c) else { continue };
