@@ -586,3 +586,68 @@ fn the_summary_names_what_could_not_be_judged() {
         "{stdout}"
     );
 }
+
+// ---- a reference of every part kind and its keys ----------------------------------------------
+
+#[test]
+fn parts_lists_every_kind_and_every_key_with_its_default() {
+    use kickback::vocabulary::{ratings, Kind};
+    let output = kickback()
+        .arg("parts")
+        .assert()
+        .code(0)
+        .get_output()
+        .clone();
+    let shown = text(&output.stdout);
+    for kind in Kind::CONFIGURABLE {
+        assert!(
+            shown.contains(&format!("\n{kind}   pins in package order:")),
+            "{kind} is missing:\n{shown}"
+        );
+    }
+    for key in ratings::RATING_NAMES.iter().chain(ratings::FLAG_RATINGS) {
+        assert!(
+            shown.contains(&format!("\n  {key} ")),
+            "{key} is missing:\n{shown}"
+        );
+    }
+    // The defaults a check applies, with their sources (from src/circuit/defaults.rs).
+    assert!(shown.contains("built-in default for timer-555 (from memory)"));
+    assert!(shown.contains("built-in default for logic-level nmos"));
+    assert!(shown.contains("√(power_rating/resistance)"));
+
+    let output = kickback()
+        .args(["parts", "--format", "json"])
+        .assert()
+        .code(0)
+        .get_output()
+        .clone();
+    let doc: serde_json::Value = serde_json::from_slice(&output.stdout).expect("json");
+    assert_eq!(doc["version"], 1);
+    let kinds = doc["kinds"].as_array().expect("kinds");
+    for kind in Kind::CONFIGURABLE {
+        assert!(kinds.iter().any(|k| k["kind"] == kind.as_str()), "{kind}");
+    }
+    for key in ratings::RATING_NAMES.iter().chain(ratings::FLAG_RATINGS) {
+        let found = kinds.iter().any(|k| {
+            k["keys"]
+                .as_array()
+                .is_some_and(|keys| keys.iter().any(|e| e["key"] == *key))
+        });
+        assert!(found, "{key}");
+    }
+    // A bipolar 555's ladder: 5 kΩ, from memory (src/circuit/defaults.rs).
+    let timer = kinds.iter().find(|k| k["kind"] == "timer-555").unwrap();
+    let ladder = timer["keys"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|e| e["key"] == "ladder_resistance")
+        .unwrap();
+    assert_eq!(ladder["unit"], "Ω");
+    assert_eq!(ladder["defaults"][0]["value"], 5000.0);
+    assert_eq!(
+        ladder["defaults"][0]["source"],
+        "built-in default for timer-555 (from memory)"
+    );
+}

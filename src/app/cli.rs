@@ -125,6 +125,9 @@ pub enum Command {
     /// List every rule, the severities it gives and the level in effect under the
     /// configuration (`--format json` for a program).
     Rules,
+    /// List every part kind a kickback.toml can name, the keys that describe it with their
+    /// units, and each key's default with where it comes from (`--format json` for a program).
+    Parts,
     /// Print the page of one rule: what it checks, why, an example and its fix.
     Explain {
         /// The rule ID, e.g. flyback-missing.

@@ -9,6 +9,7 @@ pub mod catalogue;
 pub mod cli;
 pub mod discover;
 pub mod init;
+pub mod parts;
 pub mod terminal;
 mod watch;
 
@@ -113,6 +114,7 @@ where
         Command::Lsp { debounce_ms } => lsp(*debounce_ms, &cli.global, &mut console),
         Command::Report { file } => report_command(file, &cli.global, &mut console),
         Command::Rules => rules_command(&cli.global, &mut console),
+        Command::Parts => parts_command(cli.global.format, &mut console),
         Command::Explain { rule } => explain(rule, &mut console),
         Command::Init { path } => init(path.as_deref(), &mut console),
         Command::Completions { shell } => {
@@ -642,6 +644,20 @@ fn rules_command(global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
     let text = match global.format {
         Format::Json => catalogue::json(crate::rules::REGISTRY, config.as_ref()),
         _ => catalogue::table(crate::rules::REGISTRY, config.as_ref()),
+    };
+    console.print(&text);
+    EXIT_CLEAN
+}
+
+/// `kickback parts`: the reference of part kinds, keys, units and defaults.
+fn parts_command(format: Format, console: &mut Console<'_>) -> u8 {
+    let text = match format {
+        Format::Json => parts::json(),
+        Format::Cards => parts::text(),
+        _ => {
+            console.error("parts prints --format cards (tables for a person) or --format json");
+            return EXIT_FAILURE;
+        }
     };
     console.print(&text);
     EXIT_CLEAN
