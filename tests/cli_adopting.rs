@@ -651,3 +651,38 @@ fn parts_lists_every_kind_and_every_key_with_its_default() {
         "built-in default for timer-555 (from memory)"
     );
 }
+
+// ---- "6M" where mega was meant ----------------------------------------------------------------
+
+#[test]
+fn a_capital_m_where_mega_was_meant_is_a_warning_that_does_not_fail() {
+    let dir = project();
+    let toml = dir.path().join("hw/kickback.toml");
+    let mut config = fs::read_to_string(&toml).unwrap();
+    let line = config.lines().count() + 4;
+    config.push_str("\n[parts.SPARE555]\nkind = \"timer-555\"\nladder_resistance = \"6M\"\n");
+    config.push_str("\n[parts.SPAREPOT]\nkind = \"potentiometer\"\nresistance = \"10MEG\"\n");
+    config.push_str("\n[parts.SPARENMOS]\nkind = \"nmos\"\nrds_on = \"6M\"\n");
+    fs::write(&toml, &config).unwrap();
+    let output = kickback()
+        .current_dir(dir.path())
+        .args(["check", "hw/valve.cir", "--format", "lines"])
+        .assert()
+        // The valve's own finding decides the exit code, as without the warning.
+        .code(1)
+        .get_output()
+        .clone();
+    let stderr = text(&output.stderr);
+    assert!(
+        stderr.contains(&format!(
+            "kickback.toml:{line}:1: `parts.SPARE555.ladder_resistance`: \"6M\" reads as 6 mΩ"
+        )),
+        "{stderr}"
+    );
+    assert!(stderr.contains("write \"6MEG\" for 6 MΩ"), "{stderr}");
+    assert!(stderr.contains("ladder_resistance = \"6M\""), "{stderr}");
+    // Mega written as MEG, and milli on a key where milli is usual, say nothing.
+    assert_eq!(stderr.matches("warning:").count(), 1, "{stderr}");
+    // The findings are what they were.
+    assert!(text(&output.stdout).contains("flyback-missing"));
+}

@@ -324,7 +324,11 @@ fn check(
             }
         }
         totals.known = totals.known.saturating_add(known);
-        configs.extend(reports.iter().flat_map(|r| r.configs.iter().cloned()));
+        for path in reports.iter().flat_map(|r| r.configs.iter()) {
+            if configs.insert(path.clone()) {
+                config_warnings(path, console);
+            }
+        }
         for (file, message) in report::failures(&reports) {
             // Most reasons already name the netlist ("cannot read a.cir: ..."); others name
             // only their own file (a config line), so the netlist is added.
@@ -546,6 +550,17 @@ fn unreadable((path, reason): (PathBuf, String)) -> FileReport {
         suppressed: 0,
         configs: Vec::new(),
         failure: Some(CheckError::Load(LoadError::Unreadable { path, reason })),
+    }
+}
+
+/// The warnings of one configuration file the run read (`"6M"` for a resistance), on stderr:
+/// shown once, whatever the number of netlists it applies to, and never failing the run.
+fn config_warnings(path: &Path, console: &mut Console<'_>) {
+    // The file was read moments ago for a netlist; a reading that fails now was reported there.
+    if let Ok(config) = Config::load(path) {
+        for warning in &config.warnings {
+            console.warning(&warning.to_string());
+        }
     }
 }
 
@@ -834,6 +849,10 @@ impl Console<'_> {
 
     fn error(&mut self, message: &str) {
         self.write_err(&format!("error: {message}\n"));
+    }
+
+    fn warning(&mut self, message: &str) {
+        self.write_err(&format!("warning: {message}\n"));
     }
 
     fn note(&mut self, message: &str) {
