@@ -686,3 +686,52 @@ fn a_capital_m_where_mega_was_meant_is_a_warning_that_does_not_fail() {
     // The findings are what they were.
     assert!(text(&output.stdout).contains("flyback-missing"));
 }
+
+// ---- a library is checked as a library ----------------------------------------------------------
+
+#[test]
+fn a_library_named_directly_is_checked_for_its_definitions_only() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    // A title-like first line, a subcircuit with a broken line, and a stray top-level resistor
+    // whose second net nothing else touches (in a deck, a dangling net).
+    fs::write(
+        dir.path().join("bench.lib"),
+        "Bench library of gate drivers\n\
+         .subckt GD in g gnd\n\
+         Rg in g\n\
+         .ends GD\n\
+         R9 a b 10k\n",
+    )
+    .unwrap();
+    fs::write(
+        dir.path().join("models.inc"),
+        "* models only\n.model DSW D(IS=1e-6)\n.subckt PULL a b\nR1 a b 10k\n.ends PULL\n",
+    )
+    .unwrap();
+    let output = kickback()
+        .current_dir(dir.path())
+        .args(["check", "bench.lib", "models.inc", "--format", "lines"])
+        .assert()
+        .code(1)
+        .get_output()
+        .clone();
+    let stdout = text(&output.stdout);
+    let lines: Vec<&str> = stdout.lines().collect();
+    // The first line is a statement, as for the decks that include the file, and its
+    // finding says why; the broken definition line is reported; nothing electrical is.
+    assert_eq!(lines.len(), 2, "{stdout}");
+    assert!(
+        lines[0].starts_with("bench.lib:1:1: error syntax"),
+        "{stdout}"
+    );
+    assert!(
+        lines[0].contains("read its first line as a statement"),
+        "{stdout}"
+    );
+    assert!(
+        lines[1].starts_with("bench.lib:3:1: error syntax"),
+        "{stdout}"
+    );
+    assert!(!stdout.contains("models.inc"), "{stdout}");
+    assert!(!stdout.contains("dangling"), "{stdout}");
+}

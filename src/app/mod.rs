@@ -276,6 +276,8 @@ fn check(
         dependents.extend(around.files.into_iter().filter(|f| !named.contains(f)));
     }
     let mut jobs: Vec<Job> = found.files.into_iter().map(Job::Check).collect();
+    // The library itself is checked too, as a library: its definitions' own problems.
+    jobs.extend(found.libraries.iter().cloned().map(Job::Check));
     jobs.extend(dependents.into_iter().map(Job::IfIncludes));
     jobs.extend(found.failures.into_iter().map(Job::Unreadable));
     if stdin {
