@@ -735,3 +735,48 @@ fn a_library_named_directly_is_checked_for_its_definitions_only() {
     assert!(!stdout.contains("models.inc"), "{stdout}");
     assert!(!stdout.contains("dangling"), "{stdout}");
 }
+
+// ---- a compact mode for big runs ----------------------------------------------------------------
+
+#[test]
+fn compact_cards_give_a_short_block_per_finding_and_keep_the_summaries() {
+    let demo = repo("testdata/demo");
+    let full = kickback()
+        .current_dir(&demo)
+        .args(["check", "doser.cir", "--format", "lines"])
+        .assert()
+        .code(1)
+        .get_output()
+        .clone();
+    let findings = text(&full.stdout).lines().count();
+    let output = kickback()
+        .current_dir(&demo)
+        .args(["check", "doser.cir", "--compact", "--counts"])
+        .assert()
+        .code(1)
+        .get_output()
+        .clone();
+    let shown = text(&output.stdout);
+    // One heading per finding, each with its place; no netlist lines, no numbers table.
+    let headings = shown
+        .lines()
+        .filter(|l| l.contains(" at doser.cir:"))
+        .count();
+    assert_eq!(headings, findings, "{shown}");
+    assert!(!shown.contains('┃'), "{shown}");
+    assert!(!shown.contains("number  "), "{shown}");
+    assert!(shown.contains("  fix ▸ "), "{shown}");
+    // The counts by rule and by file, and the summary line, stay.
+    assert!(shown.contains("gate-underdrive"), "{shown}");
+    assert!(
+        shown.contains("5 errors, 6 warnings, 2 notes in 1 file"),
+        "{shown}"
+    );
+    let full_cards = kickback()
+        .current_dir(&demo)
+        .args(["check", "doser.cir"])
+        .assert()
+        .get_output()
+        .clone();
+    assert!(shown.lines().count() * 2 < text(&full_cards.stdout).lines().count());
+}

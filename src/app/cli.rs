@@ -100,6 +100,10 @@ pub enum Command {
         /// Cards format: before the summary, count the findings by rule and by file.
         #[arg(long)]
         counts: bool,
+        /// Cards format: each finding as a short block (heading, message, fix) without its
+        /// netlist lines or numbers, for runs over many boards.
+        #[arg(long)]
+        compact: bool,
         /// Keep running: check again whenever a netlist, an included file or kickback.toml
         /// under PATHS is saved (Ctrl-C stops).
         #[arg(long)]

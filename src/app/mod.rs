@@ -88,6 +88,7 @@ where
             baseline,
             name,
             counts,
+            compact,
             watch,
         } => {
             let run = CheckRun {
@@ -95,6 +96,7 @@ where
                 stdin_name: name,
                 write_baseline: None,
                 counts: *counts,
+                compact: *compact,
             };
             if *watch {
                 watch::run(paths, &run, &cli.global, env, &mut console)
@@ -108,6 +110,7 @@ where
                 stdin_name: Path::new("stdin.cir"),
                 write_baseline: Some(out),
                 counts: false,
+                compact: false,
             };
             check(paths, &run, &cli.global, env, &mut console)
         }
@@ -179,6 +182,8 @@ struct CheckRun<'a> {
     write_baseline: Option<&'a Path>,
     /// `check --counts`: findings by rule and by file before the summary.
     counts: bool,
+    /// `check --compact`: a short block per finding in the cards format.
+    compact: bool,
 }
 
 fn check(
@@ -348,6 +353,9 @@ fn check(
         if streamed {
             add_counts(&mut totals, &report::Summary::of(&reports));
             let text = match global.format {
+                Format::Cards | Format::Human if run.compact => {
+                    report::cards::render_compact(&reports, &cards)
+                }
                 Format::Cards | Format::Human => report::cards::render(&reports, &cards),
                 _ => report::lines::render(&reports, shown),
             };
