@@ -780,3 +780,73 @@ fn compact_cards_give_a_short_block_per_finding_and_keep_the_summaries() {
         .clone();
     assert!(shown.lines().count() * 2 < text(&full_cards.stdout).lines().count());
 }
+
+// ---- an honest summary ---------------------------------------------------------------------------
+
+#[test]
+fn the_summary_counts_assumed_ratings_leaves_run_choices_out_and_gives_the_baseline() {
+    // A finding whose deciding rating is only a default becomes a note, and the summary counts
+    // it among what kickback could not judge.
+    let fixtures = repo("testdata/rules/discharge-unprotected");
+    let output = kickback()
+        .current_dir(&fixtures)
+        .args(["check", "fires-100-ohm-series.cir"])
+        .assert()
+        .get_output()
+        .clone();
+    let shown = text(&output.stdout);
+    assert!(
+        shown.contains("kickback could not judge 1 place (rating assumed 1)"),
+        "{shown}"
+    );
+
+    // `--skip` and `--only` choose what a run shows: nothing is counted as suppressed.
+    let demo = repo("testdata/demo");
+    let json = |args: &[&str]| -> serde_json::Value {
+        let output = kickback()
+            .current_dir(&demo)
+            .args(["check", "doser.cir", "--format", "json"])
+            .args(args)
+            .output()
+            .expect("run");
+        serde_json::from_slice(&output.stdout).expect("json")
+    };
+    let all = json(&[]);
+    let skipped = json(&["--skip", "gate-underdrive"]);
+    assert_eq!(
+        skipped["summary"]["suppressed"],
+        all["summary"]["suppressed"]
+    );
+    assert_eq!(
+        skipped["summary"]["errors"].as_u64().unwrap() + 1,
+        all["summary"]["errors"].as_u64().unwrap()
+    );
+    let only = json(&["--only", "flyback-missing"]);
+    assert_eq!(only["summary"]["suppressed"], all["summary"]["suppressed"]);
+    // No baseline, no baseline count.
+    assert!(all["summary"].get("baseline").is_none());
+
+    // With a baseline, the JSON summary says how many findings it left out.
+    let dir = project();
+    kickback()
+        .current_dir(dir.path())
+        .args(["baseline", "hw", "--out", "known.toml"])
+        .assert()
+        .code(0);
+    let output = kickback()
+        .current_dir(dir.path())
+        .args([
+            "check",
+            "hw",
+            "--baseline",
+            "known.toml",
+            "--format",
+            "json",
+        ])
+        .assert()
+        .code(0)
+        .get_output()
+        .clone();
+    let doc: serde_json::Value = serde_json::from_slice(&output.stdout).expect("json");
+    assert!(doc["summary"]["baseline"].as_u64().unwrap() >= 1, "{doc}");
+}

@@ -420,7 +420,9 @@ fn check(
             text
         }
         Format::Lines | Format::Short => String::new(),
-        Format::Json => report::json::render(&kept),
+        Format::Json => {
+            report::json::render_with_baseline(&kept, baseline.as_ref().map(|_| totals.known))
+        }
         Format::Sarif => report::sarif::render(&kept),
         Format::Html | Format::Markdown => String::new(),
     };
@@ -532,6 +534,7 @@ fn add_counts(totals: &mut report::Summary, batch: &report::Summary) {
         let total = totals.not_judged.entry(rule.clone()).or_default();
         *total = total.saturating_add(*n);
     }
+    totals.assumed = totals.assumed.saturating_add(batch.assumed);
     totals.failed.extend(batch.failed.iter().cloned());
 }
 

@@ -87,6 +87,9 @@ pub struct Config {
     pub parts: Vec<(String, PartConfig)>,
     /// Flattened instance path as written → data. Matched case-insensitively.
     pub elements: BTreeMap<String, PartConfig>,
+    /// Rule IDs (lower-case) turned off for one run by the command line (`--only`, `--skip`),
+    /// not by a file: their findings are left out without counting as suppressed.
+    pub run_off: std::collections::BTreeSet<String>,
     /// Values that are valid but most likely not what was meant (`"6M"` for a resistance is
     /// 6 mΩ), in the order of the files and their lines; a check shows them and goes on.
     pub warnings: Vec<ConfigWarning>,
