@@ -204,3 +204,36 @@ fn fallbacks_rescue_a_starved_iteration_limit() {
         assert!(op.iterations() <= options.max_total_iterations);
     }
 }
+
+/// A loop with no source in it carries no current (Kirchhoff's voltage law: the drops round a
+/// loop of passive parts sum to zero, so a resistor and a forward-only diode in a closed ring
+/// settle at zero). Here the ring is a 24 V rail's 8 Ω winding resistance, a micro-ohm stand-in
+/// for the winding's inductance and a freewheel diode back to the rail, with scale currents of
+/// Schottky magnitude: every combination must settle at zero current, not wander at the
+/// rounding level of 24 V forever.
+#[test]
+fn a_sourceless_ring_through_a_micro_ohm_winding_settles_at_zero() {
+    let options = SolveOptions::default();
+    for (is, n) in [(1e-6, 1.0), (1e-6, 1.05), (1e-14, 1.0), (2.5e-9, 1.75)] {
+        for stand_in_ohms in [1e-6, 1e-3] {
+            let mut net = Network::new();
+            let gnd = net.ground();
+            let (rail, x, d) = (net.add_node("rail"), net.add_node("x"), net.add_node("d"));
+            net.add_voltage_source(rail, gnd, 24.0);
+            net.add_resistor(rail, x, 8.0);
+            net.add_resistor(x, d, stand_in_ohms);
+            let params = DiodeParams {
+                is,
+                n,
+                ..DiodeParams::default()
+            };
+            let diode = net.add_diode(d, rail, params);
+            let op = solve(&net, &options)
+                .unwrap_or_else(|e| panic!("IS {is}, N {n}, {stand_in_ohms} Ω: {e}"));
+            let current = op.current(diode).unwrap_or(f64::NAN);
+            assert!(current.abs() < 1e-6, "IS {is}, N {n}: {current} A");
+            let v = op.voltage(d).unwrap_or(f64::NAN);
+            assert!((v - 24.0).abs() < 1e-4, "IS {is}, N {n}: {v} V");
+        }
+    }
+}

@@ -246,6 +246,11 @@ pub struct Freewheel {
     /// Average freewheel current `(1−D)·I` over the duty range (PWM loads; `None` for a
     /// clamp, which only conducts in the turn-off transient, and when D or I is unknown).
     pub avg_current_a: Option<Range>,
+    /// Largest reverse voltage across the diode (cathode above anode) in the on state, at every
+    /// corner: the rail for a diode that holds the rail off, near zero for the zener of a
+    /// diode-plus-zener clamp, whose series diode holds the rail off instead (`None` for the
+    /// opposite switch's body diode and where the on state was not solved).
+    pub on_state_reverse_v: Option<f64>,
 }
 
 /// The switches that share one drive, seen from one of them: every switch on the drive is

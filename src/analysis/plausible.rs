@@ -13,7 +13,9 @@
 //! - An inductor with no series resistance, switched across a rail by a pulse drive, is a
 //!   current ramp, not a short: over the on-time `t_on` its current rises by `V·t_on/L`
 //!   (V = L·di/dt). Where the DC short would carry more than that, the inductor is solved as a
-//!   short whose current is limited to the ramp's peak, and the state's label says so.
+//!   short whose current is limited to the ramp's peak, and the state's label says so. An
+//!   inductor with a resistor in series of its own (a winding written as R plus L) keeps its
+//!   DC current: repeated pulses settle there whatever the first pulse reached.
 //! - A BJT whose current gain is only a built-in default (no `hfe_min`, no `BF`) is solved
 //!   again at the ends of the plausible range [`BETA_LOW`]–[`BETA_HIGH`]; a state that changes
 //!   across that range is not used.
@@ -79,7 +81,10 @@ pub fn solve(cx: &Context<'_>, component: &Component, state: &State) -> Result<S
                         continue;
                     };
                     let peak = span * t_on / l;
-                    if current.abs() <= peak {
+                    // A winding written as a resistor in series with the inductor settles to
+                    // its DC current over repeated pulses: the ramp of the first pulse is only
+                    // a bound where nothing but the inductor's missing resistance limits.
+                    if current.abs() <= peak || series_ohms(cx, device) >= SHORT_LOOP_OHMS {
                         continue;
                     }
                     variant.ramps.insert(device, peak);
@@ -182,6 +187,36 @@ fn ideal_inductor_currents(
             (i.is_finite() && i != 0.0).then_some((d, i))
         })
         .collect()
+}
+
+/// Resistance of the resistors wired in series with an inductor through nets that join only
+/// the two of them: the winding resistance a deck writes as a resistor of its own.
+fn series_ohms(cx: &Context<'_>, inductor: DeviceId) -> f64 {
+    let Some(d) = cx.circuit.devices.get(inductor) else {
+        return 0.0;
+    };
+    let mut seen = vec![inductor];
+    let mut ohms = 0.0;
+    for pin in &d.pins {
+        let Some(chain) = cx.circuit.series_chain(pin.net, inductor) else {
+            continue;
+        };
+        for &part in &chain.devices {
+            if seen.contains(&part) {
+                continue;
+            }
+            seen.push(part);
+            let Some(p) = cx.circuit.devices.get(part) else {
+                continue;
+            };
+            if p.kind == Kind::Resistor {
+                ohms += stand_in::resistance(cx, p)
+                    .filter(|r| r.is_finite())
+                    .unwrap_or(0.0);
+            }
+        }
+    }
+    ohms
 }
 
 fn inductance(cx: &Context<'_>, device: DeviceId) -> Option<f64> {

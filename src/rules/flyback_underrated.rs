@@ -27,10 +27,21 @@ const VOLTAGE_MARGIN: f64 = 2.0;
 const SLOW_TRR_S: f64 = 1e-6;
 /// Above this PWM frequency a standard-recovery diode's reverse current each cycle matters.
 const SLOW_DIODE_MAX_HZ: f64 = 1e3;
+/// A diode that sees less than this share of the rail in reverse while the switch is on does
+/// not hold the rail off: the zener of a diode-plus-zener clamp, whose series diode blocks the
+/// rail and which breaks down at turn-off by design.
+const HOLDS_RAIL_FRACTION: f64 = 0.5;
 
 pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
     let mut seen: Vec<DeviceId> = Vec::new();
-    for sw in cx.analysis.switches.iter().filter(|s| is_switch(s)) {
+    // A diode beside a resistive branch is no freewheel diode: a gate clamp zener across a
+    // level shifter's pull-up breaks down every cycle by design.
+    for sw in cx
+        .analysis
+        .switches
+        .iter()
+        .filter(|s| is_switch(s) && s.inductive)
+    {
         for fw in &sw.freewheel {
             let placed = matches!(fw.kind, FreewheelKind::AcrossLoad | FreewheelKind::ToRail);
             let plain = matches!(kind(cx, fw.device), Some(Kind::Diode | Kind::Schottky));
@@ -96,6 +107,13 @@ impl Diode<'_, '_> {
         let v = rail.v.max;
         let wanted = VOLTAGE_MARGIN * v;
         if vrrm.value >= wanted {
+            return None;
+        }
+        if self
+            .fw
+            .on_state_reverse_v
+            .is_some_and(|reverse| reverse < HOLDS_RAIL_FRACTION * v)
+        {
             return None;
         }
         let d = self.name();

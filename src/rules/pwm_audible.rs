@@ -56,7 +56,8 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         from_topology(cx, &index, &mut groups);
     } else {
         for s in cx.analysis.switches.iter().filter(|s| s.inductive) {
-            let Some(driver) = s.driver.as_ref().map(|d| d.device) else {
+            // Behind a pre-driver the frequency is the switching input's: group and fix there.
+            let Some(driver) = s.driver.as_ref().map(|d| d.control.unwrap_or(d.device)) else {
                 continue;
             };
             let mut loads: Vec<DeviceId> = s
@@ -89,6 +90,9 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
             g.loads.extend(loads);
         }
     }
+    // One note per load: the drives of a bridge's four switches whine through the same
+    // winding, so later drives are labelled on the first one's note.
+    let mut noted: BTreeMap<Vec<DeviceId>, usize> = BTreeMap::new();
     for (driver, group) in groups {
         let drive = match drives.remove(&driver) {
             Some(d) => Some(d),
@@ -100,7 +104,18 @@ pub fn check(cx: &RuleContext<'_>, out: &mut Vec<Finding>) {
         if drive.min_hz >= BAND_HIGH_HZ || drive.max_hz < BAND_LOW_HZ {
             continue;
         }
+        let mut loads = group.loads.clone();
+        loads.sort_unstable();
+        loads.dedup();
+        if let Some(&first) = noted.get(&loads).filter(|_| !loads.is_empty()) {
+            if let (Some(f), Some((_, e))) = (out.get_mut(first), device_element(cx, driver)) {
+                let label = format!("{} also switches it", e.path);
+                *f = f.clone().with_label(e.span, label);
+            }
+            continue;
+        }
         if let Some(f) = report(cx, &index, driver, &drive, &group) {
+            noted.insert(loads, out.len());
             out.push(f);
         }
     }

@@ -396,5 +396,6 @@ pub fn freewheel(device: DeviceId, kind: FreewheelKind, reversed: bool) -> Freew
         off_state_current_a: None,
         peak_current_a: None,
         avg_current_a: None,
+        on_state_reverse_v: None,
     }
 }

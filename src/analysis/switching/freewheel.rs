@@ -17,7 +17,7 @@ use super::solves::ComponentSolves;
 use super::topology::SwitchTopology;
 use crate::analysis::facts::{Freewheel, FreewheelKind, Range, Side};
 use crate::analysis::states::Context;
-use crate::circuit::{DeviceId, Kind, NetId, PinRole};
+use crate::circuit::{Circuit, DeviceId, Kind, NetId, PinRole};
 use std::collections::HashMap;
 
 /// A freewheel path before its orientation is checked.
@@ -373,6 +373,7 @@ pub const REVERSED_CURRENT_A: f64 = 1e-3;
 /// Checks each candidate's orientation in the solved states and adds its currents.
 /// `load_current` is the load's on-state current; `duty` the switch's duty.
 pub fn orient(
+    circuit: &Circuit,
     candidates: &[Candidate],
     states: &OnOff,
     solves: &ComponentSolves,
@@ -391,6 +392,15 @@ pub fn orient(
                     })
                     .fold(None, |m: Option<f64>, v| Some(m.map_or(v, |m| m.max(v))))
             };
+            let on_reverse = states
+                .on
+                .iter()
+                .filter_map(|&i| {
+                    let s = solves.states.get(i)?.solved.as_ref()?;
+                    s.pin_voltage(circuit, c.device, PinRole::Cathode, PinRole::Anode)
+                })
+                .filter(|v| v.is_finite())
+                .fold(None, |m: Option<f64>, v| Some(m.map_or(v, |m| m.max(v))));
             let (mut on_current, mut off_current) = (None, None);
             let reversed = match c.kind {
                 FreewheelKind::AcrossLoad | FreewheelKind::ToRail => {
@@ -425,6 +435,7 @@ pub fn orient(
                 off_state_current_a: off_current,
                 peak_current_a: peak,
                 avg_current_a: avg,
+                on_state_reverse_v: on_reverse,
             }
         })
         .collect()

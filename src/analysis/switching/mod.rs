@@ -387,7 +387,14 @@ fn switch_facts(
         drive::range_over(s, &states.conducting, &|_, solved| load::through(l, solved))
     });
     let candidates = freewheel::candidates_cached(cx, nets, t, freewheels);
-    let freewheel = freewheel::orient(&candidates, states, s, load_current.as_ref(), duty.as_ref());
+    let freewheel = freewheel::orient(
+        cx.circuit,
+        &candidates,
+        states,
+        s,
+        load_current.as_ref(),
+        duty.as_ref(),
+    );
     let driver = gate.driver.map(|device| {
         let kind_of = |d: DeviceId| cx.circuit.devices.get(d).map(|x| x.kind);
         DriverFacts {
