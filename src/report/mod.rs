@@ -324,6 +324,7 @@ mod tests {
             failed: vec![],
             known: 0,
             not_judged: Default::default(),
+            assumed: 0,
         };
         assert_eq!(
             summary.line(),
