@@ -49,7 +49,11 @@ pub fn load_config(netlist: &Path, options: &CheckOptions) -> Result<Config, Con
 /// Lays rule levels given for one run over a configuration's `[rules]`.
 pub fn overlay_rule_levels(config: &mut Config, levels: &[(String, RuleLevel)]) {
     for (id, level) in levels {
-        config.rules.insert(id.to_ascii_lowercase(), *level);
+        let id = id.to_ascii_lowercase();
+        if *level == RuleLevel::Off {
+            config.run_off.insert(id.clone());
+        }
+        config.rules.insert(id, *level);
     }
 }
 
@@ -322,13 +326,19 @@ fn finish_with_facts(
         config,
     };
     findings.extend(rules::run(&cx));
+    // Rules left out for this run (`--only`, `--skip`) are a choice of what to see, not a
+    // silenced finding: they are not counted as suppressed.
+    let left_out = findings
+        .iter()
+        .filter(|f| config.run_off.contains(&f.rule))
+        .count();
     let outcome = rules::suppress::apply(findings, flat, &report.sources, config);
     let sources = &report.sources;
     let mut findings = outcome.findings;
     findings.sort_by_cached_key(|f| (sources.locate(f.span), f.rule.clone(), f.message.clone()));
     findings.dedup();
     report.findings = findings;
-    report.suppressed = outcome.suppressed;
+    report.suppressed = outcome.suppressed.saturating_sub(left_out);
     (report, circuit, facts)
 }
 

@@ -586,3 +586,267 @@ fn the_summary_names_what_could_not_be_judged() {
         "{stdout}"
     );
 }
+
+// ---- a reference of every part kind and its keys ----------------------------------------------
+
+#[test]
+fn parts_lists_every_kind_and_every_key_with_its_default() {
+    use kickback::vocabulary::{ratings, Kind};
+    let output = kickback()
+        .arg("parts")
+        .assert()
+        .code(0)
+        .get_output()
+        .clone();
+    let shown = text(&output.stdout);
+    for kind in Kind::CONFIGURABLE {
+        assert!(
+            shown.contains(&format!("\n{kind}   pins in package order:")),
+            "{kind} is missing:\n{shown}"
+        );
+    }
+    for key in ratings::RATING_NAMES.iter().chain(ratings::FLAG_RATINGS) {
+        assert!(
+            shown.contains(&format!("\n  {key} ")),
+            "{key} is missing:\n{shown}"
+        );
+    }
+    // The defaults a check applies, with their sources (from src/circuit/defaults.rs).
+    assert!(shown.contains("built-in default for timer-555 (from memory)"));
+    assert!(shown.contains("built-in default for logic-level nmos"));
+    assert!(shown.contains("√(power_rating/resistance)"));
+
+    let output = kickback()
+        .args(["parts", "--format", "json"])
+        .assert()
+        .code(0)
+        .get_output()
+        .clone();
+    let doc: serde_json::Value = serde_json::from_slice(&output.stdout).expect("json");
+    assert_eq!(doc["version"], 1);
+    let kinds = doc["kinds"].as_array().expect("kinds");
+    for kind in Kind::CONFIGURABLE {
+        assert!(kinds.iter().any(|k| k["kind"] == kind.as_str()), "{kind}");
+    }
+    for key in ratings::RATING_NAMES.iter().chain(ratings::FLAG_RATINGS) {
+        let found = kinds.iter().any(|k| {
+            k["keys"]
+                .as_array()
+                .is_some_and(|keys| keys.iter().any(|e| e["key"] == *key))
+        });
+        assert!(found, "{key}");
+    }
+    // A bipolar 555's ladder: 5 kΩ, from memory (src/circuit/defaults.rs).
+    let timer = kinds.iter().find(|k| k["kind"] == "timer-555").unwrap();
+    let ladder = timer["keys"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|e| e["key"] == "ladder_resistance")
+        .unwrap();
+    assert_eq!(ladder["unit"], "Ω");
+    assert_eq!(ladder["defaults"][0]["value"], 5000.0);
+    assert_eq!(
+        ladder["defaults"][0]["source"],
+        "built-in default for timer-555 (from memory)"
+    );
+}
+
+// ---- "6M" where mega was meant ----------------------------------------------------------------
+
+#[test]
+fn a_capital_m_where_mega_was_meant_is_a_warning_that_does_not_fail() {
+    let dir = project();
+    let toml = dir.path().join("hw/kickback.toml");
+    let mut config = fs::read_to_string(&toml).unwrap();
+    let line = config.lines().count() + 4;
+    config.push_str("\n[parts.SPARE555]\nkind = \"timer-555\"\nladder_resistance = \"6M\"\n");
+    config.push_str("\n[parts.SPAREPOT]\nkind = \"potentiometer\"\nresistance = \"10MEG\"\n");
+    config.push_str("\n[parts.SPARENMOS]\nkind = \"nmos\"\nrds_on = \"6M\"\n");
+    fs::write(&toml, &config).unwrap();
+    let output = kickback()
+        .current_dir(dir.path())
+        .args(["check", "hw/valve.cir", "--format", "lines"])
+        .assert()
+        // The valve's own finding decides the exit code, as without the warning.
+        .code(1)
+        .get_output()
+        .clone();
+    let stderr = text(&output.stderr);
+    assert!(
+        stderr.contains(&format!(
+            "kickback.toml:{line}:1: `parts.SPARE555.ladder_resistance`: \"6M\" reads as 6 mΩ"
+        )),
+        "{stderr}"
+    );
+    assert!(stderr.contains("write \"6MEG\" for 6 MΩ"), "{stderr}");
+    assert!(stderr.contains("ladder_resistance = \"6M\""), "{stderr}");
+    // Mega written as MEG, and milli on a key where milli is usual, say nothing.
+    assert_eq!(stderr.matches("warning:").count(), 1, "{stderr}");
+    // The findings are what they were.
+    assert!(text(&output.stdout).contains("flyback-missing"));
+}
+
+// ---- a library is checked as a library ----------------------------------------------------------
+
+#[test]
+fn a_library_named_directly_is_checked_for_its_definitions_only() {
+    let dir = tempfile::tempdir().expect("tempdir");
+    // A title-like first line, a subcircuit with a broken line, and a stray top-level resistor
+    // whose second net nothing else touches (in a deck, a dangling net).
+    fs::write(
+        dir.path().join("bench.lib"),
+        "Bench library of gate drivers\n\
+         .subckt GD in g gnd\n\
+         Rg in g\n\
+         .ends GD\n\
+         R9 a b 10k\n",
+    )
+    .unwrap();
+    fs::write(
+        dir.path().join("models.inc"),
+        "* models only\n.model DSW D(IS=1e-6)\n.subckt PULL a b\nR1 a b 10k\n.ends PULL\n",
+    )
+    .unwrap();
+    let output = kickback()
+        .current_dir(dir.path())
+        .args(["check", "bench.lib", "models.inc", "--format", "lines"])
+        .assert()
+        .code(1)
+        .get_output()
+        .clone();
+    let stdout = text(&output.stdout);
+    let lines: Vec<&str> = stdout.lines().collect();
+    // The first line is a statement, as for the decks that include the file, and its
+    // finding says why; the broken definition line is reported; nothing electrical is.
+    assert_eq!(lines.len(), 2, "{stdout}");
+    assert!(
+        lines[0].starts_with("bench.lib:1:1: error syntax"),
+        "{stdout}"
+    );
+    assert!(
+        lines[0].contains("read its first line as a statement"),
+        "{stdout}"
+    );
+    assert!(
+        lines[1].starts_with("bench.lib:3:1: error syntax"),
+        "{stdout}"
+    );
+    assert!(!stdout.contains("models.inc"), "{stdout}");
+    assert!(!stdout.contains("dangling"), "{stdout}");
+}
+
+// ---- a compact mode for big runs ----------------------------------------------------------------
+
+#[test]
+fn compact_cards_give_a_short_block_per_finding_and_keep_the_summaries() {
+    let demo = repo("testdata/demo");
+    let full = kickback()
+        .current_dir(&demo)
+        .args(["check", "doser.cir", "--format", "lines"])
+        .assert()
+        .code(1)
+        .get_output()
+        .clone();
+    let findings = text(&full.stdout).lines().count();
+    let output = kickback()
+        .current_dir(&demo)
+        .args(["check", "doser.cir", "--compact", "--counts"])
+        .assert()
+        .code(1)
+        .get_output()
+        .clone();
+    let shown = text(&output.stdout);
+    // One heading per finding, each with its place; no netlist lines, no numbers table.
+    let headings = shown
+        .lines()
+        .filter(|l| l.contains(" at doser.cir:"))
+        .count();
+    assert_eq!(headings, findings, "{shown}");
+    assert!(!shown.contains('┃'), "{shown}");
+    assert!(!shown.contains("number  "), "{shown}");
+    assert!(shown.contains("  fix ▸ "), "{shown}");
+    // The counts by rule and by file, and the summary line, stay.
+    assert!(shown.contains("gate-underdrive"), "{shown}");
+    assert!(
+        shown.contains("5 errors, 6 warnings, 2 notes in 1 file"),
+        "{shown}"
+    );
+    let full_cards = kickback()
+        .current_dir(&demo)
+        .args(["check", "doser.cir"])
+        .assert()
+        .get_output()
+        .clone();
+    assert!(shown.lines().count() * 2 < text(&full_cards.stdout).lines().count());
+}
+
+// ---- an honest summary ---------------------------------------------------------------------------
+
+#[test]
+fn the_summary_counts_assumed_ratings_leaves_run_choices_out_and_gives_the_baseline() {
+    // A finding whose deciding rating is only a default becomes a note, and the summary counts
+    // it among what kickback could not judge.
+    let fixtures = repo("testdata/rules/discharge-unprotected");
+    let output = kickback()
+        .current_dir(&fixtures)
+        .args(["check", "fires-100-ohm-series.cir"])
+        .assert()
+        .get_output()
+        .clone();
+    let shown = text(&output.stdout);
+    assert!(
+        shown.contains("kickback could not judge 1 place (rating assumed 1)"),
+        "{shown}"
+    );
+
+    // `--skip` and `--only` choose what a run shows: nothing is counted as suppressed.
+    let demo = repo("testdata/demo");
+    let json = |args: &[&str]| -> serde_json::Value {
+        let output = kickback()
+            .current_dir(&demo)
+            .args(["check", "doser.cir", "--format", "json"])
+            .args(args)
+            .output()
+            .expect("run");
+        serde_json::from_slice(&output.stdout).expect("json")
+    };
+    let all = json(&[]);
+    let skipped = json(&["--skip", "gate-underdrive"]);
+    assert_eq!(
+        skipped["summary"]["suppressed"],
+        all["summary"]["suppressed"]
+    );
+    assert_eq!(
+        skipped["summary"]["errors"].as_u64().unwrap() + 1,
+        all["summary"]["errors"].as_u64().unwrap()
+    );
+    let only = json(&["--only", "flyback-missing"]);
+    assert_eq!(only["summary"]["suppressed"], all["summary"]["suppressed"]);
+    // No baseline, no baseline count.
+    assert!(all["summary"].get("baseline").is_none());
+
+    // With a baseline, the JSON summary says how many findings it left out.
+    let dir = project();
+    kickback()
+        .current_dir(dir.path())
+        .args(["baseline", "hw", "--out", "known.toml"])
+        .assert()
+        .code(0);
+    let output = kickback()
+        .current_dir(dir.path())
+        .args([
+            "check",
+            "hw",
+            "--baseline",
+            "known.toml",
+            "--format",
+            "json",
+        ])
+        .assert()
+        .code(0)
+        .get_output()
+        .clone();
+    let doc: serde_json::Value = serde_json::from_slice(&output.stdout).expect("json");
+    assert!(doc["summary"]["baseline"].as_u64().unwrap() >= 1, "{doc}");
+}

@@ -100,6 +100,10 @@ pub enum Command {
         /// Cards format: before the summary, count the findings by rule and by file.
         #[arg(long)]
         counts: bool,
+        /// Cards format: each finding as a short block (heading, message, fix) without its
+        /// netlist lines or numbers, for runs over many boards.
+        #[arg(long)]
+        compact: bool,
         /// Keep running: check again whenever a netlist, an included file or kickback.toml
         /// under PATHS is saved (Ctrl-C stops).
         #[arg(long)]
@@ -125,6 +129,9 @@ pub enum Command {
     /// List every rule, the severities it gives and the level in effect under the
     /// configuration (`--format json` for a program).
     Rules,
+    /// List every part kind a kickback.toml can name, the keys that describe it with their
+    /// units, and each key's default with where it comes from (`--format json` for a program).
+    Parts,
     /// Print the page of one rule: what it checks, why, an example and its fix.
     Explain {
         /// The rule ID, e.g. flyback-missing.

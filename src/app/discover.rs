@@ -9,7 +9,8 @@ pub const EXTENSIONS: &[&str] = &["cir", "sp", "spice", "net", "ckt"];
 
 /// Extensions of files that hold definitions for netlists to include (subcircuits, models),
 /// compared case-insensitively. Such a file has no title line and is never checked as a deck:
-/// named on the command line, it stands for the netlists that include it.
+/// named on the command line, it is checked as a library and stands for the netlists that
+/// include it.
 pub const LIBRARY_EXTENSIONS: &[&str] = &["lib", "inc", "mod", "sub"];
 
 #[derive(Debug, Default)]

@@ -9,6 +9,7 @@ pub mod catalogue;
 pub mod cli;
 pub mod discover;
 pub mod init;
+pub mod parts;
 pub mod terminal;
 mod watch;
 
@@ -87,6 +88,7 @@ where
             baseline,
             name,
             counts,
+            compact,
             watch,
         } => {
             let run = CheckRun {
@@ -94,6 +96,7 @@ where
                 stdin_name: name,
                 write_baseline: None,
                 counts: *counts,
+                compact: *compact,
             };
             if *watch {
                 watch::run(paths, &run, &cli.global, env, &mut console)
@@ -107,12 +110,14 @@ where
                 stdin_name: Path::new("stdin.cir"),
                 write_baseline: Some(out),
                 counts: false,
+                compact: false,
             };
             check(paths, &run, &cli.global, env, &mut console)
         }
         Command::Lsp { debounce_ms } => lsp(*debounce_ms, &cli.global, &mut console),
         Command::Report { file } => report_command(file, &cli.global, &mut console),
         Command::Rules => rules_command(&cli.global, &mut console),
+        Command::Parts => parts_command(cli.global.format, &mut console),
         Command::Explain { rule } => explain(rule, &mut console),
         Command::Init { path } => init(path.as_deref(), &mut console),
         Command::Completions { shell } => {
@@ -177,6 +182,8 @@ struct CheckRun<'a> {
     write_baseline: Option<&'a Path>,
     /// `check --counts`: findings by rule and by file before the summary.
     counts: bool,
+    /// `check --compact`: a short block per finding in the cards format.
+    compact: bool,
 }
 
 fn check(
@@ -274,6 +281,8 @@ fn check(
         dependents.extend(around.files.into_iter().filter(|f| !named.contains(f)));
     }
     let mut jobs: Vec<Job> = found.files.into_iter().map(Job::Check).collect();
+    // The library itself is checked too, as a library: its definitions' own problems.
+    jobs.extend(found.libraries.iter().cloned().map(Job::Check));
     jobs.extend(dependents.into_iter().map(Job::IfIncludes));
     jobs.extend(found.failures.into_iter().map(Job::Unreadable));
     if stdin {
@@ -322,7 +331,11 @@ fn check(
             }
         }
         totals.known = totals.known.saturating_add(known);
-        configs.extend(reports.iter().flat_map(|r| r.configs.iter().cloned()));
+        for path in reports.iter().flat_map(|r| r.configs.iter()) {
+            if configs.insert(path.clone()) {
+                config_warnings(path, console);
+            }
+        }
         for (file, message) in report::failures(&reports) {
             // Most reasons already name the netlist ("cannot read a.cir: ..."); others name
             // only their own file (a config line), so the netlist is added.
@@ -340,6 +353,9 @@ fn check(
         if streamed {
             add_counts(&mut totals, &report::Summary::of(&reports));
             let text = match global.format {
+                Format::Cards | Format::Human if run.compact => {
+                    report::cards::render_compact(&reports, &cards)
+                }
                 Format::Cards | Format::Human => report::cards::render(&reports, &cards),
                 _ => report::lines::render(&reports, shown),
             };
@@ -404,7 +420,9 @@ fn check(
             text
         }
         Format::Lines | Format::Short => String::new(),
-        Format::Json => report::json::render(&kept),
+        Format::Json => {
+            report::json::render_with_baseline(&kept, baseline.as_ref().map(|_| totals.known))
+        }
         Format::Sarif => report::sarif::render(&kept),
         Format::Html | Format::Markdown => String::new(),
     };
@@ -516,6 +534,7 @@ fn add_counts(totals: &mut report::Summary, batch: &report::Summary) {
         let total = totals.not_judged.entry(rule.clone()).or_default();
         *total = total.saturating_add(*n);
     }
+    totals.assumed = totals.assumed.saturating_add(batch.assumed);
     totals.failed.extend(batch.failed.iter().cloned());
 }
 
@@ -544,6 +563,17 @@ fn unreadable((path, reason): (PathBuf, String)) -> FileReport {
         suppressed: 0,
         configs: Vec::new(),
         failure: Some(CheckError::Load(LoadError::Unreadable { path, reason })),
+    }
+}
+
+/// The warnings of one configuration file the run read (`"6M"` for a resistance), on stderr:
+/// shown once, whatever the number of netlists it applies to, and never failing the run.
+fn config_warnings(path: &Path, console: &mut Console<'_>) {
+    // The file was read moments ago for a netlist; a reading that fails now was reported there.
+    if let Ok(config) = Config::load(path) {
+        for warning in &config.warnings {
+            console.warning(&warning.to_string());
+        }
     }
 }
 
@@ -642,6 +672,20 @@ fn rules_command(global: &GlobalArgs, console: &mut Console<'_>) -> u8 {
     let text = match global.format {
         Format::Json => catalogue::json(crate::rules::REGISTRY, config.as_ref()),
         _ => catalogue::table(crate::rules::REGISTRY, config.as_ref()),
+    };
+    console.print(&text);
+    EXIT_CLEAN
+}
+
+/// `kickback parts`: the reference of part kinds, keys, units and defaults.
+fn parts_command(format: Format, console: &mut Console<'_>) -> u8 {
+    let text = match format {
+        Format::Json => parts::json(),
+        Format::Cards => parts::text(),
+        _ => {
+            console.error("parts prints --format cards (tables for a person) or --format json");
+            return EXIT_FAILURE;
+        }
     };
     console.print(&text);
     EXIT_CLEAN
@@ -818,6 +862,10 @@ impl Console<'_> {
 
     fn error(&mut self, message: &str) {
         self.write_err(&format!("error: {message}\n"));
+    }
+
+    fn warning(&mut self, message: &str) {
+        self.write_err(&format!("warning: {message}\n"));
     }
 
     fn note(&mut self, message: &str) {

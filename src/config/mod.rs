@@ -87,6 +87,25 @@ pub struct Config {
     pub parts: Vec<(String, PartConfig)>,
     /// Flattened instance path as written → data. Matched case-insensitively.
     pub elements: BTreeMap<String, PartConfig>,
+    /// Rule IDs (lower-case) turned off for one run by the command line (`--only`, `--skip`),
+    /// not by a file: their findings are left out without counting as suppressed.
+    pub run_off: std::collections::BTreeSet<String>,
+    /// Values that are valid but most likely not what was meant (`"6M"` for a resistance is
+    /// 6 mΩ), in the order of the files and their lines; a check shows them and goes on.
+    pub warnings: Vec<ConfigWarning>,
+}
+
+/// A value the configuration accepts but that was most likely meant otherwise. Names the file,
+/// line and key, like [`ConfigError`], and never stops a check.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+#[error("{path}:{line}:{column}: {message}")]
+pub struct ConfigWarning {
+    pub path: PathBuf,
+    pub line: usize,
+    pub column: usize,
+    /// Dotted key path (`parts.TIMER.ladder_resistance`).
+    pub key: String,
+    pub message: String,
 }
 
 /// A configuration that cannot be used (exit code 2). Names the file, line and key.
@@ -184,6 +203,7 @@ impl Config {
             self.elements.insert(path, element);
         }
         self.files.extend(nearer.files);
+        self.warnings.extend(nearer.warnings);
         self.root |= nearer.root;
         self.path = nearer_path.or(self.path);
         self

@@ -3,10 +3,11 @@
 
 use super::tree::{line_column, Node};
 use super::value::{parse_value, written_unit};
-use super::{Config, ConfigError, PartConfig, RuleLevel, SupplyConfig};
+use super::{Config, ConfigError, ConfigWarning, PartConfig, RuleLevel, SupplyConfig};
 use crate::diagnostic::Severity;
 use crate::vocabulary::{glob, ratings, roles, Kind};
 use serde_spanned::Spanned;
+use std::cell::RefCell;
 use std::ops::Range;
 use std::path::Path;
 
@@ -25,7 +26,11 @@ const ORDERED_RATINGS: [(&str, &str); 5] = [
 ];
 
 pub(super) fn read(text: &str, path: &Path) -> Result<Config, ConfigError> {
-    let cx = Reader { text, path };
+    let cx = Reader {
+        text,
+        path,
+        warnings: RefCell::new(Vec::new()),
+    };
     let root = toml::from_str::<Node>(text).map_err(|e| {
         let offset = e.span().map_or(0, |s| s.start);
         // The TOML reader hands dates to a tree of plain values as a private marker key.
@@ -81,12 +86,15 @@ pub(super) fn read(text: &str, path: &Path) -> Result<Config, ConfigError> {
             other => return Err(cx.unknown_key(key, other, "", &TOP_KEYS)),
         }
     }
+    config.warnings = cx.warnings.into_inner();
     Ok(config)
 }
 
 struct Reader<'a> {
     text: &'a str,
     path: &'a Path,
+    /// Values accepted but most likely meant otherwise.
+    warnings: RefCell<Vec<ConfigWarning>>,
 }
 
 impl Reader<'_> {
@@ -309,6 +317,9 @@ impl Reader<'_> {
                             ),
                         ));
                     }
+                    if let Node::Str(text) = value {
+                        self.check_mega(name, text, &lower, number, &here);
+                    }
                     part.ratings.insert(lower.clone(), number);
                 }
                 _ => {
@@ -439,6 +450,52 @@ impl Reader<'_> {
             self.snippet(&name.span())
         );
         Err(self.error(name.span(), here, message))
+    }
+
+    /// `"6M"` where mega was surely meant: SPICE reads a capital `M` as milli, and for a key
+    /// whose real values lie far above the milli reading and take in the mega one (a
+    /// resistance, a 555's ladder), that is a warning naming both readings.
+    fn check_mega(&self, name: &Spanned<String>, text: &str, key: &str, number: f64, here: &str) {
+        let Some((low, high, range)) = ratings::mega_range(key) else {
+            return;
+        };
+        // The letters after the number (an exponent's `e` is part of the number).
+        let trimmed = text.trim();
+        let Some(start) = trimmed.char_indices().find_map(|(i, c)| {
+            let exponent = matches!(c, 'e' | 'E')
+                && trimmed[i + 1..]
+                    .starts_with(|d: char| d.is_ascii_digit() || d == '-' || d == '+');
+            (c.is_alphabetic() && !exponent).then_some(i)
+        }) else {
+            return;
+        };
+        let rest = &trimmed[start..];
+        let lower = rest.to_ascii_lowercase();
+        if !rest.starts_with('M') || lower.starts_with("meg") || lower.starts_with("mil") {
+            return;
+        }
+        let mega = number * 1e9;
+        if !(number > 0.0 && number < low && mega >= low && mega <= high) {
+            return;
+        }
+        let unit = ratings::rating_unit(key).unwrap_or("");
+        let digits = trimmed[..start].trim_end();
+        let message = format!(
+            "`{here}`: \"{text}\" reads as {}: in SPICE `M` is milli and mega is `MEG`, and \
+             `{key}` is usually {range}; write \"{digits}MEG\" for {}, or \"{digits}m\" if \
+             milli was meant{}",
+            crate::units::format_si(number, unit),
+            crate::units::format_si(mega, unit),
+            self.snippet(&name.span())
+        );
+        let (line, column) = line_column(self.text, name.span().start);
+        self.warnings.borrow_mut().push(ConfigWarning {
+            path: self.path.to_path_buf(),
+            line,
+            column,
+            key: here.to_string(),
+            message,
+        });
     }
 
     fn number(&self, name: &Spanned<String>, value: &Node, here: &str) -> Result<f64, ConfigError> {

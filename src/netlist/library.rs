@@ -8,6 +8,7 @@ use super::deck::Deck;
 use super::element::{self, Keep};
 use super::lex::{Dot, Head, Lexed};
 use crate::diagnostic::Finding;
+use crate::source::FileId;
 
 /// File name endings that hold libraries by convention.
 const LIBRARY_EXTENSIONS: &[&str] = &["lib", "sub", "inc", "mod", "lb"];
@@ -24,12 +25,25 @@ pub enum Shape {
     Deck,
     /// A library whose first line is a statement (or a comment): read it with no title.
     Library,
-    /// A library file (by its name) whose first line is plain text: keep that as a title.
-    LibraryWithTitle,
 }
 
 /// Decides from the top file, lexed with a title line, whether it is a library.
+///
+/// A file named as a library (`.lib .inc .mod .sub .lb`) is one whatever it holds, and its
+/// first line is a statement, as for the decks that include it. Another file is a library when
+/// its first line is a definition, or when it holds definitions only and its first line is a
+/// comment or blank.
 pub fn shape(file_name: &str, lexed: &Lexed, text: &str) -> Shape {
+    let extension = std::path::Path::new(file_name)
+        .extension()
+        .and_then(|e| e.to_str())
+        .unwrap_or("");
+    if LIBRARY_EXTENSIONS
+        .iter()
+        .any(|e| extension.eq_ignore_ascii_case(e))
+    {
+        return Shape::Library;
+    }
     let title = lexed
         .title
         .and_then(|(s, e)| text.get(s as usize..e as usize))
@@ -50,19 +64,12 @@ pub fn shape(file_name: &str, lexed: &Lexed, text: &str) -> Shape {
         || title.starts_with(';')
         || title.starts_with("//");
     if comment_or_blank {
-        return Shape::Library;
+        Shape::Library
+    } else {
+        // A titled file of includes and definitions is a deck whose circuit comes from its
+        // includes.
+        Shape::Deck
     }
-    let extension = std::path::Path::new(file_name)
-        .extension()
-        .and_then(|e| e.to_str())
-        .unwrap_or("");
-    if LIBRARY_EXTENSIONS
-        .iter()
-        .any(|e| extension.eq_ignore_ascii_case(e))
-    {
-        return Shape::LibraryWithTitle;
-    }
-    Shape::Deck
 }
 
 /// True when every statement outside `.subckt` bodies and `.lib` sections defines something,
@@ -125,4 +132,27 @@ pub fn check_definitions(deck: &Deck<'_>, used: &[bool]) -> Vec<Finding> {
         }
     }
     out
+}
+
+/// A library's first line is a statement to every deck that includes it, never a title: when
+/// it is plain text and cannot be read as one, its finding says so.
+pub fn explain_first_line(findings: &mut [Finding], top: FileId, text: &str) {
+    let first = text.lines().next().unwrap_or("");
+    let plain = first
+        .trim_start_matches('\u{feff}')
+        .trim_start()
+        .starts_with(|c: char| c.is_alphabetic());
+    if !plain {
+        return;
+    }
+    let end = first.len() as u32;
+    for finding in findings
+        .iter_mut()
+        .filter(|f| f.span.file == top && f.span.start <= end && f.rule == "syntax")
+    {
+        finding.message.push_str(
+            "; this file is a library, and the decks that include it read its first line as a \
+             statement, not as a title: make a title a comment (`* ...`)",
+        );
+    }
 }

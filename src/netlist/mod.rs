@@ -349,8 +349,16 @@ fn run(
     }
     sensed_nets.sort_unstable_by_key(|n| n.to_ascii_lowercase());
     sensed_nets.dedup_by(|a, b| a.eq_ignore_ascii_case(b));
+    if loaded.library {
+        if let Some(file) = sources.get(top) {
+            library::explain_first_line(&mut findings, top, &file.text);
+        }
+    }
     findings.sort_by_key(|f| (f.span.file, f.span.start, f.span.end));
     let findings = unknown_letters_once(findings);
+    // A library checked on its own is checked for its definitions only: statements outside
+    // them are read for syntax above, but they are no circuit of their own.
+    let elements = if loaded.library { Vec::new() } else { elements };
     let flat = FlatNetlist {
         title: std::mem::take(&mut deck.title),
         elements,

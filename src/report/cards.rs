@@ -64,6 +64,35 @@ pub fn render(reports: &[FileReport], options: &CardsOptions) -> String {
     out
 }
 
+/// `--compact`: every finding as a short block — the heading (element, place, severity, rule),
+/// the message and the fix — with no netlist lines and no numbers table, for runs over many
+/// boards; then the summary line as in [`render`].
+pub fn render_compact(reports: &[FileReport], options: &CardsOptions) -> String {
+    let look = look(options);
+    let mut out = String::new();
+    for entry in ordered(reports) {
+        let finding = entry.finding;
+        if finding.severity < options.min_severity {
+            continue;
+        }
+        let at = &entry.location;
+        let place = format!("{}:{}:{}", at.file, at.line, at.column);
+        out.push_str(&card::heading(finding, &place, look));
+        out.push_str(&card::message(&finding.message, look));
+        if let Some(help) = &finding.help {
+            out.push_str(&card::fix(help, look));
+        }
+    }
+    if options.summary {
+        if !out.is_empty() {
+            out.push('\n');
+        }
+        out.push_str(&summary_line(&Summary::of(reports), options));
+        out.push('\n');
+    }
+    out
+}
+
 /// One finding drawn, or, should the drawing fail, one line that still says what and where:
 /// a fault in drawing one finding costs only that finding's snippet, never the other findings,
 /// the summary or the exit code.

@@ -73,6 +73,9 @@ pub struct JsonSummary {
     pub notes: usize,
     pub suppressed: usize,
     pub files: usize,
+    /// Findings left out because the baseline lists them; present only with `--baseline`.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    pub baseline: Option<usize>,
 }
 
 #[derive(Debug, Serialize)]
@@ -162,6 +165,7 @@ pub fn output(reports: &[FileReport]) -> CheckOutput {
             notes: summary.notes,
             suppressed: summary.suppressed,
             files: summary.files,
+            baseline: None,
         },
         failures: failures(reports)
             .into_iter()
@@ -172,9 +176,17 @@ pub fn output(reports: &[FileReport]) -> CheckOutput {
 
 /// Pretty-printed, ending with a newline.
 pub fn render(reports: &[FileReport]) -> String {
+    render_with_baseline(reports, None)
+}
+
+/// As [`render`], with the number of findings a baseline left out (`check --baseline`) in the
+/// summary as `baseline`.
+pub fn render_with_baseline(reports: &[FileReport], baseline: Option<usize>) -> String {
+    let mut document = output(reports);
+    document.summary.baseline = baseline;
     // Plain structs with string keys and no non-finite floats: serialising cannot fail, but a
     // failure would still be reported as JSON rather than as a panic.
-    let mut text = serde_json::to_string_pretty(&output(reports)).unwrap_or_else(|e| {
+    let mut text = serde_json::to_string_pretty(&document).unwrap_or_else(|e| {
         serde_json::json!({ "version": VERSION, "error": e.to_string() }).to_string()
     });
     text.push('\n');

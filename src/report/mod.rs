@@ -106,6 +106,9 @@ pub struct Summary {
     /// Findings of the rules that say kickback could not judge something
     /// ([`crate::rules::NOT_JUDGED`]), by rule.
     pub not_judged: std::collections::BTreeMap<String, usize>,
+    /// Findings that rest on a rating kickback only assumed (a kind's default), reported as
+    /// notes until the rating is stated: the deciding number carries the `assumed` provenance.
+    pub assumed: usize,
 }
 
 impl Summary {
@@ -123,6 +126,9 @@ impl Summary {
                     Severity::Note => &mut summary.notes,
                 };
                 *count = count.saturating_add(1);
+                if finding.severity == Severity::Note && finding.resting_on_assumption().is_some() {
+                    summary.assumed = summary.assumed.saturating_add(1);
+                }
                 if crate::rules::NOT_JUDGED.contains(&finding.rule.as_str()) {
                     let n = summary.not_judged.entry(finding.rule.clone()).or_default();
                     *n = n.saturating_add(1);
@@ -173,13 +179,20 @@ impl Summary {
         if !asides.is_empty() {
             line.push_str(&format!(" ({})", asides.join(", ")));
         }
-        let skipped: usize = self.not_judged.values().sum();
+        let skipped: usize = self
+            .not_judged
+            .values()
+            .sum::<usize>()
+            .saturating_add(self.assumed);
         if skipped > 0 {
-            let by_rule: Vec<String> = self
+            let mut by_rule: Vec<String> = self
                 .not_judged
                 .iter()
                 .map(|(rule, n)| format!("{rule} {n}"))
                 .collect();
+            if self.assumed > 0 {
+                by_rule.push(format!("rating assumed {}", self.assumed));
+            }
             line.push_str(&format!(
                 "; kickback could not judge {} ({}): their findings say what it needs",
                 plural(skipped, "place", "places"),
@@ -311,6 +324,7 @@ mod tests {
             failed: vec![],
             known: 0,
             not_judged: Default::default(),
+            assumed: 0,
         };
         assert_eq!(
             summary.line(),
