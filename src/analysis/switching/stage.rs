@@ -18,7 +18,7 @@ use super::topology::{self, SwitchTopology};
 use crate::analysis::facts::Stage;
 use crate::analysis::stand_in;
 use crate::analysis::states::Context;
-use crate::circuit::{DeviceId, Kind, NetId, PinRole};
+use crate::circuit::{DeviceId, Kind, NetId, PinRole, UnknownPart};
 use crate::netlist::Waveform;
 use std::collections::VecDeque;
 
@@ -173,6 +173,20 @@ pub fn classify(
             ),
         );
     }
+    if let Some((part, why)) = unknown_driver(cx, pin, t.device) {
+        let what = match why {
+            UnknownPart::Undefined => "whose model is defined nowhere kickback can see",
+            UnknownPart::Pins(_) => "whose pins kickback cannot map",
+            UnknownPart::CodeModel => "a mixed-signal code model whose output is not modelled",
+        };
+        return (
+            Stage::Unknown,
+            format!(
+                "its {base} is driven by {}, {what}: its output levels are unknown",
+                cx.name(part)
+            ),
+        );
+    }
     if let Some((r, supply)) = fed_from_supply(cx, nets, pin) {
         return (
             Stage::Unknown,
@@ -188,6 +202,25 @@ pub fn classify(
         Stage::Unknown,
         format!("no pulse source, timer, logic output or driver found at its {base}"),
     )
+}
+
+/// An unknown part (model missing, pins not mapped, a code model) on the gate's net or one
+/// resistor away from it: the driver kickback would need, named so the note says what to add.
+fn unknown_driver(cx: &Context<'_>, pin: NetId, own: DeviceId) -> Option<(DeviceId, UnknownPart)> {
+    let direct = |net: NetId| {
+        cx.circuit
+            .devices_on(net)
+            .iter()
+            .filter(|&&(d, _)| d != own)
+            .find_map(|&(d, _)| cx.circuit.unknown_part(d).map(|why| (d, why)))
+    };
+    direct(pin).or_else(|| {
+        cx.circuit.devices_on(pin).iter().find_map(|&(r, _)| {
+            let resistor = cx.circuit.devices().get(r)?.kind == Kind::Resistor;
+            let far = cx.circuit.other_end(r, pin).filter(|_| resistor)?;
+            direct(far)
+        })
+    })
 }
 
 /// True when nothing on the transistor's output net draws current from it: only capacitors
