@@ -173,14 +173,6 @@ fn is_filtered_output_load(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId)
     let [first, second] = device.pins.as_slice() else {
         return false;
     };
-    let other_end = |part: DeviceId, net| {
-        let p = cx.circuit.devices().get(part)?;
-        match p.pins.as_slice() {
-            [a, b] if a.net == net => Some(b.net),
-            [a, b] if b.net == net => Some(a.net),
-            _ => None,
-        }
-    };
     let inductive = |part: DeviceId| kind(cx, part).is_some_and(Kind::is_inductive);
     [(first.net, second.net), (second.net, first.net)]
         .into_iter()
@@ -190,10 +182,14 @@ fn is_filtered_output_load(cx: &RuleContext<'_>, index: &NetIndex, id: DeviceId)
                 .iter()
                 .any(|&(o, _)| kind(cx, o) == Some(Kind::VoltageSource));
             let reservoir = parts.iter().any(|&(o, _)| {
-                kind(cx, o) == Some(Kind::Capacitor) && other_end(o, out) == Some(back)
+                kind(cx, o) == Some(Kind::Capacitor) && cx.circuit.other_end(o, out) == Some(back)
             });
             let fed = parts.iter().any(|&(o, _)| {
-                let Some(far) = other_end(o, out).filter(|&f| f != out && f != back) else {
+                let Some(far) = cx
+                    .circuit
+                    .other_end(o, out)
+                    .filter(|&f| f != out && f != back)
+                else {
                     return false;
                 };
                 inductive(o)

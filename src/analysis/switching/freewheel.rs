@@ -16,7 +16,7 @@ use super::nets::{self, NetMap};
 use super::solves::ComponentSolves;
 use super::topology::SwitchTopology;
 use crate::analysis::facts::{Freewheel, FreewheelKind, Range, Side};
-use crate::analysis::states::Context;
+use crate::analysis::states::{Context, Solved};
 use crate::circuit::{Circuit, DeviceId, Kind, NetId, PinRole};
 use std::collections::HashMap;
 
@@ -383,24 +383,19 @@ pub fn orient(
     candidates
         .iter()
         .map(|c| {
-            let forward = |indices: &[usize]| -> Option<f64> {
+            // The largest of a quantity over the solved states among `indices`.
+            let largest = |indices: &[usize], of: &dyn Fn(&Solved) -> Option<f64>| {
                 indices
                     .iter()
-                    .filter_map(|&i| {
-                        let s = solves.states.get(i)?.solved.as_ref()?;
-                        s.current(s.elements(c.device)?.main?)
-                    })
+                    .filter_map(|&i| of(solves.states.get(i)?.solved.as_ref()?))
+                    .filter(|v| v.is_finite())
                     .fold(None, |m: Option<f64>, v| Some(m.map_or(v, |m| m.max(v))))
             };
-            let on_reverse = states
-                .on
-                .iter()
-                .filter_map(|&i| {
-                    let s = solves.states.get(i)?.solved.as_ref()?;
-                    s.pin_voltage(circuit, c.device, PinRole::Cathode, PinRole::Anode)
-                })
-                .filter(|v| v.is_finite())
-                .fold(None, |m: Option<f64>, v| Some(m.map_or(v, |m| m.max(v))));
+            let forward =
+                |indices: &[usize]| largest(indices, &|s| s.current(s.elements(c.device)?.main?));
+            let on_reverse = largest(&states.on, &|s| {
+                s.pin_voltage(circuit, c.device, PinRole::Cathode, PinRole::Anode)
+            });
             let (mut on_current, mut off_current) = (None, None);
             let reversed = match c.kind {
                 FreewheelKind::AcrossLoad | FreewheelKind::ToRail => {
