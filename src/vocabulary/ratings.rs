@@ -3,57 +3,76 @@
 
 use super::Kind;
 
-/// Rating names with numeric values (SI base units), accepted as config keys and as instance
-/// or subcircuit parameters. Thresholds and limits are magnitudes (also for P-channel parts).
-pub const RATING_NAMES: &[&str] = &[
+/// Declares the numeric ratings once, each with its SI unit: the list of names and the unit
+/// lookup below are both made from it, so a rating can never have a name without a unit.
+macro_rules! numeric_ratings {
+    ($($name:literal => $unit:literal,)*) => {
+        /// Rating names with numeric values (SI base units), accepted as config keys and as
+        /// instance or subcircuit parameters. Thresholds and limits are magnitudes (also for
+        /// P-channel parts).
+        pub const RATING_NAMES: &[&str] = &[$($name),*];
+
+        /// The SI unit of each numeric rating (`""` for a plain ratio), for reading a unit
+        /// written after a config value (`"45 mH"`) and refusing one that measures something
+        /// else (`"6 A"` for a voltage).
+        pub fn rating_unit(name: &str) -> Option<&'static str> {
+            match name.to_ascii_lowercase().as_str() {
+                $($name => Some($unit),)*
+                _ => None,
+            }
+        }
+    };
+}
+
+numeric_ratings! {
     // loads
-    "rated_voltage",
-    "rated_current",
-    "stall_current",
-    "inductance",
-    "resistance",
+    "rated_voltage" => "V",
+    "rated_current" => "A",
+    "stall_current" => "A",
+    "inductance" => "H",
+    "resistance" => "Ω",
     // MOSFETs
-    "vgs_th_min",
-    "vgs_th_max",
-    "vgs_rated",
-    "vgs_max",
-    "vds_max",
-    "id_max",
-    "rds_on",
-    "pd_max",
-    "qg",
+    "vgs_th_min" => "V",
+    "vgs_th_max" => "V",
+    "vgs_rated" => "V",
+    "vgs_max" => "V",
+    "vds_max" => "V",
+    "id_max" => "A",
+    "rds_on" => "Ω",
+    "pd_max" => "W",
+    "qg" => "C",
     // BJTs
-    "vce_max",
-    "ic_max",
-    "hfe_min",
+    "vce_max" => "V",
+    "ic_max" => "A",
+    "hfe_min" => "",
     // diodes and TVS
-    "vrrm",
-    "if_avg",
-    "ifrm",
-    "ifsm",
-    "vf",
-    "vz",
-    "trr",
-    "vclamp",
+    "vrrm" => "V",
+    "if_avg" => "A",
+    "ifrm" => "A",
+    "ifsm" => "A",
+    "vf" => "V",
+    "vz" => "V",
+    "trr" => "s",
+    "vclamp" => "V",
     // timers and logic outputs
-    "supply_min",
-    "supply_max",
-    "supply_abs_max",
-    "out_high_drop",
-    "out_current_max",
-    "discharge_current_rated",
-    "discharge_current_max",
-    "ladder_resistance",
-    "trigger_bias_current",
-    "threshold_bias_current",
-    "voh",
-    "vol",
+    "supply_min" => "V",
+    "supply_max" => "V",
+    "supply_abs_max" => "V",
+    "out_high_drop" => "V",
+    "out_current_max" => "A",
+    "discharge_current_rated" => "A",
+    "discharge_current_max" => "A",
+    "ladder_resistance" => "Ω",
+    "trigger_bias_current" => "A",
+    "threshold_bias_current" => "A",
+    "voh" => "V",
+    "vol" => "V",
     // resistors, pots, capacitors
-    "power_rating",
-    "wiper_current_max",
-    "voltage_rating",
-    "capacitance",
-];
+    "power_rating" => "W",
+    "wiper_current_max" => "A",
+    "voltage_rating" => "V",
+    "capacitance" => "F",
+}
 
 /// Rating names with yes/no values, stored as 1.0 / 0.0.
 pub const FLAG_RATINGS: &[&str] = &["polarized", "logic_level"];
@@ -62,39 +81,6 @@ pub const FLAG_RATINGS: &[&str] = &["polarized", "logic_level"];
 pub fn is_rating_name(name: &str) -> bool {
     let lower = name.to_ascii_lowercase();
     RATING_NAMES.contains(&lower.as_str()) || FLAG_RATINGS.contains(&lower.as_str())
-}
-
-/// The SI unit of each numeric rating (`""` for a plain ratio), for reading a unit written
-/// after a config value (`"45 mH"`) and refusing one that measures something else (`"6 A"` for
-/// a voltage).
-pub fn rating_unit(name: &str) -> Option<&'static str> {
-    let unit = match name.to_ascii_lowercase().as_str() {
-        "rated_voltage" | "vgs_th_min" | "vgs_th_max" | "vgs_rated" | "vgs_max" | "vds_max"
-        | "vce_max" | "vrrm" | "vf" | "vz" | "vclamp" | "supply_min" | "supply_max"
-        | "supply_abs_max" | "out_high_drop" | "voh" | "vol" | "voltage_rating" => "V",
-        "rated_current"
-        | "stall_current"
-        | "id_max"
-        | "ic_max"
-        | "if_avg"
-        | "ifrm"
-        | "ifsm"
-        | "out_current_max"
-        | "discharge_current_rated"
-        | "discharge_current_max"
-        | "trigger_bias_current"
-        | "threshold_bias_current"
-        | "wiper_current_max" => "A",
-        "inductance" => "H",
-        "resistance" | "rds_on" | "ladder_resistance" => "Ω",
-        "pd_max" | "power_rating" => "W",
-        "qg" => "C",
-        "trr" => "s",
-        "capacitance" => "F",
-        "hfe_min" => "",
-        _ => return None,
-    };
-    Some(unit)
 }
 
 /// The SI unit of a SPICE model parameter a kind's defaults fill (`bf`, `is`, `n`; `""` for a
